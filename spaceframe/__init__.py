@@ -1,0 +1,30 @@
+"""spaceframe: is a pin-jointed frame, as it will stand, held in every direction?
+
+The core audit needs only NumPy, SciPy and pymetis::
+
+    import spaceframe
+    frame = spaceframe.load("models/plant_platform.toml")
+    result = spaceframe.audit(frame)
+    result.mechanisms, result.self_stress_states, result.stable
+"""
+
+from .errors import ModelError, SpaceframeError, SpaceframeWarning
+from .model import Frame
+from .tolerances import DEFAULT as DEFAULT_TOLERANCES, Tolerances
+
+__version__ = "0.1.0"
+
+__all__ = ["load", "audit", "Frame", "Tolerances", "DEFAULT_TOLERANCES", "SpaceframeError",
+           "ModelError", "SpaceframeWarning", "__version__"]
+
+
+def load(path, **kw):
+    """Read a model file into a :class:`Frame` (see :func:`spaceframe.io.load`)."""
+    from .io import load as _load
+    return _load(path, **kw)
+
+
+def audit(frame, **kw):
+    """Audit a frame's stability (see :func:`spaceframe.analysis.audit.audit`)."""
+    from .analysis.audit import audit as _audit
+    return _audit(frame, **kw)

@@ -1,0 +1,48 @@
+"""The one root exception of spaceframe, and the warning class.
+
+Every error a user can cause derives from :class:`SpaceframeError`, which is
+also a :class:`ValueError`.  Its message is written for the person who made
+the model: it names the file, the line where known, the joint or member id,
+what is wrong and what to do.  The command line turns it into exit status 2
+without a traceback.
+"""
+
+from __future__ import annotations
+
+__all__ = ["SpaceframeError", "ModelError", "SpaceframeWarning", "where"]
+
+
+def where(path: str | None = None, line: int | None = None) -> str:
+    """Return ``"file:line: "`` (or the parts known) to prefix a message."""
+    if path is None:
+        return ""
+    return f"{path}:{line}: " if line is not None else f"{path}: "
+
+
+class SpaceframeError(ValueError):
+    """Root of every error a user can cause (bad model, bad option)."""
+
+
+class ModelError(SpaceframeError):
+    """A model file or array set that cannot describe a frame.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong and what to do about it.
+    path : str, optional
+        The file the model came from.
+    line : int, optional
+        1-based line of the file where the problem stands, where known.
+    item : str, optional
+        The joint, member or support id concerned.
+    """
+
+    def __init__(self, message: str, *, path: str | None = None,
+                 line: int | None = None, item: str | None = None):
+        self.path, self.line, self.item, self.reason = path, line, item, message
+        super().__init__(where(path, line) + message)
+
+
+class SpaceframeWarning(UserWarning):
+    """Something the user should know that does not stop the audit."""

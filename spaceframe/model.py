@@ -1,0 +1,166 @@
+"""The frame: joint coordinates, member ends, restraints and their ids.
+
+A :class:`Frame` is a few NumPy arrays and id lists, nothing more.  Readers in
+:mod:`spaceframe.io` build it; analyses in :mod:`spaceframe.analysis` read it.
+It never changes after it is made.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping, Sequence
+
+import numpy as np
+
+from .errors import ModelError
+
+__all__ = ["Frame", "UNITS"]
+
+#: Units of length a model may declare.  Results never depend on them.
+UNITS = ("m", "mm", "cm", "ft", "in")
+
+
+@dataclass(frozen=True, eq=False)
+class Frame:
+    """An idealised pin-jointed frame.
+
+    Attributes
+    ----------
+    joint_ids : tuple of str, length n
+        Joint ids, in the order of the rows of ``coords``.
+    coords : (n, dimension) float
+        Joint coordinates, in ``units``.
+    member_ids : tuple of str, length m
+        Member ids, in the order of the rows of ``ends``.
+    ends : (m, 2) int
+        Indices into ``joint_ids`` of each member's two end joints.
+    restraint_joint : (k,) int
+        For each restrained direction, the index of its joint.  A pin in space
+        is three rows, one per axis.
+    restraint_dir : (k, dimension) float
+        For each restrained direction, a unit vector along it.  The directions
+        at one joint are linearly independent (readers merge or reject the
+        rest).
+    dimension : int
+        3 for a space frame, 2 for a plane frame analysed in its own plane.
+    name : str
+        A title for reports.
+    units : str
+        Unit of length of ``coords``, one of :data:`UNITS`.
+    source : str or None
+        The file the frame was read from, for messages.
+    lines : mapping of (str, str) to int
+        Where known, the 1-based line in ``source`` of each item, keyed by
+        ``("joint", id)``, ``("member", id)`` or ``("support", id)``.
+    """
+
+    joint_ids: tuple[str, ...]
+    coords: np.ndarray
+    member_ids: tuple[str, ...]
+    ends: np.ndarray
+    restraint_joint: np.ndarray
+    restraint_dir: np.ndarray
+    dimension: int = 3
+    name: str = ""
+    units: str = "m"
+    source: str | None = None
+    lines: Mapping[tuple[str, str], int] = field(default_factory=dict)
+
+    def __post_init__(self):
+        d = self.dimension
+        if d not in (2, 3):
+            raise ModelError(f"dimension must be 2 or 3, not {d!r}", path=self.source)
+        coords = np.ascontiguousarray(self.coords, dtype=float).reshape(-1, d)
+        ends = np.ascontiguousarray(self.ends, dtype=np.int64).reshape(-1, 2)
+        rj = np.ascontiguousarray(self.restraint_joint, dtype=np.int64).reshape(-1)
+        rd = np.ascontiguousarray(self.restraint_dir, dtype=float).reshape(-1, d)
+        if len(self.joint_ids) != len(coords):
+            raise ModelError(f"{len(self.joint_ids)} joint ids for {len(coords)} coordinate rows",
+                             path=self.source)
+        if len(self.member_ids) != len(ends):
+            raise ModelError(f"{len(self.member_ids)} member ids for {len(ends)} end pairs",
+                             path=self.source)
+        if len(rj) != len(rd):
+            raise ModelError("restraint_joint and restraint_dir differ in length", path=self.source)
+        n = len(coords)
+        if ends.size and (ends.min() < 0 or ends.max() >= n):
+            raise ModelError("a member end index is outside the joint list", path=self.source)
+        if rj.size and (rj.min() < 0 or rj.max() >= n):
+            raise ModelError("a restraint joint index is outside the joint list", path=self.source)
+        for name, arr in (("coords", coords), ("ends", ends), ("restraint_joint", rj),
+                          ("restraint_dir", rd)):
+            arr.setflags(write=False)
+            object.__setattr__(self, name, arr)
+        object.__setattr__(self, "joint_ids", tuple(self.joint_ids))
+        object.__setattr__(self, "member_ids", tuple(self.member_ids))
+        object.__setattr__(self, "lines", MappingProxyType(dict(self.lines)))
+
+    @property
+    def n_joints(self) -> int:
+        return len(self.joint_ids)
+
+    @property
+    def n_members(self) -> int:
+        return len(self.member_ids)
+
+    @property
+    def n_restraints(self) -> int:
+        """Number of independent restrained directions."""
+        return len(self.restraint_joint)
+
+    def lengths(self) -> np.ndarray:
+        """Member lengths, ``(m,) float``, in ``units``."""
+        return np.linalg.norm(self.coords[self.ends[:, 1]] - self.coords[self.ends[:, 0]], axis=1)
+
+    def size(self) -> float:
+        """Diagonal of the joints' bounding box (0 for fewer than two distinct joints)."""
+        if self.n_joints == 0:
+            return 0.0
+        return float(np.linalg.norm(self.coords.max(axis=0) - self.coords.min(axis=0)))
+
+    def line_of(self, kind: str, item: str) -> int | None:
+        """The source line of ``(kind, item)``, or None where it is not known."""
+        return self.lines.get((kind, item))
+
+    @classmethod
+    def from_arrays(cls, coords, ends, *, joint_ids: Sequence[str] | None = None,
+                    member_ids: Sequence[str] | None = None,
+                    supports: Mapping[int, object] | None = None,
+                    dimension: int | None = None, **kw) -> "Frame":
+        """Build a frame from arrays, naming joints ``J1…`` and members ``M1…`` by default.
+
+        Parameters
+        ----------
+        coords : (n, d) array_like of float
+        ends : (m, 2) array_like of int
+            Joint indices of each member.
+        supports : mapping of int to str or (k, d) array_like, optional
+            Joint index → support: ``"pin"``, letters of held axes (``"xz"``)
+            or a list of direction vectors held.
+        dimension : int, optional
+            Defaults to the number of columns of ``coords``.
+
+        Examples
+        --------
+        >>> f = Frame.from_arrays([[0, 0], [1, 0], [0, 1]], [[0, 1], [1, 2], [2, 0]],
+        ...                       supports={0: "pin", 1: "y"})
+        >>> f.n_joints, f.n_members, f.n_restraints
+        (3, 3, 3)
+        """
+        from .supports import restraint_rows
+
+        coords = np.asarray(coords, dtype=float)
+        dimension = dimension or coords.shape[1]
+        n, m = len(coords), len(np.asarray(ends).reshape(-1, 2))
+        joint_ids = tuple(joint_ids) if joint_ids is not None else tuple(f"J{i + 1}" for i in range(n))
+        member_ids = tuple(member_ids) if member_ids is not None else tuple(f"M{i + 1}" for i in range(m))
+        rj, rd = [], []
+        for j, spec in (supports or {}).items():
+            rows = restraint_rows(spec, dimension, joint=joint_ids[j])
+            rj.extend([j] * len(rows))
+            rd.extend(rows)
+        return cls(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
+                   restraint_joint=np.array(rj, dtype=np.int64),
+                   restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
+                   dimension=dimension, **kw)

@@ -1,0 +1,54 @@
+"""Every tolerance spaceframe uses, in one place, with the inequality it tests.
+
+All tests are relative, so an audit gives the same answer whatever the unit
+of length (mm or m) and whatever the size of the frame.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Tolerances", "DEFAULT"]
+
+
+@dataclass(frozen=True)
+class Tolerances:
+    """Tolerances of the model checks and of the rank decision.
+
+    Attributes
+    ----------
+    rank : float
+        A singular value ``s`` of the compatibility matrix (rows are member
+        direction cosines, so the matrix is dimensionless) is judged zero when
+        ``s <= rank * s_max``.  Default ``1e-6``.  Why: a zero singular value
+        comes out of the sparse engine near ``sqrt(eps) * s_max`` (about
+        ``1.5e-8 * s_max``, because it works with the squared matrix), while
+        the smallest non-zero singular value of a well-made double-layer grid
+        falls with size to about ``7e-5 * s_max`` at 100,000 members and an
+        extrapolated ``7e-6 * s_max`` at 1,000,000.  ``1e-6`` sits between.
+    narrow_gap : float
+        A warning is given when the smallest singular value judged non-zero
+        is less than ``narrow_gap`` times the largest judged zero (or, when
+        nothing is judged zero, than ``narrow_gap * rank * s_max``).
+        Default ``100``: the decision then rests on less than two decades.
+    coincident : float
+        Two joints are reported as coincident when their distance is
+        ``<= coincident * size``, ``size`` being the diagonal of the model's
+        bounding box.  Default ``1e-9``.
+    short_member : float
+        A member is rejected as of zero length when its length is
+        ``<= short_member * size``.  Default ``1e-9``.
+    restraint_dependence : float
+        Restraint directions at one joint count as independent while the
+        smallest singular value of their unit vectors exceeds this.
+        Default ``1e-9``.
+    """
+
+    rank: float = 1e-6
+    narrow_gap: float = 100.0
+    coincident: float = 1e-9
+    short_member: float = 1e-9
+    restraint_dependence: float = 1e-9
+
+
+DEFAULT = Tolerances()
