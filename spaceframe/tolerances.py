@@ -31,6 +31,11 @@ class Tolerances:
         is less than ``narrow_gap`` times the largest judged zero (or, when
         nothing is judged zero, than ``narrow_gap * rank * s_max``).
         Default ``100``: the decision then rests on less than two decades.
+    near_threshold : float
+        A warning is also given when a singular value on either side of the
+        decision lies within this factor of the threshold:
+        ``rank / near_threshold < s / s_max < rank * near_threshold``.
+        Default ``2``.
     coincident : float
         Two joints are reported as coincident when their distance is
         ``<= coincident * size``, ``size`` being the diagonal of the model's
@@ -46,6 +51,7 @@ class Tolerances:
 
     rank: float = 1e-6
     narrow_gap: float = 100.0
+    near_threshold: float = 2.0
     coincident: float = 1e-9
     short_member: float = 1e-9
     restraint_dependence: float = 1e-9

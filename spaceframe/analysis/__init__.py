@@ -1,0 +1,1 @@
+"""Analyses of a frame: equilibrium matrix, rank and null spaces, audit."""

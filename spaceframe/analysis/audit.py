@@ -1,0 +1,153 @@
+"""The stability audit: counts, mechanisms and states of self-stress of a frame."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import SpaceframeError
+from ..model import Frame
+from ..results import AuditResult, RankGap
+from ..tolerances import DEFAULT, Tolerances
+from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
+from .nullspace import canonical_basis, decide_rank
+
+__all__ = ["audit"]
+
+
+def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
+          tol: Tolerances = DEFAULT) -> AuditResult:
+    """Audit the stability of a pin-jointed frame.
+
+    The mechanisms are the joint displacements that stretch no member, the
+    null space of the compatibility matrix ``C``; the states of self-stress
+    are the member forces in equilibrium with no load, the null space of the
+    equilibrium matrix ``C.T`` (Pellegrino & Calladine [1]_).  Their numbers
+    obey the extended Maxwell rule (Calladine [2]_) exactly::
+
+        mechanisms - self_stress_states = dimension * joints - restraints - members
+
+    The mechanisms are split into the rigid-body motions of the whole frame
+    that the supports permit and the internal mechanisms, which change its
+    shape.
+
+    Parameters
+    ----------
+    frame : Frame
+    self_stress_cap : int, keyword-only
+        Compute at most this many states of self-stress (default 20); their
+        number is always exact.  Frames with more states report the first
+        ``self_stress_cap`` and say so.
+    method : {"auto", "dense", "sparse"}, keyword-only
+        The rank engine (see :mod:`spaceframe.analysis.nullspace`).
+    tol : Tolerances, keyword-only
+        ``tol.rank`` is the relative singular value threshold.
+
+    Returns
+    -------
+    AuditResult
+
+    Raises
+    ------
+    SpaceframeError
+        When the engine cannot reach a consistent decision.
+
+    Examples
+    --------
+    Two collinear bars between two pins, in the plane: one mechanism (the
+    middle joint moves sideways) and one state of self-stress.
+
+    >>> from spaceframe import Frame, audit
+    >>> f = Frame.from_arrays([[0, 0], [1, 0], [2, 0]], [[0, 1], [1, 2]],
+    ...                       supports={0: "pin", 2: "pin"})
+    >>> r = audit(f)
+    >>> r.mechanisms, r.self_stress_states, r.maxwell
+    (1, 1, 0)
+
+    Notes
+    -----
+    The cost is that of :func:`spaceframe.analysis.nullspace.decide_rank`.
+
+    References
+    ----------
+    .. [1] S. Pellegrino and C. R. Calladine, "Matrix analysis of statically
+       and kinematically indeterminate frameworks", Int. J. Solids Struct.
+       22(4), 409-428, 1986.
+    .. [2] C. R. Calladine, "Buckminster Fuller's 'tensegrity' structures and
+       Clerk Maxwell's rules for the construction of stiff frames", Int. J.
+       Solids Struct. 14(2), 161-172, 1978.
+    """
+    d = frame.dimension
+    dofs = free_dofs(frame)
+    C = compatibility_matrix(frame, dofs)
+    decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
+                           method=method, tol=tol)
+    k = decision.mechanisms.shape[1]
+    rigid = rigid_body_motions(frame, dofs, tol=tol)
+    internal, rigid = _split(decision.mechanisms, rigid)
+
+    mech = np.hstack([canonical_basis(internal), canonical_basis(rigid)])
+    modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))
+    if k:
+        modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
+    stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
+    q = stress.shape[0]
+
+    members, restraints, joints = frame.n_members, frame.n_restraints, frame.n_joints
+    mechanisms = k
+    s = decision.self_stress_count
+    if mechanisms - s != d * joints - restraints - members:  # pragma: no cover - by construction
+        raise SpaceframeError("internal error: the extended Maxwell rule does not hold")
+
+    gap, warnings = _gap(decision, tol)
+    if q < s and self_stress_cap:
+        warnings.append(f"{s} states of self-stress: the first {q} are listed "
+                        f"(raise the cap to see more)")
+    return AuditResult(
+        frame=frame, dimension=d, joints=joints, members=members, restraints=restraints,
+        maxwell=members + restraints - d * joints, rank=decision.rank, mechanisms=mechanisms,
+        rigid_body_modes=rigid.shape[1], internal_mechanisms=internal.shape[1],
+        self_stress_states=s, mode_displacements=modes,
+        mode_kinds=("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1],
+        self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
+        warnings=tuple(warnings))
+
+
+def _split(mech: np.ndarray, rigid: np.ndarray):
+    """Split the mechanism space into internal mechanisms and rigid-body motions.
+
+    ``rigid`` (orthonormal) lies inside the span of ``mech`` in exact
+    arithmetic; the internal part is the orthogonal complement of it there.
+    """
+    k, r = mech.shape[1], rigid.shape[1]
+    if r == 0:
+        return mech, rigid
+    if r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid)) > 1e-6 * np.sqrt(r):
+        raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
+                              "not found among the mechanisms; rerun with method='dense' and "
+                              "report the model")
+    rest = mech - rigid @ (rigid.T @ mech)
+    u, _, _ = np.linalg.svd(rest, full_matrices=False)
+    return u[:, :k - r], rigid
+
+
+def _gap(decision, tol: Tolerances):
+    s_max = decision.s_max
+    rel = (lambda v: None if v is None or s_max == 0 else v / s_max)
+    lz, sn = rel(decision.largest_zero), rel(decision.smallest_nonzero)
+    ratio = None
+    if lz is not None and sn is not None:
+        ratio = float("inf") if lz == 0 else sn / lz
+    warnings = []
+    narrow = False
+    if ratio is not None and ratio < tol.narrow_gap:
+        narrow = True
+        warnings.append(f"the rank decision is not clear-cut: the smallest singular value judged "
+                        f"non-zero is only {ratio:.3g} times the largest judged zero; the frame "
+                        f"may be nearly a mechanism, or nearly stiff")
+    for label, v in (("judged zero", lz), ("judged non-zero", sn)):
+        if v is not None and tol.rank / tol.near_threshold < v < tol.rank * tol.near_threshold:
+            narrow = True
+            warnings.append(f"a singular value {label} ({v:.3g} of the largest) lies within a "
+                            f"factor {tol.near_threshold:g} of the threshold {tol.rank:g}")
+    return RankGap(tolerance=tol.rank, largest_zero=lz, smallest_nonzero=sn, ratio=ratio,
+                   method=decision.method, narrow=narrow), warnings

@@ -1,0 +1,28 @@
+"""The ``spaceframe`` command: one group, one module per subcommand.
+
+Library errors become clean messages and exit status 2 here, at the boundary
+only; ``--debug`` shows the traceback instead.
+"""
+
+from __future__ import annotations
+
+import click
+
+from .. import __version__
+__all__ = ["main"]
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="spaceframe")
+def main():
+    """Stability audit of pin-jointed frames: is the frame, as it will stand, held in every
+    direction?
+
+    Idealised pin-jointed model only; results must be checked by a competent engineer
+    against the codes in force.
+    """
+
+
+from .audit import audit_command  # noqa: E402  (subcommands register on the group)
+
+main.add_command(audit_command)

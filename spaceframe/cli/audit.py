@@ -1,0 +1,61 @@
+"""``spaceframe audit MODEL``: counts, mechanisms, self-stress and a verdict."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+import click
+
+from .common import debug_option, run_guarded
+
+__all__ = ["audit_command"]
+
+EXIT_HELD = 0
+EXIT_MECHANISM = 1
+
+
+@click.command("audit")
+@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@click.option("--json", "as_json", is_flag=True,
+              help="Print one JSON document on stdout (warnings go to stderr).")
+@click.option("--self-stress", "self_stress", default="20", show_default=True, metavar="N|all",
+              help="How many states of self-stress to compute and list (their number is "
+                   "always exact).")
+@click.option("--method", type=click.Choice(["auto", "dense", "sparse"]), default="auto",
+              show_default=True, help="Rank engine: dense SVD for small frames, sparse for large.")
+@click.option("--all", "show_all", is_flag=True, help="List every mode and state in the text.")
+@debug_option
+def audit_command(model, as_json, self_stress, method, show_all, debug):
+    """Audit the stability of the frame in MODEL (.toml or .json).
+
+    Exit status: 0 when the frame is held (no mechanism), 1 when mechanisms are
+    found, 2 for bad input or usage.
+    """
+    def job():
+        from .. import audit, load
+        from ..errors import SpaceframeError
+        from ..views.text import render_audit
+
+        if self_stress == "all":
+            cap = sys.maxsize
+        else:
+            try:
+                cap = int(self_stress)
+                if cap < 0:
+                    raise ValueError
+            except ValueError:
+                raise SpaceframeError(f"--self-stress takes a whole number >= 0 or 'all', "
+                                      f"not {self_stress!r}") from None
+        frame = load(model)
+        result = audit(frame, self_stress_cap=cap, method=method)
+        if as_json:
+            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+        else:
+            many = sys.maxsize if show_all else 8
+            click.echo(render_audit(result, max_modes=many,
+                                    max_entries=sys.maxsize if show_all else 6), nl=False)
+        return result
+
+    result = run_guarded(job, debug=debug)
+    sys.exit(EXIT_HELD if result.stable else EXIT_MECHANISM)

@@ -1,0 +1,53 @@
+"""What every subcommand shares: error handling, warnings to stderr, shared options."""
+
+from __future__ import annotations
+
+import sys
+import warnings
+
+import click
+
+from ..errors import SpaceframeError, SpaceframeWarning
+
+__all__ = ["run_guarded", "debug_option", "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
+
+EXIT_BAD_INPUT = 2
+EXIT_INTERNAL = 3
+
+debug_option = click.option("--debug", is_flag=True,
+                            help="Show the Python traceback of an error.")
+
+
+def run_guarded(job, *, debug: bool = False):
+    """Run ``job()`` with warnings sent to stderr and errors turned into exit codes.
+
+    A :class:`SpaceframeError` prints ``spaceframe: error: <message>`` and
+    exits 2; any other exception is an internal error (exit 3) with a request
+    to report it.  With ``debug`` both show their traceback.
+    """
+    def show(message, category, filename, lineno, file=None, line=None):
+        text = str(message)
+        click.echo(f"spaceframe: warning: {text}", err=True)
+
+    old = warnings.showwarning
+    warnings.showwarning = show
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("always", SpaceframeWarning)
+            return job()
+    except SpaceframeError as exc:
+        if debug:
+            raise
+        click.echo(f"spaceframe: error: {exc}", err=True)
+        sys.exit(EXIT_BAD_INPUT)
+    except (KeyboardInterrupt, click.exceptions.Exit, click.ClickException, SystemExit):
+        raise
+    except Exception as exc:  # a bug, not the user's fault
+        if debug:
+            raise
+        click.echo(f"spaceframe: internal error: {type(exc).__name__}: {exc}\n"
+                   f"  This is a fault in spaceframe, not in your model. Rerun with --debug and "
+                   f"report the traceback with the model file.", err=True)
+        sys.exit(EXIT_INTERNAL)
+    finally:
+        warnings.showwarning = old

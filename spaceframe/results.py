@@ -1,0 +1,183 @@
+"""The result of a stability audit, and its JSON form.
+
+:class:`AuditResult` is frozen; views (text, JSON, pictures) only read it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .model import Frame
+
+__all__ = ["AuditResult", "RankGap", "CAUTION"]
+
+#: The caution every verdict carries.
+CAUTION = ("This is a check of an idealised pin-jointed model only: it does not size members or "
+           "connections. Results must be checked by a competent engineer against the codes in "
+           "force where the frame will be built.")
+
+#: Entries of a mode or state below this fraction of its largest are left out of the JSON.
+REPORT_FLOOR = 1e-6
+
+
+@dataclass(frozen=True)
+class RankGap:
+    """How clear-cut the rank decision was, relative to the largest singular value.
+
+    Attributes
+    ----------
+    tolerance : float
+        The relative threshold used: ``s <= tolerance * s_max`` is zero.
+    largest_zero : float or None
+        Largest singular value judged zero, divided by ``s_max``.
+    smallest_nonzero : float or None
+        Smallest singular value judged non-zero, divided by ``s_max``.
+    ratio : float or None
+        ``smallest_nonzero / largest_zero`` (None unless both exist; infinite
+        when the largest zero is exactly 0).
+    method : str
+        The engine: ``"dense"`` or ``"sparse"``.
+    narrow : bool
+        True when the decision rests on a narrow margin (see
+        :class:`spaceframe.tolerances.Tolerances`).
+    """
+
+    tolerance: float
+    largest_zero: float | None
+    smallest_nonzero: float | None
+    ratio: float | None
+    method: str
+    narrow: bool
+
+
+@dataclass(frozen=True, eq=False)
+class AuditResult:
+    """Counts, modes and states of one frame.
+
+    Attributes
+    ----------
+    frame : Frame
+        The frame audited.
+    dimension, joints, members, restraints : int
+    maxwell : int
+        ``members + restraints - dimension * joints`` (Maxwell's counting rule).
+    rank : int
+        Rank of the equilibrium matrix.
+    mechanisms : int
+        Independent inextensional modes, ``dimension * joints - restraints - rank``.
+    rigid_body_modes : int
+        Rigid-body motions of the whole frame that the supports permit.
+    internal_mechanisms : int
+        ``mechanisms - rigid_body_modes``.
+    self_stress_states : int
+        ``members - rank``, always counted exactly.
+    mode_displacements : (mechanisms, joints, dimension) float
+        A basis of the mechanisms: internal mechanisms first, then the
+        rigid-body modes; each mode scaled so its largest joint movement is 1.
+    mode_kinds : tuple of str
+        ``"internal"`` or ``"rigid-body"`` for each mode.
+    self_stress_forces : (q, members) float
+        ``q`` independent states of self-stress (tension positive), each
+        scaled so its largest force is 1 in magnitude.
+    self_stress_complete : bool
+        True when ``q == self_stress_states``; otherwise a cap applied.
+    gap : RankGap
+    warnings : tuple of str
+    """
+
+    frame: Frame
+    dimension: int
+    joints: int
+    members: int
+    restraints: int
+    maxwell: int
+    rank: int
+    mechanisms: int
+    rigid_body_modes: int
+    internal_mechanisms: int
+    self_stress_states: int
+    mode_displacements: np.ndarray
+    mode_kinds: tuple[str, ...]
+    self_stress_forces: np.ndarray
+    self_stress_complete: bool
+    gap: RankGap
+    warnings: tuple[str, ...] = field(default_factory=tuple)
+
+    @property
+    def stable(self) -> bool:
+        """No mechanism at all: the supported frame is kinematically determinate."""
+        return self.mechanisms == 0
+
+    @property
+    def rigid(self) -> bool:
+        """No internal mechanism: the frame holds its shape (it may still move as one body)."""
+        return self.internal_mechanisms == 0
+
+    def mode_joints(self, i: int, *, floor: float = REPORT_FLOOR) -> list[tuple[str, np.ndarray]]:
+        """Joints that move in mode ``i``, largest movement first, with their vectors."""
+        u = self.mode_displacements[i]
+        size = np.linalg.norm(u, axis=1)
+        order = np.argsort(-size, kind="stable")
+        return [(self.frame.joint_ids[j], u[j]) for j in order if size[j] > floor]
+
+    def state_members(self, i: int, *, floor: float = REPORT_FLOOR) -> list[tuple[str, float]]:
+        """Members that carry state ``i``, largest force first, with their forces."""
+        t = self.self_stress_forces[i]
+        order = np.argsort(-np.abs(t), kind="stable")
+        return [(self.frame.member_ids[k], float(t[k])) for k in order if abs(t[k]) > floor]
+
+    def to_dict(self) -> dict:
+        """The JSON document of the audit (plain Python types, deterministic)."""
+        f = self.frame
+        modes = []
+        for i, kind in enumerate(self.mode_kinds):
+            u = self.mode_displacements[i]
+            moving = np.flatnonzero(np.linalg.norm(u, axis=1) > REPORT_FLOOR)
+            modes.append({
+                "kind": kind,
+                "displacements": {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving},
+            })
+        states = []
+        for t in self.self_stress_forces:
+            carrying = np.flatnonzero(np.abs(t) > REPORT_FLOOR)
+            states.append({"forces": {f.member_ids[k]: _num(t[k]) for k in carrying}})
+        g = self.gap
+        return {
+            "name": f.name,
+            "source": f.source,
+            "units": f.units,
+            "dimension": self.dimension,
+            "joints": self.joints,
+            "members": self.members,
+            "restraints": self.restraints,
+            "maxwell": self.maxwell,
+            "rank": self.rank,
+            "mechanisms": self.mechanisms,
+            "rigid_body_modes": self.rigid_body_modes,
+            "internal_mechanisms": self.internal_mechanisms,
+            "self_stress_states": self.self_stress_states,
+            "stable": self.stable,
+            "rigid": self.rigid,
+            "mechanism_modes": modes,
+            "self_stress_modes": states,
+            "self_stress_modes_complete": self.self_stress_complete,
+            "self_stress_modes_cap": None if self.self_stress_complete else len(states),
+            "rank_decision": {
+                "method": g.method,
+                "tolerance": g.tolerance,
+                "largest_zero": g.largest_zero,
+                "smallest_nonzero": g.smallest_nonzero,
+                "ratio": None if g.ratio is None or not np.isfinite(g.ratio) else g.ratio,
+                "narrow": g.narrow,
+            },
+            "warnings": list(self.warnings),
+            "caution": CAUTION,
+        }
+
+
+def _num(x: float) -> float:
+    """Round for output: six decimals on values scaled to at most 1."""
+    v = round(float(x), 6)
+    return 0.0 if v == 0 else v

@@ -1,0 +1,1 @@
+"""Views of audit results: they only read results."""
