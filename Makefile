@@ -1,0 +1,30 @@
+# Each target does its own set-up: a virtual environment in .venv with the
+# package installed (editable) and what the tests need.
+PYTHON ?= python3
+VENV   := .venv
+BIN    := $(VENV)/bin
+STAMP  := $(VENV)/.installed
+
+.PHONY: demo test bench clean
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(BIN)/python -m pip install --quiet --upgrade pip
+	$(BIN)/python -m pip install --quiet -e '.[test]'
+	touch $(STAMP)
+
+## demo: audit the demo models (a held frame, then one with a sway mechanism)
+demo: $(STAMP)
+	$(BIN)/spaceframe audit models/plant_platform.toml
+	$(BIN)/spaceframe audit models/canopy_sway.toml; test $$? -eq 1
+
+## test: run the test suite
+test: $(STAMP)
+	$(BIN)/python -m pytest -q
+
+## bench: the speed and memory benchmark (prints a table; minutes, not seconds)
+bench: $(STAMP)
+	$(BIN)/python benchmarks/bench_audit.py
+
+clean:
+	rm -rf $(VENV) build *.egg-info spaceframe.egg-info
