@@ -47,7 +47,7 @@ def restraint_rows(spec, dimension: int, *, joint: str, path: str | None = None,
         For an unknown code, a vector of the wrong length, or a zero vector.
     """
     axes = AXES[:dimension]
-    where = dict(path=path, line=line, item=joint)
+    at = dict(path=path, line=line, item=joint)
     if isinstance(spec, str):
         code = spec.strip().lower()
         if code == "pin":
@@ -59,7 +59,7 @@ def restraint_rows(spec, dimension: int, *, joint: str, path: str | None = None,
                 f"(the axes held), or a list of direction vectors such as [[0, 0, 1]]"
                 if dimension == 3 else
                 f"support on joint {joint!r}: unknown code {spec!r}; write {allowed} "
-                f"(the axes held), or a list of direction vectors such as [[0, 1]]", **where)
+                f"(the axes held), or a list of direction vectors such as [[0, 1]]", **at)
         if len(set(code)) != len(code):
             warnings.warn(f"{where(path, line)}support on joint {joint!r}: axis letter "
                           f"repeated in {spec!r}; each axis is held once", SpaceframeWarning,
@@ -69,19 +69,19 @@ def restraint_rows(spec, dimension: int, *, joint: str, path: str | None = None,
         vecs = np.array(spec, dtype=float)
     except (TypeError, ValueError):
         raise ModelError(f"support on joint {joint!r}: {spec!r} is neither a code nor a list of "
-                         f"direction vectors of {dimension} numbers", **where) from None
+                         f"direction vectors of {dimension} numbers", **at) from None
     if vecs.ndim == 1 and vecs.size == dimension:
         vecs = vecs[None, :]
     if vecs.ndim != 2 or vecs.shape[1] != dimension or len(vecs) == 0:
         raise ModelError(f"support on joint {joint!r}: each direction vector needs {dimension} "
-                         f"numbers, e.g. {[[0.0] * (dimension - 1) + [1.0]]}", **where)
+                         f"numbers, e.g. {[[0.0] * (dimension - 1) + [1.0]]}", **at)
     if not np.all(np.isfinite(vecs)):
-        raise ModelError(f"support on joint {joint!r}: a direction vector is not finite", **where)
+        raise ModelError(f"support on joint {joint!r}: a direction vector is not finite", **at)
     norms = np.linalg.norm(vecs, axis=1)
     if np.any(norms == 0):
         raise ModelError(f"support on joint {joint!r}: direction vector "
                          f"{vecs[np.argmin(norms)].tolist()} is zero; give the direction held, "
-                         f"e.g. [0, 0, 1] for vertical", **where)
+                         f"e.g. [0, 0, 1] for vertical", **at)
     unit = vecs / norms[:, None]
     kept: list[np.ndarray] = []
     for v in unit:

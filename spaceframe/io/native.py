@@ -1,0 +1,836 @@
+"""The native model format: TOML, or the same structure written as JSON.
+
+A model file, in TOML::
+
+    name = "Plant platform, south bay"
+    units = "m"          # m, mm, cm, ft or in; results do not depend on it
+    dimension = 3        # 3 = space frame; 2 = plane frame, coordinates [x, y]
+
+    [joints]             # id = [x, y, z]
+    A = [0.0, 0.0, 0.0]
+    B = [4.0, 0.0, 0.0]
+    C = [2.0, 0.0, 3.0]
+
+    [members]            # id = [end, end]
+    AB = ["A", "B"]
+    BC = ["B", "C"]
+    CA = ["C", "A"]
+
+    [supports]           # joint = what is held
+    A = "pin"            # every translation held
+    B = "yz"             # the axes held
+    C = [[0.0, 0.6, 0.8]]  # or direction vectors held (need not be unit length)
+
+The JSON form is one object with the same keys: ``{"name": ..., "joints":
+{"A": [0, 0, 0], ...}, "members": {"AB": ["A", "B"], ...}, "supports": {...}}``.
+
+Ids are strings.  ``dimension`` defaults to 3, ``units`` to ``"m"`` and
+``name`` to the file name without its suffix.  The top-level keys
+``groups``, ``tags``, ``properties``, ``loads`` and ``notes`` are reserved for
+later versions and accepted without a word; any other unknown key draws a
+:class:`SpaceframeWarning`.
+
+Reading is built for large models: arrays are made by NumPy from the parsed
+lists, ids are mapped to indices through one dict, and the type checks run
+over whole lists at C speed.  Source lines are never computed for a valid
+model: the parsers give none for values, so the text is searched for the one
+item a message is about, only when a message is raised.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import difflib
+import gc
+import json
+import os
+import re
+import tempfile
+import tomllib
+import warnings
+from itertools import chain
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import ModelError, SpaceframeWarning, where
+from ..model import UNITS, Frame
+from ..supports import AXES, restraint_rows
+from ..tolerances import DEFAULT, Tolerances
+from ..validation import check_frame
+
+__all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_json",
+           "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
+
+#: Top-level keys the format defines.
+KEYS = ("name", "units", "dimension", "joints", "members", "supports")
+#: Top-level keys reserved for later versions: accepted and ignored.
+RESERVED_KEYS = ("groups", "tags", "properties", "loads", "notes")
+
+_KNOWN = frozenset(KEYS + RESERVED_KEYS)
+_SECTION = {"joint": "joints", "member": "members", "support": "supports"}
+_NUMBER = (int, float)
+
+
+# --------------------------------------------------------------------- reading
+
+def read_toml(path, *, tol: Tolerances = DEFAULT) -> Frame:
+    """Read a TOML model file into a checked :class:`Frame`.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The model file.
+    tol : Tolerances, optional
+        Passed to the support and geometry checks.
+
+    Returns
+    -------
+    frame : Frame
+
+    Raises
+    ------
+    ModelError
+        For a file that cannot be read, is not TOML, or does not describe a
+        frame (see :func:`frame_from_document`).  A syntax error gives the
+        line and column the parser reports.
+    """
+    source = os.fspath(path)
+    text = _read_text(source)
+    try:
+        with _collector_paused():
+            doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise _toml_syntax_error(str(exc), text, source) from None
+    return frame_from_document(doc, path=source, text=text, tol=tol, syntax="toml")
+
+
+def read_json(path, *, tol: Tolerances = DEFAULT) -> Frame:
+    """Read a JSON model file (the structure of the TOML format) into a :class:`Frame`.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The model file.
+    tol : Tolerances, optional
+        Passed to the support and geometry checks.
+
+    Returns
+    -------
+    frame : Frame
+
+    Raises
+    ------
+    ModelError
+        For a file that cannot be read, is not JSON, repeats a key in an
+        object, or does not describe a frame (see :func:`frame_from_document`).
+    """
+    source = os.fspath(path)
+    text = _read_text(source)
+    repeats: list[tuple[dict, str]] = []
+
+    def no_repeats(pairs):
+        obj = dict(pairs)
+        if len(obj) != len(pairs):
+            seen = set()
+            for key, _ in pairs:
+                if key in seen:
+                    repeats.append((obj, key))
+                    break
+                seen.add(key)
+        return obj
+
+    try:
+        with _collector_paused():
+            doc = json.loads(text, object_pairs_hook=no_repeats)
+    except json.JSONDecodeError as exc:
+        raise _json_syntax_error(exc, text, source) from None
+    if repeats:
+        raise _json_repeat_error(doc, repeats[0], text, source)
+    return frame_from_document(doc, path=source, text=text, tol=tol, syntax="json")
+
+
+@contextlib.contextmanager
+def _collector_paused():
+    """Pause Python's cyclic garbage collector while a parser builds a document.
+
+    A parsed model is a tree of dicts and lists (no reference cycles), yet the
+    hundreds of thousands of lists it holds trigger repeated collections that
+    walk every one of them: pausing the collector cuts the TOML parser's time
+    for a 100,000-member model by about a third.  It is restored as it was.
+    """
+    was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
+def frame_from_document(doc: dict, *, path=None, text: str | None = None,
+                        tol: Tolerances = DEFAULT, syntax: str | None = None) -> Frame:
+    """Check a parsed model document and build a checked :class:`Frame` from it.
+
+    Parameters
+    ----------
+    doc : dict
+        The parsed file: top-level keys ``name``, ``units``, ``dimension``,
+        ``joints``, ``members``, ``supports`` (see the module docstring).
+    path : str or os.PathLike, optional
+        The file it came from, for messages and the default name.
+    text : str, optional
+        The file's text, searched for an item's line when a message needs it.
+    tol : Tolerances, optional
+        Passed to :func:`~spaceframe.supports.restraint_rows` and
+        :func:`~spaceframe.validation.check_frame`.
+    syntax : {"toml", "json"}, optional
+        How ``text`` is written; by default ``"json"`` for a path ending in
+        ``.json``, else ``"toml"``.
+
+    Returns
+    -------
+    frame : Frame
+        Checked by :func:`~spaceframe.validation.check_frame`; members given
+        twice are counted once.
+
+    Raises
+    ------
+    ModelError
+        For: no joints; a top-level value of the wrong kind; a dimension
+        other than 2 or 3; an unknown unit; an empty id; coordinates that are
+        missing, not numbers, or of the wrong count for the dimension; a
+        member that is not a list of two joint ids or names an unknown joint;
+        a support on an unknown joint or with an unknown code or a zero
+        direction vector; and every geometric check of ``check_frame``.
+
+    Warns
+    -----
+    SpaceframeWarning
+        For an unknown top-level key (with the nearest known key), and for
+        what ``restraint_rows`` and ``check_frame`` warn about.
+
+    Notes
+    -----
+    Cost O(n + m + k) Python-level work done at C speed (whole-list type
+    checks, one dict for the ids, NumPy for the arrays), plus one call of
+    ``restraint_rows`` per support, plus ``check_frame``.
+    """
+    source = None if path is None else os.fspath(path)
+    if syntax is None:
+        syntax = "json" if source is not None and source.lower().endswith(".json") else "toml"
+    at = _Where(source, text, syntax)
+
+    if not isinstance(doc, dict):
+        raise at.error("the top level of a model must be an object of keys, "
+                       '{"joints": {...}, "members": {...}, "supports": {...}}', line=1)
+    _warn_unknown_keys(doc, at)
+    name = doc.get("name", Path(source).stem if source is not None else "")
+    if not isinstance(name, str):
+        raise at.error(f"name must be text in quotes, e.g. {at.setting('name', 'Roof truss')}; "
+                       f"got {name!r}", "key", "name")
+    units = _units(doc, at)
+    dimension = _dimension(doc, at)
+
+    joints = _section(doc, "joints", at)
+    if not joints:
+        raise at.error(f"the model has no joints; a model needs {at.ref('joints')} "
+                       f"({at.pair('id', '[x, y, z]')}), {at.ref('members')} "
+                       f"({at.pair('id', '[end, end]')}) and {at.ref('supports')} "
+                       f"({at.pair('joint', 'what is held')})",
+                       *(("key", "joints") if "joints" in doc else ()))
+    joint_ids = tuple(joints)
+    coords = _coords(joints, dimension, at)
+    index = dict(zip(joint_ids, range(len(joint_ids))))
+
+    members = _section(doc, "members", at)
+    member_ids = tuple(members)
+    ends = _ends(members, index, at)
+
+    restraint_joint, restraint_dir = _restraints(_section(doc, "supports", at), index,
+                                                 dimension, tol, at)
+    frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
+                  restraint_joint=restraint_joint, restraint_dir=restraint_dir,
+                  dimension=dimension, name=name, units=units, source=source)
+    return check_frame(frame, tol=tol, locate=at.line)
+
+
+class _Where:
+    """Where an item stands in the source text, found only when a message needs it."""
+
+    def __init__(self, source: str | None, text: str | None, syntax: str):
+        self.source, self.text, self.syntax = source, text, syntax
+
+    def line(self, kind: str, item: str) -> int | None:
+        if self.text is None:
+            return None
+        find = json_line if self.syntax == "json" else toml_line
+        return find(self.text, kind, item)
+
+    def error(self, message: str, kind: str | None = None, item: str | None = None, *,
+              line: int | None = None) -> ModelError:
+        if line is None and kind is not None:
+            line = self.line(kind, item)
+        return ModelError(message, path=self.source, line=line,
+                          item=None if kind == "key" else item)
+
+    def warn(self, message: str, kind: str | None = None, item: str | None = None) -> None:
+        line = self.line(kind, item) if kind is not None else None
+        warnings.warn(where(self.source, line) + message, SpaceframeWarning, stacklevel=4)
+
+    def ref(self, section: str) -> str:
+        """How a section is named in this syntax: ``[joints]`` or ``"joints"``."""
+        return f'"{section}"' if self.syntax == "json" else f"[{section}]"
+
+    def pair(self, key: str, value: str) -> str:
+        """How an entry is written in this syntax: ``id = [x, y, z]`` or ``id: [x, y, z]``."""
+        return f"{key}: {value}" if self.syntax == "json" else f"{key} = {value}"
+
+    def setting(self, key: str, value) -> str:
+        """How a top-level setting is written: ``dimension = 2`` or ``"dimension": 2``."""
+        value = json.dumps(value)
+        return f'"{key}": {value}' if self.syntax == "json" else f"{key} = {value}"
+
+
+def _closest(word: str, choices) -> str | None:
+    """The choice nearest to ``word`` (difflib's ratio at least 0.6), or None."""
+    close = difflib.get_close_matches(word, list(choices), n=1)
+    return close[0] if close else None
+
+
+def _did_you_mean(word: str, choices) -> str:
+    """``" (did you mean 'x'?)"`` for the nearest choice, or ``""``."""
+    close = _closest(word, choices)
+    return f" (did you mean {close!r}?)" if close is not None else ""
+
+
+def _warn_unknown_keys(doc: dict, at: _Where) -> None:
+    for key in doc:
+        if key not in _KNOWN:
+            close = _closest(key, KEYS + RESERVED_KEYS)
+            if close is not None:
+                at.warn(f"unknown key {key!r}; did you mean {close!r}? It is ignored.", "key", key)
+            else:
+                at.warn(f"unknown key {key!r} is ignored; the keys of a model are "
+                        f"{', '.join(KEYS)}", "key", key)
+
+
+def _units(doc: dict, at: _Where) -> str:
+    units = doc.get("units", "m")
+    if isinstance(units, str) and units in UNITS:
+        return units
+    hint = ""
+    if isinstance(units, str):
+        lower = {u.lower(): u for u in UNITS}
+        hint = (f" (did you mean {lower[units.lower()]!r}?)" if units.lower() in lower
+                else _did_you_mean(units, UNITS))
+    raise at.error(f"unknown unit {units!r}{hint}; write units as one of "
+                   f"{', '.join(UNITS)} (results do not depend on it), e.g. "
+                   f"{at.setting('units', 'm')}", "key", "units")
+
+
+def _dimension(doc: dict, at: _Where) -> int:
+    dimension = doc.get("dimension", 3)
+    if type(dimension) is int and dimension in (2, 3):
+        return dimension
+    raise at.error(f"dimension must be 2 (a plane frame analysed in its plane, coordinates "
+                   f"[x, y]) or 3 (a space frame, coordinates [x, y, z]), not {dimension!r}; "
+                   f"write {at.setting('dimension', 3)} or {at.setting('dimension', 2)}",
+                   "key", "dimension")
+
+
+def _section(doc: dict, name: str, at: _Where) -> dict:
+    value = doc.get(name, {})
+    if not isinstance(value, dict):
+        shape = {"joints": ("id", "[x, y, z]"), "members": ("id", "[end, end]"),
+                 "supports": ("joint", "what is held")}[name]
+        kind = "an object" if at.syntax == "json" else "a table"
+        raise at.error(f"{name} must be {kind} of {at.pair(*shape)}, written {at.ref(name)}; "
+                       f"got {type(value).__name__}", "key", name)
+    if "" in value:
+        raise at.error(f"an empty id in {at.ref(name)}; every id must have at least one "
+                       f"character: give it one or delete the entry", _SECTION_KIND[name], "")
+    return value
+
+
+_SECTION_KIND = {v: k for k, v in _SECTION.items()}
+
+
+def _coord_example(dimension: int) -> str:
+    return "[x, y, z]" if dimension == 3 else "[x, y]"
+
+
+def _misplaced(key: str, at: _Where) -> str:
+    """A hint for a top-level key written below a section header in TOML, or ``""``."""
+    if key not in _KNOWN or at.syntax != "toml":
+        return ""
+    return (f"; if {key!r} is meant as the model's {key}, move it above the first [section] "
+            f"header, where top-level keys belong")
+
+
+def _coords(joints: dict, dimension: int, at: _Where) -> np.ndarray:
+    """``(n, dimension) float`` from ``{id: [x, y(, z)]}``, or the first bad joint's error."""
+    rows = list(joints.values())
+    if (set(map(type, rows)) <= {list} and set(map(len, rows)) <= {dimension}
+            and set(map(type, chain.from_iterable(rows))) <= set(_NUMBER)):
+        try:
+            return np.array(rows, dtype=float).reshape(len(rows), dimension)
+        except OverflowError:
+            pass
+    raise _bad_joint(joints, dimension, at)
+
+
+def _bad_joint(joints: dict, dimension: int, at: _Where) -> ModelError:
+    example = _coord_example(dimension)
+    for jid, row in joints.items():
+        if not isinstance(row, list):
+            return at.error(f"joint {jid!r}: coordinates must be a list of {dimension} numbers "
+                            f"{example}; got {row!r}{_misplaced(jid, at)}", "joint", jid)
+        if len(row) != dimension:
+            other = 2 if dimension == 3 else 3
+            switch = ""
+            if len(row) == other:
+                kind = "a plane frame" if other == 2 else "a space frame"
+                switch = (f", or for {kind} set {at.setting('dimension', other)} at the top of "
+                          f"the file")
+            got = f"{len(row)} coordinates" if row else "no coordinates"
+            return at.error(f"joint {jid!r} has {got} but the model is {dimension}-dimensional "
+                            f"(dimension = {dimension}); give {dimension} numbers {example}"
+                            f"{switch}", "joint", jid)
+        for axis, value in zip(AXES, row):
+            if type(value) not in _NUMBER:
+                return at.error(f"joint {jid!r}: coordinate {axis} is {value!r}, not a number; "
+                                f"write numbers without quotes, e.g. {jid} = "
+                                f"{[0.0] * dimension}", "joint", jid)
+            try:
+                float(value)
+            except OverflowError:
+                return at.error(f"joint {jid!r}: coordinate {axis} is too large to hold; "
+                                f"check the number", "joint", jid)
+    return at.error("a joint's coordinates could not be read; check [joints]")
+
+
+def _ends(members: dict, index: dict, at: _Where) -> np.ndarray:
+    """``(m, 2) int`` joint indices from ``{id: [end, end]}``, or the first bad member's error."""
+    pairs = list(members.values())
+    m = len(pairs)
+    if (set(map(type, pairs)) <= {list} and set(map(len, pairs)) <= {2}
+            and set(map(type, chain.from_iterable(pairs))) <= {str}):
+        try:
+            return np.fromiter(map(index.__getitem__, chain.from_iterable(pairs)),
+                               dtype=np.int64, count=2 * m).reshape(m, 2)
+        except KeyError:
+            pass
+    raise _bad_member(members, index, at)
+
+
+def _bad_member(members: dict, index: dict, at: _Where) -> ModelError:
+    for mid, pair in members.items():
+        if not (isinstance(pair, list) and len(pair) == 2
+                and all(isinstance(end, str) for end in pair)):
+            example = json.dumps(list(index)[:2] if len(index) >= 2 else ["A", "B"])
+            hint = ""
+            if isinstance(pair, list) and any(isinstance(e, _NUMBER) for e in pair):
+                hint = "; joint ids are text: put them in quotes, e.g. [\"1\", \"2\"]"
+            return at.error(f"member {mid!r} must be a list of two joint ids, e.g. "
+                            f"{mid} = {example}; got {pair!r}{hint}{_misplaced(mid, at)}",
+                            "member", mid)
+        for end in pair:
+            if end not in index:
+                return at.error(f"member {mid!r} names joint {end!r}, which is not in "
+                                f"{at.ref('joints')}; add the joint or correct the id"
+                                f"{_did_you_mean(end, index)}", "member", mid)
+    return at.error("a member's ends could not be read; check [members]")
+
+
+def _restraints(supports: dict, index: dict, dimension: int, tol: Tolerances,
+                at: _Where) -> tuple[np.ndarray, np.ndarray]:
+    """Restraint joint indices ``(k,) int`` and unit directions ``(k, dimension) float``."""
+    joints, blocks, later = [], [], []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        for jid, spec in supports.items():
+            j = index.get(jid)
+            if j is None:
+                raise at.error(f"support on joint {jid!r}, which is not in {at.ref('joints')}; "
+                               f"add the joint or correct the id{_did_you_mean(jid, index)}",
+                               "support", jid)
+            before = len(caught)
+            try:
+                rows = restraint_rows(spec, dimension, joint=jid, tol=tol)
+            except ModelError as exc:
+                raise at.error(exc.reason, "support", jid) from None
+            later.extend((jid, w) for w in caught[before:])
+            joints.append(j)
+            blocks.append(rows)
+    for jid, w in later:     # re-issued with the file and line, under the caller's filters
+        at.warn(str(w.message), "support", jid)
+    if not blocks:
+        return np.zeros(0, dtype=np.int64), np.zeros((0, dimension))
+    counts = [len(b) for b in blocks]
+    return (np.repeat(np.array(joints, dtype=np.int64), counts),
+            np.concatenate(blocks).reshape(-1, dimension))
+
+
+# ------------------------------------------------------------ reading errors
+
+def _read_text(source: str) -> str:
+    try:
+        data = Path(source).read_bytes()
+    except FileNotFoundError:
+        raise ModelError("no such file; check the path and its spelling", path=source) from None
+    except IsADirectoryError:
+        raise ModelError("is a directory, not a model file; give the path of a model file",
+                         path=source) from None
+    except PermissionError:
+        raise ModelError("cannot be read: permission denied; check the file's permissions",
+                         path=source) from None
+    except OSError as exc:
+        raise ModelError(f"cannot be read ({exc.strerror}); check the file", path=source) from None
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = data.count(b"\n", 0, exc.start) + 1
+        raise ModelError(f"is not UTF-8 text (byte {exc.start + 1} cannot be read); a model file "
+                         f"is text: save it as UTF-8", path=source, line=line) from None
+
+
+_TOML_AT = re.compile(r"\s*\((?:at line (\d+), column (\d+)|at end of document)\)\s*$")
+_TOML_TWICE = re.compile(r"Cannot declare \((.*)\) twice")
+
+
+def _toml_syntax_error(message: str, text: str, source: str) -> ModelError:
+    """Turn a tomllib message into ours, with the line and column it gives."""
+    at = _TOML_AT.search(message)
+    reason = message[:at.start()] if at else message
+    if at and at.group(1):
+        line, column = int(at.group(1)), int(at.group(2))
+        place = f"at column {column}"
+    else:
+        line, column = max(1, len(text.splitlines())), None
+        place = "at the end of the file"
+    lines = text.splitlines()
+
+    if reason == "Cannot overwrite a value":
+        key_line = next((k for k in range(min(line, len(lines)), 0, -1)
+                         if _toml_key(lines[k - 1]) is not None), None)
+        if key_line is not None:
+            key, section = _toml_key(lines[key_line - 1]), _toml_section_of(lines, key_line)
+            first = next((k for k in _toml_lines(lines, section, key) if k != key_line), None)
+            shown = f"[{section}]" if section is not None else None
+            return ModelError(_given_twice(section, shown, key, first), path=source,
+                              line=key_line, item=key)
+    twice = _TOML_TWICE.match(reason)
+    if twice:
+        name = ".".join(p.strip().strip("'\"") for p in twice.group(1).split(",") if p.strip())
+        first = next((k for k, s in enumerate(lines, 1) if _toml_header(s) == name and k != line),
+                     None)
+        also = f" (first at line {first})" if first else ""
+        return ModelError(f"section [{name}] appears twice{also}; put all its entries under one "
+                          f"[{name}] header", path=source, line=line, item=name)
+    hint = ""
+    if text.lstrip().startswith("{"):
+        hint = "; this looks like JSON: name the file .json"
+    return ModelError(f"not valid TOML: {reason[:1].lower() + reason[1:]} {place}; fix the syntax "
+                      f"there (ids and text in quotes, coordinates as [x, y, z], one "
+                      f"'key = value' per line){hint}", path=source, line=line)
+
+
+def _json_syntax_error(exc: json.JSONDecodeError, text: str, source: str) -> ModelError:
+    hint = ""
+    try:
+        tomllib.loads(text)
+        hint = "; this looks like TOML: name the file .toml"
+    except tomllib.TOMLDecodeError:
+        pass
+    return ModelError(f"not valid JSON: {exc.msg[:1].lower() + exc.msg[1:]} at column "
+                      f"{exc.colno}; fix the syntax there (keys and text in double quotes, commas "
+                      f"between items, none after the last){hint}", path=source, line=exc.lineno)
+
+
+def _json_repeat_error(doc, repeat: tuple[dict, str], text: str, source: str) -> ModelError:
+    """A key given twice in one JSON object: say which, and where both stand."""
+    obj, key = repeat
+    section = None
+    if obj is not doc and isinstance(doc, dict):
+        section = next((name for name, value in doc.items() if value is obj), "")
+    found = _json_lines(text, section, key) if section != "" else []
+    first, second = (found + [None, None])[:2]
+    shown = f'"{section}"' if section else ("one object" if section == "" else None)
+    return ModelError(_given_twice(section, shown, key, first), path=source, line=second,
+                      item=key)
+
+
+def _given_twice(section: str | None, shown: str | None, key: str, first: int | None) -> str:
+    """The message for a key given twice in ``section`` (None: the top level)."""
+    also = f" (first at line {first})" if first else ""
+    if section == "supports":
+        return (f"joint {key!r} has two supports in {shown}{also}; give each joint one support "
+                f"that holds all its directions, e.g. \"pin\" or \"yz\"")
+    if section in ("joints", "members"):
+        return (f"{section[:-1]} id {key!r} is given twice in {shown}{also}; each id may appear "
+                f"once: rename one or delete the repeat")
+    return f"key {key!r} is given twice" + (f" in {shown}" if shown else "") + f"{also}; keep one"
+
+
+# ----------------------------------------------------------------- locating
+
+_TOML_HEADER = re.compile(r"""^\s*\[\s*([A-Za-z0-9_-]+|"[^"]*"|'[^']*')\s*\]\s*(?:#.*)?$""")
+_TOML_KEY = re.compile(r"""^\s*("(?:[^"\\]|\\.)*"|'[^']*'|[A-Za-z0-9_-]+)\s*=""")
+
+
+def _unquote(token: str) -> str:
+    if token.startswith('"'):
+        try:
+            return json.loads(token)
+        except ValueError:
+            return token[1:-1]
+    if token.startswith("'"):
+        return token[1:-1]
+    return token
+
+
+def _toml_header(line: str) -> str | None:
+    m = _TOML_HEADER.match(line)
+    return _unquote(m.group(1)) if m else None
+
+
+def _toml_key(line: str) -> str | None:
+    m = _TOML_KEY.match(line)
+    return _unquote(m.group(1)) if m else None
+
+
+def _toml_section_of(lines: list[str], line: int) -> str | None:
+    for k in range(line, 0, -1):
+        header = _toml_header(lines[k - 1])
+        if header is not None:
+            return header
+    return None
+
+
+def _toml_lines(lines: list[str], section: str | None, key: str) -> list[int]:
+    """1-based lines where ``key = ...`` stands in ``[section]`` (None: the top level).
+
+    At the top level a header ``[key]`` counts too, so a misspelt section is found.
+    """
+    found, current = [], None
+    for k, text in enumerate(lines, 1):
+        header = _toml_header(text)
+        if header is not None:
+            current = header
+            if section is None and header == key:
+                found.append(k)
+        elif current == section and _toml_key(text) == key:
+            found.append(k)
+    return found
+
+
+def toml_line(text: str, kind: str, item: str) -> int | None:
+    """The 1-based line of an item in TOML model text, or None if it cannot be found.
+
+    Parameters
+    ----------
+    text : str
+        The model file's text.
+    kind : {"joint", "member", "support", "key"}
+        ``"key"`` is a top-level key such as ``dimension``.
+    item : str
+        The id or key.
+
+    Notes
+    -----
+    A line scan, O(length of text); used only when a message is raised.
+    """
+    found = _toml_lines(text.splitlines(), _SECTION.get(kind), item)
+    return found[0] if found else None
+
+
+def _json_lines(text: str, section: str | None, key: str) -> list[int]:
+    """1-based lines of ``"key":`` after ``"section":`` (None: anywhere), in order."""
+    start = 0
+    if section is not None:
+        head = re.search(re.escape(json.dumps(section, ensure_ascii=False)) + r"\s*:", text)
+        if head is None:
+            return []
+        start = head.end()
+    pattern = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:")
+    return [text.count("\n", 0, m.start()) + 1 for m in pattern.finditer(text, start)]
+
+
+def json_line(text: str, kind: str, item: str) -> int | None:
+    """The 1-based line of an item in JSON model text, or None if it cannot be found.
+
+    Parameters
+    ----------
+    text : str
+        The model file's text.
+    kind : {"joint", "member", "support", "key"}
+        ``"key"`` is a top-level key such as ``dimension``.
+    item : str
+        The id or key.
+
+    Notes
+    -----
+    A regular-expression search for ``"item":`` after the section's key,
+    O(length of text); used only when a message is raised.
+    """
+    found = _json_lines(text, _SECTION.get(kind), item)
+    return found[0] if found else None
+
+
+# --------------------------------------------------------------------- writing
+
+_BARE = re.compile(r"[A-Za-z0-9_-]+")
+
+
+def _quote(text: str) -> str:
+    """A double-quoted string valid in both TOML and JSON."""
+    return json.dumps(text, ensure_ascii=False).replace("\x7f", "\\u007f")
+
+
+def _toml_id(text: str) -> str:
+    return text if _BARE.fullmatch(text) else _quote(text)
+
+
+def _numbers(row) -> str:
+    return "[" + ", ".join(repr(float(x)) for x in row) + "]"
+
+
+def _support_specs(frame: Frame) -> list[tuple[str, object]]:
+    """``(joint id, spec)`` in joint order: ``"pin"``, axis letters, or direction vectors."""
+    d = frame.dimension
+    order = np.argsort(frame.restraint_joint, kind="stable")
+    rj, rd = frame.restraint_joint[order], frame.restraint_dir[order]
+    cuts = np.flatnonzero(np.diff(rj)) + 1
+    specs = []
+    for joint, rows in zip(rj[np.r_[0, cuts]] if rj.size else [], np.split(rd, cuts)):
+        on_axis = (np.count_nonzero(rows, axis=1) == 1) & (rows.max(axis=1) == 1.0)
+        if on_axis.all():
+            axes = sorted({int(np.argmax(r)) for r in rows})
+            spec = "pin" if len(axes) == d else "".join(AXES[a] for a in axes)
+        else:
+            spec = rows
+        specs.append((frame.joint_ids[joint], spec))
+    return specs
+
+
+_EXISTS = "already exists and is not overwritten; choose another name, or pass overwrite=True"
+
+
+def _check_writable(frame: Frame, path, overwrite: bool) -> str:
+    target = os.fspath(path)
+    if frame.source is not None:
+        same = (os.path.exists(target) and os.path.exists(frame.source)
+                and os.path.samefile(target, frame.source))
+        if same or os.path.realpath(target) == os.path.realpath(frame.source):
+            raise ModelError("is the file this frame was read from and is never overwritten; "
+                             "write to another file", path=target)
+    if os.path.isdir(target):
+        raise ModelError("is a directory; give a file name to write", path=target)
+    if os.path.exists(target) and not overwrite:
+        raise ModelError(_EXISTS, path=target)
+    bad = np.flatnonzero(~np.isfinite(frame.coords).all(axis=1))
+    if bad.size:
+        raise ModelError(f"joint {frame.joint_ids[bad[0]]!r} has a coordinate that is not finite; "
+                         f"a model file holds finite numbers only", path=target,
+                         item=frame.joint_ids[bad[0]])
+    return target
+
+
+def _write(target: str, text: str, overwrite: bool) -> None:
+    if not overwrite:
+        try:
+            with open(target, "x", encoding="utf-8", newline="\n") as fh:
+                fh.write(text)
+        except FileExistsError:     # made since the check in _check_writable
+            raise ModelError(_EXISTS, path=target) from None
+        return
+    folder = os.path.dirname(os.path.abspath(target))
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix=".spaceframe-", suffix=".tmp")
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+        os.replace(tmp, target)
+    except BaseException:
+        os.unlink(tmp)
+        raise
+
+
+def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
+    """Write a frame as a TOML model file that :func:`read_toml` reads back.
+
+    The output is deterministic: items in the frame's order, coordinates as
+    the shortest decimal that reads back to the same double, ids bare where
+    TOML allows (letters, digits, ``_`` and ``-``) and quoted otherwise.
+
+    Parameters
+    ----------
+    frame : Frame
+    path : str or os.PathLike
+        The file to write.
+    overwrite : bool, optional
+        Replace an existing file.  Default False.  The file the frame was
+        read from is never replaced.
+
+    Raises
+    ------
+    ModelError
+        If ``path`` is the frame's source, exists and ``overwrite`` is False,
+        is a directory, or a coordinate is not finite.
+    """
+    target = _check_writable(frame, path, overwrite)
+    out = [f"name = {_quote(frame.name)}", f"units = {_quote(frame.units)}",
+           f"dimension = {frame.dimension}", "", "[joints]"]
+    out += [f"{_toml_id(j)} = {_numbers(x)}" for j, x in zip(frame.joint_ids, frame.coords)]
+    out += ["", "[members]"]
+    ids = frame.joint_ids
+    out += [f"{_toml_id(mid)} = [{_quote(ids[a])}, {_quote(ids[b])}]"
+            for mid, (a, b) in zip(frame.member_ids, frame.ends.tolist())]
+    out += ["", "[supports]"]
+    for jid, spec in _support_specs(frame):
+        value = (_quote(spec) if isinstance(spec, str)
+                 else "[" + ", ".join(_numbers(r) for r in spec) + "]")
+        out.append(f"{_toml_id(jid)} = {value}")
+    _write(target, "\n".join(out) + "\n", overwrite)
+
+
+def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
+    """Write a frame as a JSON model file that :func:`read_json` reads back.
+
+    The output is deterministic: one item per line, in the frame's order,
+    coordinates as the shortest decimal that reads back to the same double.
+
+    Parameters
+    ----------
+    frame : Frame
+    path : str or os.PathLike
+        The file to write.
+    overwrite : bool, optional
+        Replace an existing file.  Default False.  The file the frame was
+        read from is never replaced.
+
+    Raises
+    ------
+    ModelError
+        If ``path`` is the frame's source, exists and ``overwrite`` is False,
+        is a directory, or a coordinate is not finite.
+    """
+    target = _check_writable(frame, path, overwrite)
+    ids = frame.joint_ids
+
+    def block(name, rows):
+        if not rows:
+            return f'  "{name}": {{}}'
+        return f'  "{name}": {{\n' + ",\n".join(f"    {k}: {v}" for k, v in rows) + "\n  }"
+
+    joints = [(_quote(j), _numbers(x)) for j, x in zip(ids, frame.coords)]
+    members = [(_quote(mid), f"[{_quote(ids[a])}, {_quote(ids[b])}]")
+               for mid, (a, b) in zip(frame.member_ids, frame.ends.tolist())]
+    supports = [(_quote(jid), _quote(spec) if isinstance(spec, str)
+                 else "[" + ", ".join(_numbers(r) for r in spec) + "]")
+                for jid, spec in _support_specs(frame)]
+    head = [f'  "name": {_quote(frame.name)}', f'  "units": {_quote(frame.units)}',
+            f'  "dimension": {frame.dimension}']
+    body = head + [block("joints", joints), block("members", members),
+                   block("supports", supports)]
+    _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)
