@@ -53,6 +53,12 @@ class Frame:
     lines : mapping of (str, str) to int
         Where known, the 1-based line in ``source`` of each item, keyed by
         ``("joint", id)``, ``("member", id)`` or ``("support", id)``.
+    joint_tags, member_tags : mapping of str to tuple of str
+        Named attributes of joints and members, one label per item (``""``
+        where an item has none).  Conventional names: ``"role"`` (chord, web,
+        post, tie, purlin, brace, ...), ``"frame"`` (the planar frame an item
+        belongs to, ``"1"``, ``"2"``...), ``"bay"``.  Analyses use them to
+        describe results; they never change the numbers.
     """
 
     joint_ids: tuple[str, ...]
@@ -66,6 +72,8 @@ class Frame:
     units: str = "m"
     source: str | None = None
     lines: Mapping[tuple[str, str], int] = field(default_factory=dict)
+    joint_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    member_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
 
     def __post_init__(self):
         d = self.dimension
@@ -95,6 +103,15 @@ class Frame:
         object.__setattr__(self, "joint_ids", tuple(self.joint_ids))
         object.__setattr__(self, "member_ids", tuple(self.member_ids))
         object.__setattr__(self, "lines", MappingProxyType(dict(self.lines)))
+        for attr, count in (("joint_tags", n), ("member_tags", len(ends))):
+            tags = {}
+            for key, labels in dict(getattr(self, attr)).items():
+                labels = tuple(str(v) for v in labels)
+                if len(labels) != count:
+                    raise ModelError(f"{attr}[{key!r}] has {len(labels)} labels for {count} items",
+                                     path=self.source)
+                tags[str(key)] = labels
+            object.__setattr__(self, attr, MappingProxyType(tags))
 
     @property
     def n_joints(self) -> int:
@@ -118,6 +135,10 @@ class Frame:
         if self.n_joints == 0:
             return 0.0
         return float(np.linalg.norm(self.coords.max(axis=0) - self.coords.min(axis=0)))
+
+    def tag(self, kind: str, name: str) -> tuple[str, ...] | None:
+        """Labels of attribute ``name`` for ``kind`` ``"joint"`` or ``"member"``, or None."""
+        return (self.joint_tags if kind == "joint" else self.member_tags).get(name)
 
     def line_of(self, kind: str, item: str) -> int | None:
         """The source line of ``(kind, item)``, or None where it is not known."""
