@@ -232,4 +232,6 @@ def _drop_repeated_members(frame: Frame, line) -> Frame:
     keep = np.ones(m, dtype=bool)
     keep[dropped] = False
     return dataclasses.replace(frame, member_ids=tuple(compress(ids, keep)),
-                               ends=frame.ends[keep])
+                               ends=frame.ends[keep],
+                               member_tags={k: tuple(compress(v, keep))
+                                            for k, v in frame.member_tags.items()})
