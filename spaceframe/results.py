@@ -77,13 +77,35 @@ class AuditResult:
         A basis of the mechanisms: internal mechanisms first, then the
         rigid-body modes; each mode scaled so its largest joint movement is 1.
     mode_kinds : tuple of str
-        ``"internal"`` or ``"rigid-body"`` for each mode.
+        The kind of each mode (:data:`spaceframe.analysis.modes.KINDS`).
+    mode_info : tuple of ModeInfo
+        Joints, members, direction, frames and a one-sentence description of
+        each mode.
+    mode_orders : tuple of str or None
+        For each internal mechanism, whether prestress stiffens it
+        (:mod:`spaceframe.analysis.prestress`); None for rigid-body modes.
+    mode_prestress : (internal_mechanisms, members) float
+        A stiffening state of self-stress for each internal mechanism (zeros
+        where none exists).
+    prestress_stable : bool or None
+        One state of self-stress stiffens every internal mechanism at once
+        (True), provably none can (False), or not determined (None; also with
+        no internal mechanism).
+    prestress_certificate : (members,) float or None
+        That state, where found.
     self_stress_forces : (q, members) float
         ``q`` independent states of self-stress (tension positive), each
         scaled so its largest force is 1 in magnitude.
     self_stress_complete : bool
         True when ``q == self_stress_states``; otherwise a cap applied.
     gap : RankGap
+    key_members : tuple of str
+        Members that carry no force in any state of self-stress: losing any
+        one of them leaves a mechanism.
+    redundancy : (members,) float or None
+        Redundancy share of each member (diagonal of the projector onto the
+        self-stress space; sums to ``self_stress_states``); None when not
+        computed.
     warnings : tuple of str
     """
 
@@ -103,6 +125,13 @@ class AuditResult:
     self_stress_forces: np.ndarray
     self_stress_complete: bool
     gap: RankGap
+    mode_info: tuple = ()
+    mode_orders: tuple = ()
+    mode_prestress: np.ndarray | None = None
+    prestress_stable: bool | None = None
+    prestress_certificate: np.ndarray | None = None
+    key_members: tuple[str, ...] = ()
+    redundancy: np.ndarray | None = None
     warnings: tuple[str, ...] = field(default_factory=tuple)
 
     @property
@@ -135,10 +164,25 @@ class AuditResult:
         for i, kind in enumerate(self.mode_kinds):
             u = self.mode_displacements[i]
             moving = np.flatnonzero(np.linalg.norm(u, axis=1) > REPORT_FLOOR)
-            modes.append({
-                "kind": kind,
-                "displacements": {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving},
-            })
+            entry = {"kind": kind}
+            if i < len(self.mode_info):
+                info = self.mode_info[i]
+                entry.update({
+                    "description": info.description,
+                    "joints": list(info.joints),
+                    "members": list(info.members),
+                    "direction": [_num(x) for x in info.direction],
+                    "frames": list(info.frames),
+                })
+            order = self.mode_orders[i] if i < len(self.mode_orders) else None
+            entry["order"] = order
+            if order is not None and self.mode_prestress is not None and \
+                    np.any(self.mode_prestress[i]):
+                t = self.mode_prestress[i]
+                entry["prestress"] = {f.member_ids[k]: _num(t[k])
+                                      for k in np.flatnonzero(np.abs(t) > REPORT_FLOOR)}
+            entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+            modes.append(entry)
         states = []
         for t in self.self_stress_forces:
             carrying = np.flatnonzero(np.abs(t) > REPORT_FLOOR)
@@ -164,6 +208,10 @@ class AuditResult:
             "self_stress_modes": states,
             "self_stress_modes_complete": self.self_stress_complete,
             "self_stress_modes_cap": None if self.self_stress_complete else len(states),
+            "prestress_stable": self.prestress_stable,
+            "key_members": list(self.key_members),
+            "redundancy": None if self.redundancy is None else
+            {f.member_ids[k]: _num(v) for k, v in enumerate(self.redundancy)},
             "rank_decision": {
                 "method": g.method,
                 "tolerance": g.tolerance,

@@ -9,13 +9,16 @@ from ..model import Frame
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
+from .modes import KINDS, describe_modes, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
+from .prestress import prestress_test
+from .redundancy import key_members, redundancy_shares
 
 __all__ = ["audit"]
 
 
 def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
-          tol: Tolerances = DEFAULT) -> AuditResult:
+          redundancy: bool = True, tol: Tolerances = DEFAULT) -> AuditResult:
     """Audit the stability of a pin-jointed frame.
 
     The mechanisms are the joint displacements that stretch no member, the
@@ -28,7 +31,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
 
     The mechanisms are split into the rigid-body motions of the whole frame
     that the supports permit and the internal mechanisms, which change its
-    shape.
+    shape; the internal ones are given in a local basis, classified and
+    described (:mod:`spaceframe.analysis.modes`) and tested for stiffening by
+    prestress (:mod:`spaceframe.analysis.prestress`).  Key members and
+    redundancy shares come from :mod:`spaceframe.analysis.redundancy`.
 
     Parameters
     ----------
@@ -39,6 +45,9 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         ``self_stress_cap`` and say so.
     method : {"auto", "dense", "sparse"}, keyword-only
         The rank engine (see :mod:`spaceframe.analysis.nullspace`).
+    redundancy : bool, keyword-only
+        Compute every member's redundancy share (default True; skipped, with
+        ``redundancy`` None, where it needs more than 20,000 solves).
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative singular value threshold.
 
@@ -83,14 +92,27 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
                            method=method, tol=tol)
     k = decision.mechanisms.shape[1]
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    internal, rigid = _split(decision.mechanisms, rigid)
+    _check_rigid_inside(decision.mechanisms, rigid)
+    internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
+    rigid = order_rigid(rigid, dofs)
 
-    mech = np.hstack([canonical_basis(internal), canonical_basis(rigid)])
+    mech = np.hstack([internal, rigid])
     modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))
     if k:
         modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
+    hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
+    info = describe_modes(frame, modes, hints)
+    # group the internal modes by kind (local kinds first), fewest joints first within a kind
+    ni = internal.shape[1]
+    order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
+    order += list(range(ni, k))
+    modes, info = modes[order], tuple(info[i] for i in order)
+    pre = prestress_test(frame, modes[:internal.shape[1]], decision.project)
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
+    key = key_members(frame.n_members, decision.self_stress_count, decision.project)
+    shares = redundancy_shares(decision.self_stress_count, decision.project) \
+        if redundancy else None
 
     members, restraints, joints = frame.n_members, frame.n_restraints, frame.n_joints
     mechanisms = k
@@ -107,27 +129,21 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         maxwell=members + restraints - d * joints, rank=decision.rank, mechanisms=mechanisms,
         rigid_body_modes=rigid.shape[1], internal_mechanisms=internal.shape[1],
         self_stress_states=s, mode_displacements=modes,
-        mode_kinds=("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1],
+        mode_kinds=tuple(i.kind for i in info), mode_info=info,
+        mode_orders=pre.orders + (None,) * rigid.shape[1], mode_prestress=pre.prestress,
+        prestress_stable=pre.stable, prestress_certificate=pre.certificate,
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
+        key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         warnings=tuple(warnings))
 
 
-def _split(mech: np.ndarray, rigid: np.ndarray):
-    """Split the mechanism space into internal mechanisms and rigid-body motions.
-
-    ``rigid`` (orthonormal) lies inside the span of ``mech`` in exact
-    arithmetic; the internal part is the orthogonal complement of it there.
-    """
+def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray) -> None:
+    """The permitted rigid-body motions must lie in the mechanism space found."""
     k, r = mech.shape[1], rigid.shape[1]
-    if r == 0:
-        return mech, rigid
-    if r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid)) > 1e-6 * np.sqrt(r):
+    if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid)) > 1e-6 * np.sqrt(r)):
         raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
                               "not found among the mechanisms; rerun with method='dense' and "
                               "report the model")
-    rest = mech - rigid @ (rigid.T @ mech)
-    u, _, _ = np.linalg.svd(rest, full_matrices=False)
-    return u[:, :k - r], rigid
 
 
 def _gap(decision, tol: Tolerances):

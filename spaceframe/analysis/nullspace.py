@@ -87,6 +87,12 @@ class RankDecision:
         above ``threshold``).  None when the rank is 0.
     method : str
         ``"dense"`` or ``"sparse"``.
+    project : callable
+        ``project(Y)`` for ``Y`` of shape ``(m, q)`` returns the orthogonal
+        projection of each column onto the space of states of self-stress,
+        ``Y - C K^+ C.T Y``: the part of a member force vector that needs no
+        load.  ``project.redundancy()`` gives the diagonal of that projector
+        (or None where it would cost too much).
     """
 
     rank: int
@@ -98,6 +104,7 @@ class RankDecision:
     largest_zero: float | None
     smallest_nonzero: float | None
     method: str
+    project: object = None
 
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
@@ -153,12 +160,14 @@ def _dense(C, cap, tol) -> RankDecision:
     threshold = tol.rank * s_max
     rank = int(np.sum(s > threshold)) if s_max > 0 else 0
     mech = vt[rank:].T
-    stress = u[:, rank:] if cap else u[:, :0]
+    null_t = u[:, rank:]
+    stress = null_t if cap else u[:, :0]
     largest_zero = float(np.max(np.linalg.norm(A @ mech, axis=0))) if mech.shape[1] else None
     smallest = float(s[rank - 1]) if rank else None
     return RankDecision(rank=rank, mechanisms=mech, self_stress=stress,
                         self_stress_count=m - rank, s_max=s_max, threshold=threshold,
-                        largest_zero=largest_zero, smallest_nonzero=smallest, method="dense")
+                        largest_zero=largest_zero, smallest_nonzero=smallest, method="dense",
+                        project=_DenseProjector(null_t))
 
 
 def _sparse(C, joint_of, cap, tol) -> RankDecision:
@@ -166,10 +175,11 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
     K = (C.T @ C).tocsc()
     if n == 0:
         return RankDecision(0, np.zeros((0, 0)), np.zeros((m, 0)), m, 0.0, 0.0, None, None,
-                            "sparse")
+                            "sparse", project=_EveryMember(m))
     if K.nnz == 0:  # no member touches a free coordinate
-        stress = np.eye(m)[:, :cap]
-        return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse")
+        stress = np.eye(m, min(cap, m))
+        return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse",
+                            project=_EveryMember(m))
     lam_max = _largest_eigenvalue(K)
     s_max = float(np.sqrt(lam_max))
     threshold = tol.rank * s_max
@@ -185,11 +195,16 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
     mech = basis[:, :k][inv]
     largest_zero = float(np.max(np.linalg.norm(C @ mech, axis=0))) if k else None
     smallest = float(np.sqrt(max(ritz[k], 0.0))) if rank and len(ritz) > k else None
-    stress = _self_stress(C, Kp, lu, perm, mech, min(cap, m - rank)) if cap else np.zeros((m, 0))
+    project = _Projector(C, Kp, lu, perm, mech)
+    q = min(cap, m - rank)
+    if q > 0:
+        stress, _ = np.linalg.qr(project(np.random.default_rng(_SEED + 1).standard_normal((m, q))))
+    else:
+        stress = np.zeros((m, 0))
     return RankDecision(rank=rank, mechanisms=mech, self_stress=stress,
                         self_stress_count=m - rank,
                         s_max=s_max, threshold=threshold, largest_zero=largest_zero,
-                        smallest_nonzero=smallest, method="sparse")
+                        smallest_nonzero=smallest, method="sparse", project=project)
 
 
 def _largest_eigenvalue(K) -> float:
@@ -277,35 +292,100 @@ def _subspace(Kp, lu, k, n, iterations: int = 3):
     return X, theta
 
 
-def _self_stress(C, Kp, lu, perm, mech, q):
-    """``q`` independent states of self-stress by projection onto null(C.T).
+class _EveryMember:
+    """The projector when no member touches a free coordinate: every force is self-stress."""
+
+    def __init__(self, m):
+        self.m = m
+
+    def __call__(self, Y):
+        return np.array(Y, dtype=float)
+
+    def redundancy(self, **_):
+        return np.ones(self.m)
+
+
+class _DenseProjector:
+    """Projection onto the self-stress space from its orthonormal basis."""
+
+    def __init__(self, basis):
+        self.basis = basis
+
+    def __call__(self, Y):
+        return self.basis @ (self.basis.T @ Y)
+
+    def redundancy(self, **_):
+        """Diagonal of the projector, ``(m,) float``: row norms of the basis, squared."""
+        return np.sum(self.basis ** 2, axis=1)
+
+
+class _Projector:
+    """Projection of member force vectors onto null(C.T), the states of self-stress.
 
     ``t = y - C x`` with ``K x = C.T y``: the residual of the least-squares fit
     of ``y`` by member elongations is orthogonal to every column of ``C``.
     ``C.T y`` lies in the range of ``K``; the solve with the factorisation of
     ``K - tau I`` is followed by a step of iterative refinement where the
-    residual exceeds 1e-10 of the right-hand side, and by the
-    removal of any mechanism component, which ``C`` maps to zero anyway.
+    residual exceeds 1e-10 of the right-hand side, and by the removal of any
+    mechanism component (``C`` maps it to zero anyway).  Columns are taken
+    ``_BLOCK`` at a time.
     """
-    m = C.shape[0]
-    if q <= 0:
-        return np.zeros((m, 0))
-    Y = np.random.default_rng(_SEED + 1).standard_normal((m, q))
-    inv = np.empty_like(perm)
-    inv[perm] = np.arange(len(perm))
-    T = np.empty((m, q))
-    for lo in range(0, q, _BLOCK):
-        y = Y[:, lo:lo + _BLOCK]
-        rhs = (C.T @ y)[perm]
-        x = lu.solve(np.asfortranarray(rhs))
-        if np.linalg.norm(rhs - Kp @ x) > 1e-10 * np.linalg.norm(rhs):
-            x += lu.solve(np.asfortranarray(rhs - Kp @ x))
-        x = x[inv]
-        if mech.shape[1]:
-            x -= mech @ (mech.T @ x)
-        T[:, lo:lo + _BLOCK] = y - C @ x
-    T, _ = np.linalg.qr(T)
-    return T
+
+    def __init__(self, C, Kp, lu, perm, mech):
+        self.C, self.Kp, self.lu, self.perm, self.mech = C, Kp, lu, perm, mech
+        self.inv = np.empty_like(perm)
+        self.inv[perm] = np.arange(len(perm))
+
+    def __call__(self, Y):
+        Y = np.asarray(Y, dtype=float)
+        flat = Y.ndim == 1
+        Y = Y[:, None] if flat else Y
+        C, Kp, lu, mech = self.C, self.Kp, self.lu, self.mech
+        T = np.empty_like(Y)
+        for lo in range(0, Y.shape[1], _BLOCK):
+            y = Y[:, lo:lo + _BLOCK]
+            rhs = (C.T @ y)[self.perm]
+            x = lu.solve(np.asfortranarray(rhs))
+            if np.linalg.norm(rhs - Kp @ x) > 1e-10 * np.linalg.norm(rhs):
+                x += lu.solve(np.asfortranarray(rhs - Kp @ x))
+            x = x[self.inv]
+            if mech.shape[1]:
+                x -= mech @ (mech.T @ x)
+            T[:, lo:lo + _BLOCK] = y - C @ x
+        return T[:, 0] if flat else T
+
+    def redundancy(self, *, max_solves: int = 20_000):
+        """Diagonal of the projector onto the self-stress space, ``(m,) float``.
+
+        ``r_e = 1 - c_e K^+ c_e.T`` for each member row ``c_e`` of ``C``.  The
+        columns of ``K^+`` are formed a batch of coordinates at a time (one
+        block solve each, with mechanism components removed before and after)
+        and folded into ``h = diag(C K^+ C.T)`` at once, so memory stays
+        O(n x batch).  Returns None when that needs more than ``max_solves``
+        right-hand sides.  Cost: ``n`` solves and O(nnz(C) n).
+        """
+        C, lu, mech = self.C, self.lu, self.mech
+        m, n = C.shape
+        if n > max_solves:
+            return None
+        Cc = C.tocsc()
+        h = np.zeros(m)
+        batch = 64
+        for lo in range(0, n, batch):
+            idx = np.arange(lo, min(lo + batch, n))
+            E = np.zeros((n, len(idx)))
+            E[idx, np.arange(len(idx))] = 1.0
+            if mech.shape[1]:
+                E -= mech @ mech[idx].T
+            Z = np.empty_like(E)
+            for b in range(0, len(idx), _BLOCK):
+                rhs = E[:, b:b + _BLOCK][self.perm]
+                Z[:, b:b + _BLOCK] = lu.solve(np.asfortranarray(rhs))[self.inv]
+            if mech.shape[1]:
+                Z -= mech @ (mech.T @ Z)
+            W = C @ Z                                   # (m, batch)
+            h += np.asarray(Cc[:, idx].multiply(W).sum(axis=1)).ravel()
+        return np.clip(1.0 - h, 0.0, 1.0)
 
 
 def canonical_basis(B: np.ndarray) -> np.ndarray:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..analysis.prestress import NOT_STIFFENED, STIFFENED
 from ..results import CAUTION, AuditResult
 
 __all__ = ["render_audit", "verdict"]
@@ -73,16 +74,40 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     lines.append("  rank decision: " + "; ".join(parts))
     if r.mechanisms:
         lines.append("")
-        lines.append("Mechanisms (joint movements that stretch no member; largest movement = 1):")
-        for i in range(min(r.mechanisms, max_modes)):
-            moving = r.mode_joints(i)
-            shown = ", ".join(f"{jid} {_direction(u, d)}" for jid, u in moving[:max_entries])
-            more = f", and {len(moving) - max_entries} more joints" if len(moving) > max_entries \
-                else ""
-            lines.append(f"  mode {i + 1} ({r.mode_kinds[i]}, {len(moving)} joint"
-                         f"{_s(len(moving))} moving): {shown}{more}")
-        if r.mechanisms > max_modes:
-            lines.append(f"  ... {r.mechanisms - max_modes} more modes in the JSON (--json)")
+        lines.append("Mechanisms (joint movements that stretch no member), grouped by kind:")
+        shown, last, i = 0, None, 0
+        while i < r.mechanisms:
+            if shown >= max_modes:
+                lines.append(f"  ... {r.mechanisms - i} more modes (--all lists them; "
+                             f"--json has them all)")
+                break
+            kind = r.mode_kinds[i]
+            if kind != last:
+                count = sum(1 for k in r.mode_kinds if k == kind)
+                lines.append(f"  {kind} ({count} mode{_s(count)}):")
+                last = kind
+            run = _single_joint_run(r, i)
+            if len(run) > 3:  # many joints each free the same way: one line for them all
+                info = r.mode_info[i]
+                names = ", ".join(r.mode_info[j].joints[0] for j in run)
+                how = "out of the plane of their members" if kind == "out-of-plane" else \
+                    "on their own"
+                lines.append(f"    {i + 1}-{run[-1] + 1}. Joints {names} are each free {how} "
+                             f"({_axis_words(info.direction)}): no member or support holds them "
+                             f"that way.{_order_note(r, i, plural=True)}")
+                i = run[-1] + 1
+            else:
+                lines.append(f"    {i + 1}. {r.mode_info[i].description}{_order_note(r, i)}")
+                i += 1
+            shown += 1
+        if r.internal_mechanisms and any(o == STIFFENED for o in r.mode_orders):
+            whole = {True: "one state of self-stress stiffens every internal mechanism at once "
+                           "(prestress stable)",
+                     False: "some internal mechanism is stiffened by no prestress",
+                     None: "no single state of self-stress was found that stiffens every "
+                           "internal mechanism at once"}[r.prestress_stable]
+            lines.append(f"  Prestress: {whole}. Relying on prestress for stability is a design "
+                         f"decision for a competent engineer.")
     if r.self_stress_states:
         lines.append("")
         q = r.self_stress_forces.shape[0]
@@ -102,6 +127,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
             lines.append(f"  ... {r.self_stress_states - shown_states} more states "
                          + ("in the JSON (--json)" if q > shown_states else
                             "not computed (raise --self-stress to compute more)"))
+    lines.extend(_robustness(r, max_entries))
     if r.warnings:
         lines.append("")
         lines.extend(f"Note: {w}" for w in r.warnings)
@@ -109,6 +135,62 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     lines.append("Verdict: " + verdict(r))
     lines.append("Caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _order_note(r: AuditResult, i: int, *, plural: bool = False) -> str:
+    order = r.mode_orders[i] if i < len(r.mode_orders) else None
+    it, real = ("them", "real mechanisms") if plural else ("it", "a real mechanism")
+    return {STIFFENED: f"  [first-order only: a prestress stiffens {it}]",
+            NOT_STIFFENED: f"  [no prestress stiffens {it}: treat as {real}]",
+            None: ""}[order]
+
+
+def _single_joint_run(r: AuditResult, i: int) -> list[int]:
+    """Modes from ``i`` on of one kind, order and direction, each moving one joint."""
+    def key(j):
+        info = r.mode_info[j]
+        order = r.mode_orders[j] if j < len(r.mode_orders) else None
+        return (info.kind, order, tuple(np.round(np.abs(info.direction), 3)))
+    run = []
+    j = i
+    while j < r.mechanisms and len(r.mode_info[j].joints) == 1 and key(j) == key(i):
+        run.append(j)
+        j += 1
+    return run
+
+
+def _axis_words(v: np.ndarray) -> str:
+    a = int(np.argmax(np.abs(v)))
+    if abs(v[a]) >= 0.98 * np.linalg.norm(v):
+        return f"along {_AXES[a]}"
+    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
+
+
+def _robustness(r: AuditResult, max_entries: int) -> list[str]:
+    """Key members and redundancy shares."""
+    out = [""]
+    key = r.key_members
+    if r.members == 0:
+        return []
+    if r.self_stress_states == 0:
+        out.append("Key members: all of them. With no state of self-stress the frame is "
+                   "statically determinate (as far as it is held): losing any member leaves a "
+                   "mechanism.")
+    elif key:
+        names = ", ".join(key[:max_entries * 2]) + (
+            f" and {len(key) - max_entries * 2} more" if len(key) > max_entries * 2 else "")
+        out.append(f"Key members ({len(key)} of {r.members}; losing any one leaves a mechanism): "
+                   f"{names}")
+    else:
+        out.append("Key members: none. Every member carries force in some state of "
+                   "self-stress, so the loss of any single member leaves no mechanism.")
+    if r.redundancy is not None and r.self_stress_states:
+        red = r.redundancy
+        lo, hi = int(np.argmin(red)), int(np.argmax(red))
+        out.append(f"Redundancy shares (0 = key, 1 = not needed; they sum to "
+                   f"{r.self_stress_states}): least {red[lo]:.2f} ({r.frame.member_ids[lo]}), "
+                   f"median {np.median(red):.2f}, most {red[hi]:.2f} ({r.frame.member_ids[hi]})")
+    return out
 
 
 def _direction(u: np.ndarray, d: int) -> str:

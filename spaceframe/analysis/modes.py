@@ -1,0 +1,373 @@
+"""Mechanisms an engineer can read: a local basis, a kind, and a sentence for each mode.
+
+The raw null space of the compatibility matrix mixes every free motion of the
+frame.  Here it is rotated into modes that each involve as few joints as
+possible, each mode is classified, and described in a designer's words.
+
+The local basis is the reduced echelon form of the mechanism space with
+pivots chosen by column-pivoted QR (Golub & Van Loan [1]_, section 5.4.1):
+each mode moves its own pivot coordinate and none of the other modes' pivots.
+Any mechanism confined to one joint (a joint with no members, a joint between
+collinear members, a joint free out of the plane of its members) has a pivot
+at that joint and comes out as a mode of that joint alone.  Modes are then
+taken in order of the number of joints they move (local, then regional, then
+global), skipping any that the rigid-body motions and the modes already taken
+span, until the internal mechanisms are counted out.  Rigid-body modes are
+given as translations along principal directions first, then rotations,
+each described by its axis.
+
+References
+----------
+.. [1] G. H. Golub and C. F. Van Loan, "Matrix Computations", 4th ed., Johns
+   Hopkins University Press, 2013.
+.. [2] S. Pellegrino and C. R. Calladine, "Matrix analysis of statically and
+   kinematically indeterminate frameworks", Int. J. Solids Struct. 22(4),
+   409-428, 1986.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..model import Frame
+from .nullspace import canonical_basis
+
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "MOVING", "KINDS"]
+
+#: A joint "moves" in a mode when its movement exceeds this fraction of the largest.
+MOVING = 0.05
+#: A mode moving at most this many joints is "local".
+LOCAL_JOINTS = 3
+#: The kinds of mode, in the order they are tested.
+KINDS = ("rigid-body", "local", "out-of-plane", "lean", "sway", "other")
+
+_AXES = "xyz"
+
+
+@dataclass(frozen=True)
+class ModeInfo:
+    """What one mechanism is, in words and ids.
+
+    Attributes
+    ----------
+    kind : str
+        One of :data:`KINDS`.
+    joints : tuple of str
+        Joints that move more than :data:`MOVING` of the largest movement,
+        largest first.
+    members : tuple of str
+        Members with an end at a moving joint.
+    direction : (d,) float
+        Dominant direction of movement (unit vector; for a rotation, the axis).
+    frames : tuple of str
+        For models with a ``frame`` tag: the frames the moving joints belong to.
+    description : str
+        One sentence for a designer.
+    """
+
+    kind: str
+    joints: tuple[str, ...]
+    members: tuple[str, ...]
+    direction: np.ndarray
+    frames: tuple[str, ...]
+    description: str
+
+
+def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
+    """Split the mechanism space into local internal modes and rigid-body modes.
+
+    Parameters
+    ----------
+    mech : (N, k) float
+        Orthonormal basis of the mechanism space, free coordinates.
+    rigid : (N, r) float
+        Orthonormal basis of the permitted rigid-body motions (inside
+        ``span(mech)``).
+    joint_of : (N,) int
+        Joint of each free coordinate.
+
+    Returns
+    -------
+    internal : (N, k - r) float
+        Internal modes, fewest moving joints first; each scaled so that its
+        largest entry is 1 in magnitude.
+    rigid : (N, r) float
+        The rigid-body modes in canonical form.
+
+    Notes
+    -----
+    Cost O(N k^2).
+    """
+    k, r = mech.shape[1], rigid.shape[1]
+    if k == 0:
+        return mech, rigid
+    E = canonical_basis(mech)
+    spread = np.array([_joint_count(E[:, i], joint_of) for i in range(k)])
+    order = np.lexsort((np.arange(k), spread))
+    Q = rigid.copy()
+    chosen = []
+    for i in order:
+        if len(chosen) == k - r:
+            break
+        v = E[:, i]
+        res = v - Q @ (Q.T @ v) if Q.shape[1] else v
+        nrm = np.linalg.norm(res)
+        if nrm > 1e-8 * np.linalg.norm(v):
+            chosen.append(i)
+            Q = np.hstack([Q, (res / nrm)[:, None]])
+    return E[:, chosen], rigid
+
+
+def order_rigid(rigid: np.ndarray, dofs) -> np.ndarray:
+    """Rigid-body modes as pure translations first, then the rest (rotations).
+
+    The translations permitted are the intersection of the rigid-body space
+    with the span of the axis translations (principal vectors with cosine 1,
+    Björck & Golub's principal angles); they come out along principal
+    directions.  Each mode gets a deterministic sign (largest entry positive).
+
+    Returns
+    -------
+    (N, r) float, orthonormal columns.
+    """
+    r = rigid.shape[1]
+    if r == 0:
+        return rigid
+    joint = dofs.joint_of()
+    slot = np.arange(dofs.total) - dofs.offset[joint]
+    T = dofs.basis[joint, :, slot]            # (N, d): axis translations in free coordinates
+    u, s, _ = np.linalg.svd(T, full_matrices=False)
+    T = u[:, s > 1e-12 * max(s.max(initial=0.0), 1e-300)]
+    if T.shape[1]:
+        a, cos, _ = np.linalg.svd(rigid.T @ T, full_matrices=True)
+        nt = int(np.sum(cos >= 1 - 1e-9))
+        R = rigid @ a
+    else:
+        nt, R = 0, rigid
+    parts = [R[:, :nt], R[:, nt:]]
+    out = np.hstack([canonical_basis(p) if p.shape[1] == 1 else p for p in parts])
+    for i in range(out.shape[1]):
+        v = out[:, i]
+        out[:, i] = v * np.sign(v[np.argmax(np.abs(v))]) / np.linalg.norm(v)
+    return out
+
+
+def _joint_count(v, joint_of):
+    size = np.zeros(joint_of.max() + 1 if len(joint_of) else 0)
+    np.add.at(size, joint_of, v * v)
+    size = np.sqrt(size)
+    return int(np.sum(size > MOVING * size.max())) if size.size and size.max() > 0 else 0
+
+
+def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[str, ...]):
+    """Classify and describe each mode.
+
+    Parameters
+    ----------
+    frame : Frame
+    displacements : (k, n, d) float
+        Joint movements of each mode.
+    kinds_hint : tuple of str
+        ``"internal"`` or ``"rigid-body"`` for each mode.
+
+    Returns
+    -------
+    tuple of ModeInfo
+    """
+    ctx = _Context(frame)
+    return tuple(ctx.describe(u, hint) for u, hint in zip(displacements, kinds_hint))
+
+
+class _Context:
+    """What the descriptions need of the frame, computed once."""
+
+    def __init__(self, frame: Frame):
+        self.frame = frame
+        n, d = frame.n_joints, frame.dimension
+        self.d = d
+        X = frame.coords
+        w = X[frame.ends[:, 1]] - X[frame.ends[:, 0]]
+        self.w = w / np.linalg.norm(w, axis=1)[:, None]
+        # members at each joint, as CSR-like lists
+        ends = frame.ends
+        inc_j = np.concatenate([ends[:, 0], ends[:, 1]])
+        inc_m = np.concatenate([np.arange(len(ends)), np.arange(len(ends))])
+        order = np.argsort(inc_j, kind="stable")
+        self.inc_m = inc_m[order]
+        self.inc_ptr = np.searchsorted(inc_j[order], np.arange(n + 1))
+        self.up = d - 1  # z up in space, y up in a plane frame
+        self.frames = frame.tag("joint", "frame")
+        self.extrusion = self._extrusion_direction()
+        self.size = frame.size() or 1.0
+        self.held = set(frame.restraint_joint.tolist())
+
+    def members_at(self, j):
+        return self.inc_m[self.inc_ptr[j]:self.inc_ptr[j + 1]]
+
+    def _extrusion_direction(self):
+        """Unit vector from the first frame's centroid to the last's, if tagged."""
+        if not self.frames:
+            return None
+        labels = np.array(self.frames)
+        names = [f for f in dict.fromkeys(self.frames) if f]
+        if len(names) < 2:
+            return None
+        X = self.frame.coords
+        c0, c1 = X[labels == names[0]].mean(axis=0), X[labels == names[-1]].mean(axis=0)
+        v = c1 - c0
+        nv = np.linalg.norm(v)
+        return v / nv if nv > 0 else None
+
+    def joint_plane_normal(self, j):
+        """Normal of the plane of joint j's members (None unless they span exactly a plane)."""
+        ms = self.members_at(j)
+        if self.d != 3 or len(ms) < 2:
+            return None
+        _, s, vt = np.linalg.svd(self.w[ms])
+        if s[1] > 1e-6 and (len(s) < 3 or s[2] < 1e-6 * s[0]):
+            return vt[2]
+        return None
+
+    def describe(self, u, hint) -> ModeInfo:
+        f = self.frame
+        size = np.linalg.norm(u, axis=1)
+        top = size.max() if size.size else 0.0
+        moving = np.flatnonzero(size > MOVING * top)
+        moving = moving[np.argsort(-size[moving], kind="stable")]
+        jids = tuple(f.joint_ids[j] for j in moving)
+        mem = sorted({int(m) for j in moving for m in self.members_at(j)})
+        mids = tuple(f.member_ids[m] for m in mem)
+        frames = tuple(dict.fromkeys(self.frames[j] for j in moving if self.frames[j])) \
+            if self.frames else ()
+        U = u[moving]
+        _, s, vt = np.linalg.svd(U, full_matrices=False)
+        direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
+        parallel = s[0] ** 2 / max(np.sum(s ** 2), 1e-300)
+
+        if hint == "rigid-body":
+            kind, text, direction = "rigid-body", *self._rigid(u)
+        else:
+            kind, text = self._internal(u, moving, jids, direction, parallel, frames)
+        return ModeInfo(kind=kind, joints=jids, members=mids, direction=direction,
+                        frames=frames, description=text)
+
+    # -- rigid-body --------------------------------------------------------
+    def _rigid(self, u):
+        """Translation or rotation of the whole frame, fitted to the joint movements."""
+        X = self.frame.coords
+        d = self.d
+        c = X.mean(axis=0)
+        x = X - c
+        if d == 3:
+            # u = t + omega x (x): least squares for t, omega
+            rows = np.zeros((len(X), 3, 6))
+            rows[:, :, :3] = np.eye(3)
+            rows[:, 0, 4], rows[:, 0, 5] = x[:, 2], -x[:, 1]
+            rows[:, 1, 3], rows[:, 1, 5] = -x[:, 2], x[:, 0]
+            rows[:, 2, 3], rows[:, 2, 4] = x[:, 1], -x[:, 0]
+            sol, *_ = np.linalg.lstsq(rows.reshape(-1, 6), u.reshape(-1), rcond=None)
+            t, om = sol[:3], sol[3:]
+        else:
+            rows = np.zeros((len(X), 2, 3))
+            rows[:, :, :2] = np.eye(2)
+            rows[:, 0, 2], rows[:, 1, 2] = -x[:, 1], x[:, 0]
+            sol, *_ = np.linalg.lstsq(rows.reshape(-1, 3), u.reshape(-1), rcond=None)
+            t, om = sol[:2], np.array([sol[2]])
+        spin = np.linalg.norm(om) * self.size
+        if spin < 1e-6 * max(np.linalg.norm(t), 1e-300):
+            direction = t / np.linalg.norm(t)
+            return (f"The whole frame can slide {_dir_words(direction)}: no support holds it "
+                    f"that way.", direction)
+        if d == 2:
+            p = c + np.array([-t[1], t[0]]) / om[0]
+            near = self._joints_near_point(p)
+            where = f"joint {near}" if near else f"the point ({_xyz(p)})"
+            return (f"The whole frame can turn in its plane about {where}: the supports do not "
+                    f"stop the rotation.", np.array([0.0, 1.0]))
+        axis = om / np.linalg.norm(om)
+        axis *= np.sign(axis[np.argmax(np.abs(axis))])
+        p = c + np.cross(om, t) / (om @ om)
+        on_axis = self._joints_on_line(p, axis)
+        if len(on_axis) >= 2:
+            where = f"the line through joints {on_axis[0]} and {on_axis[-1]}"
+        else:
+            where = f"an axis {_dir_words(axis, along=True)} through ({_xyz(p)})"
+        return (f"The whole frame can turn about {where}: the supports do not stop the "
+                f"rotation.", axis)
+
+    def _joints_on_line(self, p, axis):
+        X = self.frame.coords
+        r = X - p
+        dist = np.linalg.norm(r - np.outer(r @ axis, axis), axis=1)
+        idx = np.flatnonzero(dist <= 1e-6 * self.size)
+        idx = idx[np.argsort(r[idx] @ axis)]
+        return [self.frame.joint_ids[j] for j in idx]
+
+    def _joints_near_point(self, p):
+        X = self.frame.coords
+        dist = np.linalg.norm(X - p, axis=1)
+        j = int(np.argmin(dist))
+        return self.frame.joint_ids[j] if dist[j] <= 1e-6 * self.size else None
+
+    # -- internal ----------------------------------------------------------
+    def _internal(self, u, moving, jids, direction, parallel, frames):
+        n_mov = len(moving)
+        names = _list(jids)
+        # a joint with no members at all
+        if n_mov == 1 and len(self.members_at(moving[0])) == 0:
+            return "local", (f"Joint {jids[0]} has no members: nothing but its support holds "
+                             f"it, and it is free {_dir_words(direction)}.")
+        # out of the plane of the members at each moving joint
+        normals = [self.joint_plane_normal(j) for j in moving]
+        if all(nv is not None and abs(nv @ u[j]) >= 0.95 * np.linalg.norm(u[j])
+               for nv, j in zip(normals, moving)):
+            if n_mov == 1:
+                return "out-of-plane", (f"Joint {jids[0]} is free out of the plane of its "
+                                        f"members ({_dir_words(direction)}): no member or "
+                                        f"support holds it that way.")
+            return "out-of-plane", (f"Joints {names} can move out of the plane of their members "
+                                    f"({_dir_words(direction)}), with nothing to stop them.")
+        # collinear members: free sideways
+        if n_mov == 1:
+            ms = self.members_at(moving[0])
+            if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=1e-6) == 1:
+                return "local", (f"Joint {jids[0]} lies on a straight line of members and is "
+                                 f"free sideways to them ({_dir_words(direction)}).")
+        # a row of frames leaning together along the extrusion
+        if self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 and \
+                abs(direction @ self.extrusion) >= 0.9:
+            first, last = frames[0], frames[-1]
+            span = f"{first}-{last}" if len(frames) > 2 else f"{first} and {last}"
+            return "lean", (f"Frames {span} can lean together along the building "
+                            f"({_dir_words(direction)}): no bracing between those frames holds "
+                            f"them.")
+        # several joints moving together sideways: racking of panels
+        if n_mov >= 2 and parallel >= 0.9 and abs(direction[self.up]) <= 0.5:
+            return "sway", (f"Joints {names} sway together {_dir_words(direction)}: the panels "
+                            f"they bound can rack with nothing to stop them.")
+        if n_mov <= LOCAL_JOINTS:
+            return "local", (f"Joints {names} can move together ({_dir_words(direction)} "
+                             f"mostly) without any member changing length.")
+        return "other", (f"{n_mov} joints move together, most at {jids[0]} "
+                         f"({_dir_words(direction)} mostly), with no member changing length.")
+
+
+def _dir_words(v, *, along=False):
+    """A direction in words: 'along +x' when nearly an axis, else its components."""
+    a = int(np.argmax(np.abs(v)))
+    if abs(v[a]) >= 0.98 * np.linalg.norm(v):
+        return f"along {'+' if v[a] > 0 else '-'}{_AXES[a]}" if not along else \
+            f"along {_AXES[a]}"
+    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
+
+
+def _xyz(p):
+    return ", ".join(f"{c:.3g}" for c in p)
+
+
+def _list(ids, most=4):
+    if len(ids) <= most:
+        return ", ".join(ids[:-1]) + (" and " if len(ids) > 1 else "") + ids[-1]
+    return ", ".join(ids[:most]) + f" and {len(ids) - most} more"
