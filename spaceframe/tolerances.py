@@ -47,6 +47,23 @@ class Tolerances:
         Restraint directions at one joint count as independent while the
         smallest singular value of their unit vectors exceeds this.
         Default ``1e-9``.
+    merge : float
+        Imported geometry (meshes, line files, drawings) gives each vertex or
+        line end on its own; two of them become one joint when their distance
+        is ``<= merge * size``, ``size`` being the diagonal of the bounding box
+        of all the vertices.  Default ``1e-6``: a millimetre-drawn 1 km frame
+        still joins ends that differ by 1 mm, while distinct joints of a real
+        frame lie at least ``1e-4 * size`` apart.  A drawing's spec may give an
+        absolute distance instead.
+    near_miss : float
+        In a drawing, a line end that joins no other line but lies within
+        ``near_miss * size`` of another end or line (and farther than the merge
+        distance) is a gap the drafter most likely did not mean; it is
+        reported as an error.  Default ``0.01``.
+    select : float
+        A support selection rule ``z = min`` or ``x = 0`` picks the joints
+        with ``|coordinate - value| <= select * size`` unless the rule gives
+        ``within DISTANCE``.  Default ``1e-6``.
     """
 
     rank: float = 1e-6
@@ -55,6 +72,9 @@ class Tolerances:
     coincident: float = 1e-9
     short_member: float = 1e-9
     restraint_dependence: float = 1e-9
+    merge: float = 1e-6
+    near_miss: float = 0.01
+    select: float = 1e-6
 
 
 DEFAULT = Tolerances()

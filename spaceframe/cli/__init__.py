@@ -24,5 +24,9 @@ def main():
 
 
 from .audit import audit_command  # noqa: E402  (subcommands register on the group)
+from .convert import convert_command  # noqa: E402
+from .extrude import extrude_command  # noqa: E402
 
 main.add_command(audit_command)
+main.add_command(extrude_command)
+main.add_command(convert_command)

@@ -9,13 +9,23 @@ import click
 
 from ..errors import SpaceframeError, SpaceframeWarning
 
-__all__ = ["run_guarded", "debug_option", "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
+__all__ = ["run_guarded", "debug_option", "force_option", "supports_option", "EXIT_BAD_INPUT",
+           "EXIT_INTERNAL"]
 
 EXIT_BAD_INPUT = 2
 EXIT_INTERNAL = 3
 
 debug_option = click.option("--debug", is_flag=True,
                             help="Show the Python traceback of an error.")
+
+force_option = click.option("--force", is_flag=True,
+                            help="Replace the output file if it exists (never an input file).")
+
+supports_option = click.option(
+    "--supports", "supports", multiple=True, metavar="RULE",
+    help="A support rule 'HELD at WHERE', e.g. 'pin at z = min' or 'y at x = 0 within 10' "
+         "(repeatable; applied after the model's own supports and its sidecar "
+         "<model>.supports.toml).")
 
 
 def run_guarded(job, *, debug: bool = False):

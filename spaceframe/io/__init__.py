@@ -15,11 +15,18 @@ from ..errors import ModelError
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
 from . import native
+from .csvpair import read_csv_pair
+from .drawing import DRAWING_SUFFIXES, read_drawing
+from .mesh import MESH_SUFFIXES, read_mesh
 
-__all__ = ["load", "find_line", "READERS", "LINE_FINDERS"]
+__all__ = ["load", "load_planar", "save", "find_line", "READERS", "LINE_FINDERS", "WRITERS"]
 
 #: File suffix (lower case) -> ``reader(path, *, tol) -> Frame``.
-READERS = {".toml": native.read_toml, ".json": native.read_json}
+READERS = {".toml": native.read_toml, ".json": native.read_json, ".csv": read_csv_pair,
+           **{s: read_mesh for s in MESH_SUFFIXES}, **{s: read_drawing for s in DRAWING_SUFFIXES}}
+
+#: File suffix (lower case) -> ``writer(frame, path, *, overwrite)``: the native formats.
+WRITERS = {".toml": native.dump_toml, ".json": native.dump_json}
 
 #: File suffix (lower case) -> ``finder(text, kind, id) -> line or None``, used by messages.
 LINE_FINDERS = {".toml": native.toml_line, ".json": native.json_line}
@@ -73,6 +80,55 @@ def load(path, *, tol: Tolerances = DEFAULT) -> Frame:
                          f"give the file one of those suffixes if that is what it holds",
                          path=source)
     return reader(source, tol=tol)
+
+
+def load_planar(path, options: dict | None = None, *, tol: Tolerances = DEFAULT) -> Frame:
+    """Read a plane frame: a model file, or a drawing read with ``options``.
+
+    ``options`` are the ``[drawing]`` table of an extrusion spec (see
+    :func:`spaceframe.io.drawing.read_drawing`); they are ignored for model
+    files.
+    """
+    source = os.fspath(path)
+    if Path(source).suffix.lower() in DRAWING_SUFFIXES and Path(source).is_file():
+        from .drawing import read_drawing
+        return read_drawing(source, tol=tol, **(options or {}))
+    return load(source, tol=tol)
+
+
+def save(frame: Frame, path, *, overwrite: bool = False, inputs=()) -> None:
+    """Write a frame as a native model file (``.toml`` or ``.json``, by the suffix).
+
+    Parameters
+    ----------
+    frame : Frame
+    path : str or os.PathLike
+    overwrite : bool, optional
+        Replace an existing file (never one of ``inputs`` nor the frame's source).
+    inputs : sequence of path, optional
+        Files the frame was made from; none of them is ever written over.
+
+    Raises
+    ------
+    ModelError
+        For another suffix, a path that is one of the inputs, or an existing
+        file without ``overwrite``.
+    """
+    target = os.fspath(path)
+    writer = WRITERS.get(Path(target).suffix.lower())
+    if writer is None:
+        raise ModelError("a model is written as .toml or .json; give the output one of those "
+                         "suffixes", path=target)
+    for source in inputs:
+        source = os.fspath(source)
+        if os.path.realpath(source) == os.path.realpath(target) or (
+                os.path.exists(target) and os.path.samefile(source, target)):
+            raise ModelError("is an input of this command and is never overwritten; write to "
+                             "another file", path=target)
+    if os.path.exists(target) and not overwrite:
+        raise ModelError("already exists and is not overwritten; choose another name, or pass "
+                         "--force to replace it", path=target)
+    writer(frame, target, overwrite=overwrite)
 
 
 def find_line(path, kind: str, item: str) -> int | None:

@@ -25,10 +25,22 @@ The JSON form is one object with the same keys: ``{"name": ..., "joints":
 {"A": [0, 0, 0], ...}, "members": {"AB": ["A", "B"], ...}, "supports": {...}}``.
 
 Ids are strings.  ``dimension`` defaults to 3, ``units`` to ``"m"`` and
-``name`` to the file name without its suffix.  The top-level keys
-``groups``, ``tags``, ``properties``, ``loads`` and ``notes`` are reserved for
-later versions and accepted without a word; any other unknown key draws a
-:class:`SpaceframeWarning`.
+``name`` to the file name without its suffix.  Named tags of joints and members (see :attr:`Frame.joint_tags`) are tables
+``[tags.joints.<attribute>]`` and ``[tags.members.<attribute>]`` of
+``label = [ids]``::
+
+    [tags.members.role]
+    chord = ["AB"]
+    web = ["BC", "CA"]
+
+    [tags.joints.frame]
+    "1" = ["A", "B", "C"]
+
+An item listed under no label of an attribute has the label ``""``; an id
+that is not in the model, or is listed under two labels of one attribute, is
+an error.  The top-level keys ``groups``, ``properties``, ``loads`` and
+``notes`` are reserved for later versions and accepted without a word; any
+other unknown key draws a :class:`SpaceframeWarning`.
 
 Reading is built for large models: arrays are made by NumPy from the parsed
 lists, ids are mapped to indices through one dict, and the type checks run
@@ -63,9 +75,9 @@ __all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_j
            "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags")
 #: Top-level keys reserved for later versions: accepted and ignored.
-RESERVED_KEYS = ("groups", "tags", "properties", "loads", "notes")
+RESERVED_KEYS = ("groups", "properties", "loads", "notes")
 
 _KNOWN = frozenset(KEYS + RESERVED_KEYS)
 _SECTION = {"joint": "joints", "member": "members", "support": "supports"}
@@ -249,9 +261,11 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
 
     restraint_joint, restraint_dir = _restraints(_section(doc, "supports", at), index,
                                                  dimension, tol, at)
+    joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
-                  dimension=dimension, name=name, units=units, source=source)
+                  dimension=dimension, name=name, units=units, source=source,
+                  joint_tags=joint_tags, member_tags=member_tags)
     return check_frame(frame, tol=tol, locate=at.line)
 
 
@@ -470,6 +484,92 @@ def _restraints(supports: dict, index: dict, dimension: int, tol: Tolerances,
     counts = [len(b) for b in blocks]
     return (np.repeat(np.array(joints, dtype=np.int64), counts),
             np.concatenate(blocks).reshape(-1, dimension))
+
+
+def _tags(doc: dict, joint_ids: tuple, member_ids: tuple,
+          at: _Where) -> tuple[dict, dict]:
+    """``(joint_tags, member_tags)`` from ``[tags.joints.<attr>]`` / ``[tags.members.<attr>]``."""
+    tags = doc.get("tags", {})
+    example = at.pair("chord", '["AB", "BC"]')
+    if not isinstance(tags, dict):
+        raise at.error(f"tags must be tables [tags.members.<attribute>] (or [tags.joints."
+                       f"<attribute>]) of label = [ids], e.g. [tags.members.role] then {example}; "
+                       f"got {type(tags).__name__}", "key", "tags")
+    out = {}
+    for kind, ids in (("joints", joint_ids), ("members", member_ids)):
+        attrs = tags.get(kind, {})
+        if not isinstance(attrs, dict) or not all(isinstance(v, dict) for v in attrs.values()):
+            raise at.error(f"[tags.{kind}] must hold tables [tags.{kind}.<attribute>] of "
+                           f"label = [ids], e.g. [tags.{kind}.role] then {example}",
+                           line=_tags_line(at, kind))
+        index = dict(zip(ids, range(len(ids))))
+        out[kind] = {attr: _tag_labels(kind, attr, table, index, at)
+                     for attr, table in attrs.items()}
+    for key in tags:
+        if key not in ("joints", "members"):
+            raise at.error(f"unknown tag section [tags.{key}]{_did_you_mean(key, _SECTION_KIND)}; "
+                           f"tags are [tags.joints.<attribute>] or [tags.members.<attribute>]",
+                           line=_tags_line(at, key))
+    return out["joints"], out["members"]
+
+
+def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> tuple[str, ...]:
+    """One label per item (``""`` where none) from ``{label: [ids]}``."""
+    labels = [""] * len(index)
+    given: dict[str, str] = {}
+    for label, items in table.items():
+        here = _tags_line(at, kind, attr, label)
+        if not (isinstance(items, list) and all(isinstance(i, str) for i in items)):
+            shown = at.pair(_toml_id(str(label)), '["A", "B"]')
+            raise at.error(f"[tags.{kind}.{attr}] label {label!r}: give a list of {kind[:-1]} "
+                           f"ids in quotes, e.g. {shown}", line=here)
+        for item in items:
+            k = index.get(item)
+            if k is None:
+                raise ModelError(f"[tags.{kind}.{attr}] label {label!r} lists {kind[:-1]} "
+                                 f"{item!r}, which is not in {at.ref(kind)}; correct the id or "
+                                 f"remove it from the list{_did_you_mean(item, index)}",
+                                 path=at.source, line=here, item=item)
+            if item in given and given[item] != label:
+                raise ModelError(f"[tags.{kind}.{attr}] lists {kind[:-1]} {item!r} under both "
+                                 f"{given[item]!r} and {label!r}; an item has one label per "
+                                 f"attribute: keep one", path=at.source, line=here, item=item)
+            given[item] = label
+            labels[k] = str(label)
+    return tuple(labels)
+
+
+def _tags_line(at: _Where, kind: str, attr: str | None = None,
+               label: str | None = None) -> int | None:
+    """The line of ``label`` under ``[tags.<kind>.<attr>]`` (or of the header), where found."""
+    if at.text is None:
+        return None
+    lines = at.text.splitlines()
+    if at.syntax == "json":
+        start, found = 0, None
+        for key in ("tags", kind, attr, label):
+            if key is None:
+                break
+            m = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:").search(
+                at.text, start)
+            if m is None:
+                break
+            start, found = m.end(), at.text.count("\n", 0, m.start()) + 1
+        return found
+    want = ["tags", kind] + ([attr] if attr is not None else [])
+    header = None
+    for k, text in enumerate(lines, 1):
+        m = re.match(r"^\s*\[([^\[\]]+)\]\s*(?:#.*)?$", text)
+        if m:
+            parts = [_unquote(p.strip()) for p in re.findall(r'"[^"]*"|\'[^\']*\'|[^.]+',
+                                                           m.group(1))]
+            if parts == want:
+                header = k
+            elif header is not None:
+                break
+        elif header is not None and label is not None and _toml_key(text) == label:
+            return k
+    return header
 
 
 # ------------------------------------------------------------ reading errors
@@ -791,7 +891,25 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
         value = (_quote(spec) if isinstance(spec, str)
                  else "[" + ", ".join(_numbers(r) for r in spec) + "]")
         out.append(f"{_toml_id(jid)} = {value}")
+    for kind, attr, groups in _tag_groups(frame):
+        out += ["", f"[tags.{kind}.{_toml_id(attr)}]"]
+        out += [f"{_toml_id(label)} = [{', '.join(map(_quote, items))}]"
+                for label, items in groups]
     _write(target, "\n".join(out) + "\n", overwrite)
+
+
+def _tag_groups(frame: Frame) -> list[tuple[str, str, list[tuple[str, list[str]]]]]:
+    """``(kind, attribute, [(label, [ids])])`` for every tag, labels in order of first use."""
+    found = []
+    for kind, tags, ids in (("joints", frame.joint_tags, frame.joint_ids),
+                            ("members", frame.member_tags, frame.member_ids)):
+        for attr, labels in tags.items():
+            groups: dict[str, list[str]] = {}
+            for item, label in zip(ids, labels):
+                if label:
+                    groups.setdefault(label, []).append(item)
+            found.append((kind, attr, list(groups.items())))
+    return found
 
 
 def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
@@ -833,4 +951,15 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
             f'  "dimension": {frame.dimension}']
     body = head + [block("joints", joints), block("members", members),
                    block("supports", supports)]
+    tag_groups = _tag_groups(frame)
+    if tag_groups:
+        sections: dict[str, list[str]] = {}
+        for kind, attr, groups in tag_groups:
+            inner = ",\n".join(f"      {_quote(label)}: [{', '.join(map(_quote, items))}]"
+                               for label, items in groups)
+            sections.setdefault(kind, []).append(f"    {_quote(attr)}: {{\n{inner}\n    }}"
+                                                 if groups else f"    {_quote(attr)}: {{}}")
+        body.append('  "tags": {\n' + ",\n".join(f'   "{kind}": {{\n' + ",\n".join(v)
+                                                 + "\n   }" for kind, v in sections.items())
+                    + "\n  }")
     _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)

@@ -1,0 +1,35 @@
+"""``spaceframe extrude PLANAR SPEC -o MODEL``: a plane frame repeated, tied and braced in 3D."""
+
+from __future__ import annotations
+
+import click
+
+from .common import debug_option, force_option, run_guarded
+
+__all__ = ["extrude_command"]
+
+
+@click.command("extrude")
+@click.argument("planar", type=click.Path(dir_okay=True, path_type=str))
+@click.argument("spec", type=click.Path(dir_okay=True, path_type=str))
+@click.option("-o", "--output", required=True, type=click.Path(path_type=str),
+              help="The 3D model file to write (.toml or .json).")
+@force_option
+@debug_option
+def extrude_command(planar, spec, output, force, debug):
+    """Repeat the plane frame in PLANAR (a dimension = 2 model file, or a DXF/SVG drawing)
+    along a building as the extrusion SPEC (TOML) says, and write the 3D model.
+
+    Ids of the output say frame and planar id (F3.U2); every joint and member is tagged
+    with its group, role, frame and bay.
+    """
+    def job():
+        from ..extrude import extrude
+        from ..io import save
+
+        frame = extrude(planar, spec)
+        save(frame, output, overwrite=force, inputs=(planar, spec))
+        click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "
+                   f"{frame.n_restraints} restraints")
+
+    run_guarded(job, debug=debug)
