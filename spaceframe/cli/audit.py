@@ -7,7 +7,7 @@ import sys
 
 import click
 
-from .common import debug_option, run_guarded
+from .common import debug_option, run_guarded, supports_option
 
 __all__ = ["audit_command"]
 
@@ -25,9 +25,11 @@ EXIT_MECHANISM = 1
 @click.option("--method", type=click.Choice(["auto", "dense", "sparse"]), default="auto",
               show_default=True, help="Rank engine: dense SVD for small frames, sparse for large.")
 @click.option("--all", "show_all", is_flag=True, help="List every mode and state in the text.")
+@supports_option
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, debug):
-    """Audit the stability of the frame in MODEL (.toml or .json).
+def audit_command(model, as_json, self_stress, method, show_all, supports, debug):
+    """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
+    .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, a ...joints.csv/...members.csv pair).
 
     Exit status: 0 when the frame is held (no mechanism), 1 when mechanisms are
     found, 2 for bad input or usage.
@@ -47,7 +49,8 @@ def audit_command(model, as_json, self_stress, method, show_all, debug):
             except ValueError:
                 raise SpaceframeError(f"--self-stress takes a whole number >= 0 or 'all', "
                                       f"not {self_stress!r}") from None
-        frame = load(model)
+        from ..selection import supports_for
+        frame = supports_for(load(model), model, supports)
         result = audit(frame, self_stress_cap=cap, method=method)
         if as_json:
             click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
