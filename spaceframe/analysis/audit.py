@@ -9,7 +9,7 @@ from ..model import Frame
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
-from .modes import KINDS, describe_modes, local_basis, order_rigid
+from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
 from .prestress import prestress_test
 from .redundancy import key_members, redundancy_shares
@@ -18,7 +18,7 @@ __all__ = ["audit"]
 
 
 def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
-          redundancy: bool = True, tol: Tolerances = DEFAULT) -> AuditResult:
+          redundancy: bool | None = None, tol: Tolerances = DEFAULT) -> AuditResult:
     """Audit the stability of a pin-jointed frame.
 
     The mechanisms are the joint displacements that stretch no member, the
@@ -45,9 +45,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         ``self_stress_cap`` and say so.
     method : {"auto", "dense", "sparse"}, keyword-only
         The rank engine (see :mod:`spaceframe.analysis.nullspace`).
-    redundancy : bool, keyword-only
-        Compute every member's redundancy share (default True; skipped, with
-        ``redundancy`` None, where it needs more than 20,000 solves).
+    redundancy : bool or None, keyword-only
+        Compute every member's redundancy share.  None (default): where it is
+        cheap (the dense engine, or at most 3,000 free coordinates, one solve
+        each); True: always up to 20,000 free coordinates; False: never.
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative singular value threshold.
 
@@ -102,6 +103,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
     hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
     info = describe_modes(frame, modes, hints)
+    modes, info = gather_leans(frame, modes, info, hints)
     # group the internal modes by kind (local kinds first), fewest joints first within a kind
     ni = internal.shape[1]
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
@@ -111,6 +113,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
     key = key_members(frame.n_members, decision.self_stress_count, decision.project)
+    if redundancy is None:
+        redundancy = decision.method == "dense" or C.shape[1] <= 3000
     shares = redundancy_shares(decision.self_stress_count, decision.project) \
         if redundancy else None
 

@@ -34,7 +34,8 @@ import numpy as np
 from ..model import Frame
 from .nullspace import canonical_basis
 
-__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "MOVING", "KINDS"]
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "gather_leans", "MOVING",
+           "KINDS"]
 
 #: A joint "moves" in a mode when its movement exceeds this fraction of the largest.
 MOVING = 0.05
@@ -199,6 +200,8 @@ class _Context:
         self.inc_ptr = np.searchsorted(inc_j[order], np.arange(n + 1))
         self.up = d - 1  # z up in space, y up in a plane frame
         self.frames = frame.tag("joint", "frame")
+        self.frame_order = tuple(fr for fr in dict.fromkeys(self.frames) if fr) \
+            if self.frames else ()
         self.extrusion = self._extrusion_direction()
         self.size = frame.size() or 1.0
         self.held = set(frame.restraint_joint.tolist())
@@ -239,8 +242,10 @@ class _Context:
         jids = tuple(f.joint_ids[j] for j in moving)
         mem = sorted({int(m) for j in moving for m in self.members_at(j)})
         mids = tuple(f.member_ids[m] for m in mem)
-        frames = tuple(dict.fromkeys(self.frames[j] for j in moving if self.frames[j])) \
-            if self.frames else ()
+        frames = ()
+        if self.frames:
+            present = {self.frames[j] for j in moving if self.frames[j]}
+            frames = tuple(fr for fr in self.frame_order if fr in present)
         U = u[moving]
         _, s, vt = np.linalg.svd(U, full_matrices=False)
         direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
@@ -335,9 +340,12 @@ class _Context:
             if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=1e-6) == 1:
                 return "local", (f"Joint {jids[0]} lies on a straight line of members and is "
                                  f"free sideways to them ({_dir_words(direction)}).")
-        # a row of frames leaning together along the extrusion
-        if self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 and \
-                abs(direction @ self.extrusion) >= 0.9:
+        # a row of frames leaning together along the extrusion: every moving joint moves
+        # the same way along the building
+        along = u[moving] @ self.extrusion if self.extrusion is not None else None
+        if along is not None and len(frames) >= 2 and parallel >= 0.9 and \
+                abs(direction @ self.extrusion) >= 0.9 and \
+                (np.all(along > 0) or np.all(along < 0)):
             first, last = frames[0], frames[-1]
             span = f"{first}-{last}" if len(frames) > 2 else f"{first} and {last}"
             return "lean", (f"Frames {span} can lean together along the building "
@@ -345,13 +353,51 @@ class _Context:
                             f"them.")
         # several joints moving together sideways: racking of panels
         if n_mov >= 2 and parallel >= 0.9 and abs(direction[self.up]) <= 0.5:
-            return "sway", (f"Joints {names} sway together {_dir_words(direction)}: the panels "
-                            f"they bound can rack with nothing to stop them.")
+            side = u[moving] @ direction
+            if np.all(side > 0) or np.all(side < 0):
+                return "sway", (f"Joints {names} sway together {_dir_words(direction)}: the "
+                                f"panels they bound can rack with nothing to stop them.")
+            return "sway", (f"Joints {names} move against each other "
+                            f"{_dir_words(direction, along=True)}: the panels between them can "
+                            f"rack with nothing to stop them.")
         if n_mov <= LOCAL_JOINTS:
             return "local", (f"Joints {names} can move together ({_dir_words(direction)} "
                              f"mostly) without any member changing length.")
         return "other", (f"{n_mov} joints move together, most at {jids[0]} "
                          f"({_dir_words(direction)} mostly), with no member changing length.")
+
+
+def gather_leans(frame: Frame, modes: np.ndarray, info: tuple, hints: tuple):
+    """Present several lean modes as one lean of the whole row and racking modes.
+
+    When ``q > 1`` modes each move a row of frames the same way along the
+    building (one per tied line of joints, say), the same space is spanned by
+    their sum, the row of frames leaning together, and the ``q - 1``
+    differences of consecutive ones, in which the lines move against each
+    other: the planes between frames rack.  The designer then reads one lean
+    per free longitudinal direction.
+
+    Returns
+    -------
+    modes : (k, n, d) float
+    info : tuple of ModeInfo
+    """
+    idx = [i for i, inf in enumerate(info) if inf.kind == "lean"]
+    if len(idx) < 2:
+        return modes, info
+    ctx = _Context(frame)
+    V = modes[idx].copy()
+    for a in range(len(V)):
+        if np.sum(V[a] @ ctx.extrusion) < 0:
+            V[a] = -V[a]
+    new = [V.sum(axis=0)] + [V[a] - V[a + 1] for a in range(len(V) - 1)]
+    modes = modes.copy()
+    info = list(info)
+    for i, v in zip(idx, new):
+        v = v / np.linalg.norm(v, axis=1).max()
+        modes[i] = v
+        info[i] = ctx.describe(v, hints[i])
+    return modes, tuple(info)
 
 
 def _dir_words(v, *, along=False):

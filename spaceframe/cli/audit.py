@@ -25,9 +25,12 @@ EXIT_MECHANISM = 1
 @click.option("--method", type=click.Choice(["auto", "dense", "sparse"]), default="auto",
               show_default=True, help="Rank engine: dense SVD for small frames, sparse for large.")
 @click.option("--all", "show_all", is_flag=True, help="List every mode and state in the text.")
+@click.option("--redundancy/--no-redundancy", default=None,
+              help="Compute every member's redundancy share (default: where it is cheap, up "
+                   "to 3,000 free coordinates).")
 @supports_option
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, supports, debug):
+def audit_command(model, as_json, self_stress, method, show_all, redundancy, supports, debug):
     """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
     .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, a ...joints.csv/...members.csv pair).
 
@@ -51,7 +54,7 @@ def audit_command(model, as_json, self_stress, method, show_all, supports, debug
                                       f"not {self_stress!r}") from None
         from ..selection import supports_for
         frame = supports_for(load(model), model, supports)
-        result = audit(frame, self_stress_cap=cap, method=method)
+        result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
         if as_json:
             click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
         else:
