@@ -106,6 +106,11 @@ class AuditResult:
         Redundancy share of each member (diagonal of the projector onto the
         self-stress space; sums to ``self_stress_states``); None when not
         computed.
+    soft_ratios : (q,) float
+        Soft modes (:mod:`spaceframe.analysis.soft`): stiffness over the
+        frame's typical stiffness, ascending, for those below 1 %.
+    soft_displacements : (q, joints, dimension) float
+    soft_info : tuple of ModeInfo
     warnings : tuple of str
     """
 
@@ -132,6 +137,9 @@ class AuditResult:
     prestress_certificate: np.ndarray | None = None
     key_members: tuple[str, ...] = ()
     redundancy: np.ndarray | None = None
+    soft_ratios: np.ndarray | None = None
+    soft_displacements: np.ndarray | None = None
+    soft_info: tuple = ()
     warnings: tuple[str, ...] = field(default_factory=tuple)
 
     @property
@@ -208,6 +216,16 @@ class AuditResult:
             "self_stress_modes": states,
             "self_stress_modes_complete": self.self_stress_complete,
             "self_stress_modes_cap": None if self.self_stress_complete else len(states),
+            "soft_modes": [
+                {"stiffness_ratio": float(f"{ratio:.4g}"), "kind": info.kind,
+                 "description": info.description, "joints": list(info.joints),
+                 "displacements": {f.joint_ids[j]: [_num(x) for x in u[j]]
+                                   for j in np.flatnonzero(np.linalg.norm(u, axis=1)
+                                                           > REPORT_FLOOR)}}
+                for ratio, info, u in zip(
+                    self.soft_ratios if self.soft_ratios is not None else (),
+                    self.soft_info,
+                    self.soft_displacements if self.soft_displacements is not None else ())],
             "prestress_stable": self.prestress_stable,
             "key_members": list(self.key_members),
             "redundancy": None if self.redundancy is None else

@@ -13,12 +13,14 @@ from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
 from .prestress import prestress_test
 from .redundancy import key_members, redundancy_shares
+from .soft import soft_modes
 
 __all__ = ["audit"]
 
 
 def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
-          redundancy: bool | None = None, tol: Tolerances = DEFAULT) -> AuditResult:
+          redundancy: bool | None = None, soft: bool = True,
+          tol: Tolerances = DEFAULT) -> AuditResult:
     """Audit the stability of a pin-jointed frame.
 
     The mechanisms are the joint displacements that stretch no member, the
@@ -49,6 +51,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         Compute every member's redundancy share.  None (default): where it is
         cheap (the dense engine, or at most 3,000 free coordinates, one solve
         each); True: always up to 20,000 free coordinates; False: never.
+    soft : bool, keyword-only
+        Look for soft modes (:mod:`spaceframe.analysis.soft`; default True).
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative singular value threshold.
 
@@ -113,6 +117,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
     key = key_members(frame.n_members, decision.self_stress_count, decision.project)
+    sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of()) if soft else None
+    soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
+        np.zeros((0, frame.n_joints, d))
+    if len(soft_u):
+        soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
+    soft_info = describe_modes(frame, soft_u, ("internal",) * len(soft_u))
     if redundancy is None:
         redundancy = decision.method == "dense" or C.shape[1] <= 3000
     shares = redundancy_shares(decision.self_stress_count, decision.project) \
@@ -138,6 +148,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         prestress_stable=pre.stable, prestress_certificate=pre.certificate,
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
+        soft_ratios=sm.ratios if sm else np.zeros(0), soft_displacements=soft_u,
+        soft_info=soft_info,
         warnings=tuple(warnings))
 
 

@@ -50,7 +50,7 @@ from ..tolerances import DEFAULT, Tolerances
 __all__ = ["RankDecision", "decide_rank", "canonical_basis", "DENSE_LIMIT"]
 
 #: The dense engine is used when members × free coordinates is at most this.
-DENSE_LIMIT = 600_000
+DENSE_LIMIT = 100_000
 
 _SEED = 20261201
 _BLOCK = 8  # right-hand sides per solve: SuperLU's multi-vector solve slows past this

@@ -127,6 +127,12 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
             lines.append(f"  ... {r.self_stress_states - shown_states} more states "
                          + ("in the JSON (--json)" if q > shown_states else
                             "not computed (raise --self-stress to compute more)"))
+    if r.soft_info:
+        lines.append("")
+        lines.append("Soft modes (held, but with less than 1 % of the frame's typical joint "
+                     "stiffness; uniform EA):")
+        for ratio, info in zip(r.soft_ratios, r.soft_info):
+            lines.append(f"  - {_pct(ratio)} of the typical stiffness: {info.description}")
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
         lines.append("")
@@ -135,6 +141,11 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     lines.append("Verdict: " + verdict(r))
     lines.append("Caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _pct(ratio: float) -> str:
+    pct = 100 * ratio
+    return f"{pct:.2g} %" if pct >= 0.01 else f"{ratio:.1e} (as a fraction)"
 
 
 def _order_note(r: AuditResult, i: int, *, plural: bool = False) -> str:

@@ -1,0 +1,125 @@
+"""Soft modes: the least stiff non-zero modes of the frame's axial stiffness.
+
+A frame can be free of mechanisms and still be only just stiff in some way:
+a nearly collinear brace, a bay held by a very long member.  With member
+axial stiffnesses ``EA / L`` the stiffness matrix is ``K = C.T diag(EA / L) C``;
+its smallest eigenvalues above the mechanisms, divided by the frame's typical
+stiffness (the median diagonal entry of ``K``, the stiffness of a joint held
+by its own members), measure how soft those modes are.  The ratio has no
+unit and does not change with the unit of length.  ``EA`` is uniform unless
+the model gives it (the native format has no member properties yet), so
+only ``1 / L`` weights the members.
+
+The eigenvalues come from a block inverse iteration with the factorisation of
+``K + delta I`` (``delta = 1e-10`` of the typical stiffness), the mechanisms
+projected out at every step, followed by Rayleigh-Ritz; small frames use a
+dense symmetric eigensolver.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+__all__ = ["SoftModes", "soft_modes", "SOFT"]
+
+#: A mode is reported as soft when its stiffness is below this fraction of the typical.
+SOFT = 1e-2
+
+_SEED = 20261203
+
+
+@dataclass(frozen=True)
+class SoftModes:
+    """The softest non-zero modes.
+
+    Attributes
+    ----------
+    ratios : (q,) float
+        Stiffness of each mode over the typical stiffness, ascending.
+    vectors : (N, q) float
+        The modes in free coordinates (unit length).
+    checked : int
+        How many of the softest modes were computed (those below
+        :data:`SOFT` are kept).
+    """
+
+    ratios: np.ndarray
+    vectors: np.ndarray
+    checked: int
+
+
+def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = SOFT,
+               ea=None) -> SoftModes:
+    """The ``count`` softest modes above the mechanisms, kept where softer than ``fraction``.
+
+    Parameters
+    ----------
+    C : (m, N) sparse
+        Compatibility matrix.
+    lengths : (m,) float
+    mech : (N, k) float
+        Orthonormal mechanism basis, projected out.
+    joint_of : (N,) int
+    ea : (m,) float, optional
+        Axial stiffness of each member; uniform when absent.
+
+    Notes
+    -----
+    Cost: one sparse factorisation and a few block solves of ``count + 4``
+    vectors, as in :mod:`spaceframe.analysis.nullspace`.
+    """
+    m, N = C.shape
+    k = mech.shape[1]
+    width = min(count, N - k)
+    empty = SoftModes(np.zeros(0), np.zeros((N, 0)), 0)
+    if width <= 0 or m == 0:
+        return empty
+    w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
+    K = (C.T @ sp.diags(w) @ C).tocsc()
+    diag = K.diagonal()
+    typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
+    if typical == 0:
+        return empty
+    if N <= 1500:
+        vals, vecs = np.linalg.eigh(K.toarray())
+        if k:  # drop the mechanism directions
+            keep = np.argsort(np.linalg.norm(mech.T @ vecs, axis=0))[:N - k]
+            keep.sort()
+            vals, vecs = vals[keep], vecs[:, keep]
+        vals, vecs = vals[:width], vecs[:, :width]
+    else:
+        vals, vecs = _iterate(K, typical, mech, joint_of, width)
+    ratios = vals / typical
+    soft = ratios < fraction
+    return SoftModes(ratios[soft], vecs[:, soft], width)
+
+
+def _iterate(K, typical, mech, joint_of, width, iterations: int = 5):
+    from .nullspace import _ordering
+
+    N = K.shape[0]
+    perm = _ordering(K, joint_of)
+    inv = np.empty_like(perm)
+    inv[perm] = np.arange(N)
+    Kp = K[perm][:, perm].tocsc()
+    lu = spla.splu((Kp + 1e-10 * typical * sp.identity(N, format="csc")).tocsc(),
+                   permc_spec="NATURAL", diag_pivot_thresh=0.0,
+                   options=dict(SymmetricMode=True))
+    M = mech[perm]
+    block = width + 4
+    X = np.random.default_rng(_SEED).standard_normal((N, min(block, N - M.shape[1])))
+    for _ in range(iterations):
+        if M.shape[1]:
+            X -= M @ (M.T @ X)
+        X = lu.solve(np.asfortranarray(X))
+        if M.shape[1]:
+            X -= M @ (M.T @ X)
+        X, _ = np.linalg.qr(X)
+        H = X.T @ (Kp @ X)
+        vals, V = np.linalg.eigh((H + H.T) / 2)
+        X = X @ V
+    return vals[:width], X[:, :width][inv]
