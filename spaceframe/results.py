@@ -108,7 +108,7 @@ class AuditResult:
         computed.
     soft_ratios : (q,) float
         Soft modes (:mod:`spaceframe.analysis.soft`): stiffness over the
-        frame's typical stiffness, ascending, for those below 1 %.
+        frame's typical stiffness, ascending: local patterns below 0.1 %.
     soft_displacements : (q, joints, dimension) float
     soft_info : tuple of ModeInfo
     warnings : tuple of str

@@ -166,3 +166,27 @@ def test_json_carries_kind_joints_description_order(tmp_path):
         assert mode["joints"] and mode["description"]
         assert (mode["order"] is None) == (mode["kind"] == "rigid-body")
     assert isinstance(doc["key_members"], list)
+
+
+def test_extruded_roof_is_worded_in_the_trade_s_terms():
+    """The unbraced demo roof (six trusses, purlins only): one lean of the whole row, the
+    bottom-chord joints free out of plane, the roof slides along the building; the modes
+    that only the 3D assembly has are said to be so (derived from the extrusion: nothing
+    ties the bottom chords and nothing holds the row along the hall)."""
+    from pathlib import Path
+    from spaceframe import load
+    from spaceframe.views.text import render_audit
+    path = Path(__file__).resolve().parent.parent / "models" / "hall_roof_unbraced.toml"
+    r = audit(load(path))
+    kinds = list(r.mode_kinds)
+    assert kinds.count("lean") == 1
+    lean = r.mode_info[kinds.index("lean")]
+    assert lean.frames == ("1", "2", "3", "4", "5", "6")
+    assert "Frames 1-6 can lean together along the building" in lean.description
+    assert "only in the 3D assembly" in lean.description
+    (slide,) = [i for i in r.mode_info if i.kind == "rigid-body"]
+    assert "along the building" in slide.description
+    text = render_audit(r)
+    assert "of frames 1-6 (30 joints) are each free out of the plane" in text
+    braced = audit(load(path.with_name("hall_roof_braced.toml")))
+    assert braced.stable

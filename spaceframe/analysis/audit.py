@@ -122,7 +122,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("internal",) * len(soft_u))
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u))
+    # a soft mode worth a designer's attention is a local weakness, not the frame's
+    # global flexibility: keep those moving at most a quarter of the joints
+    local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]
+    soft_u, soft_info = soft_u[local], tuple(soft_info[i] for i in local)
+    soft_ratio = sm.ratios[local] if sm else np.zeros(0)
     if redundancy is None:
         redundancy = decision.method == "dense" or C.shape[1] <= 3000
     shares = redundancy_shares(decision.self_stress_count, decision.project) \
@@ -148,7 +153,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
         prestress_stable=pre.stable, prestress_certificate=pre.certificate,
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
-        soft_ratios=sm.ratios if sm else np.zeros(0), soft_displacements=soft_u,
+        soft_ratios=soft_ratio, soft_displacements=soft_u,
         soft_info=soft_info,
         warnings=tuple(warnings))
 

@@ -253,10 +253,47 @@ class _Context:
 
         if hint == "rigid-body":
             kind, text, direction = "rigid-body", *self._rigid(u)
+        elif hint == "soft":
+            kind, text = self._internal(u, moving, jids, direction, parallel, frames)
+            pattern = {"local": "local", "out-of-plane": "out-of-plane", "lean": "leaning",
+                       "sway": "racking", "other": "spread-out"}[kind]
+            text = (f"{len(jids)} joint{'s' if len(jids) != 1 else ''} move, most at {jids[0]} "
+                    f"({_dir_words(direction)} mostly), in a {pattern} pattern held only weakly "
+                    f"by member stretching")
         else:
             kind, text = self._internal(u, moving, jids, direction, parallel, frames)
+            text += self._plane_note(u, moving)
         return ModeInfo(kind=kind, joints=jids, members=mids, direction=direction,
                         frames=frames, description=text)
+
+    def _tie_lines(self, moving, frames, direction):
+        """Racking between lines of joints that run along the building, in its words."""
+        if self.extrusion is None or len(frames) < 2 or abs(direction @ self.extrusion) < 0.9:
+            return None
+        ids = [self.frame.joint_ids[j] for j in moving]
+        if not all("." in i for i in ids):
+            return None
+        local = list(dict.fromkeys(i.split(".", 1)[1] for i in ids))
+        if len(local) > 4 or len(local) * len(frames) < len(ids):
+            return None
+        span = f"{frames[0]}-{frames[-1]}" if len(frames) > 2 else f"{frames[0]} and {frames[-1]}"
+        names = ", ".join(sorted(local)[:-1]) + " and " + sorted(local)[-1] if len(local) > 1 \
+            else local[0]
+        return (f"The lines of joints {names} (frames {span}) move against each other along "
+                f"the building: the panels between them can rack, with no bracing in any bay to "
+                f"stop them.")
+
+    def _plane_note(self, u, moving) -> str:
+        """For extruded frames: is the mode in the trusses' own plane, or only in 3D?"""
+        if self.extrusion is None or not len(moving):
+            return ""
+        U = u[moving]
+        along = np.sum((U @ self.extrusion) ** 2) / max(np.sum(U * U), 1e-300)
+        if along >= 0.9:
+            return " It appears only in the 3D assembly: the planar truss cannot show it."
+        if along <= 0.1:
+            return " It lies in the trusses' own plane: the planar design has it too."
+        return ""
 
     # -- rigid-body --------------------------------------------------------
     def _rigid(self, u):
@@ -283,8 +320,10 @@ class _Context:
         spin = np.linalg.norm(om) * self.size
         if spin < 1e-6 * max(np.linalg.norm(t), 1e-300):
             direction = t / np.linalg.norm(t)
-            return (f"The whole frame can slide {_dir_words(direction)}: no support holds it "
-                    f"that way.", direction)
+            building = " (along the building)" if self.extrusion is not None and \
+                abs(direction @ self.extrusion) >= 0.98 else ""
+            return (f"The whole frame can slide {_dir_words(direction)}{building}: no support "
+                    f"holds it that way.", direction)
         if d == 2:
             p = c + np.array([-t[1], t[0]]) / om[0]
             near = self._joints_near_point(p)
@@ -353,6 +392,9 @@ class _Context:
                             f"them.")
         # several joints moving together sideways: racking of panels
         if n_mov >= 2 and parallel >= 0.9 and abs(direction[self.up]) <= 0.5:
+            lines = self._tie_lines(moving, frames, direction)
+            if lines:
+                return "sway", lines
             side = u[moving] @ direction
             if np.all(side > 0) or np.all(side < 0):
                 return "sway", (f"Joints {names} sway together {_dir_words(direction)}: the "

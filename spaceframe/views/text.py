@@ -89,7 +89,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
             run = _single_joint_run(r, i)
             if len(run) > 3:  # many joints each free the same way: one line for them all
                 info = r.mode_info[i]
-                names = ", ".join(r.mode_info[j].joints[0] for j in run)
+                names = _frame_grouped(r, [r.mode_info[j].joints[0] for j in run])
                 how = "out of the plane of their members" if kind == "out-of-plane" else \
                     "on their own"
                 lines.append(f"    {i + 1}-{run[-1] + 1}. Joints {names} are each free {how} "
@@ -129,8 +129,8 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                             "not computed (raise --self-stress to compute more)"))
     if r.soft_info:
         lines.append("")
-        lines.append("Soft modes (held, but with less than 1 % of the frame's typical joint "
-                     "stiffness; uniform EA):")
+        lines.append("Soft modes (held, but a local pattern with less than 0.1 % of the frame's "
+                     "typical joint stiffness; uniform EA):")
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: {info.description}")
     lines.extend(_robustness(r, max_entries))
@@ -168,6 +168,28 @@ def _single_joint_run(r: AuditResult, i: int) -> list[int]:
         run.append(j)
         j += 1
     return run
+
+
+def _frame_grouped(r: AuditResult, joints: list[str]) -> str:
+    """``L1, L2 of frames 1-6 (12 joints)`` when the same joints of several frames are listed."""
+    f = r.frame
+    frames = f.tag("joint", "frame")
+    if not frames or len(joints) < 4:
+        return ", ".join(joints)
+    index = {jid: i for i, jid in enumerate(f.joint_ids)}
+    by_frame: dict[str, list[str]] = {}
+    for jid in joints:
+        fr = frames[index[jid]]
+        if not fr or "." not in jid:
+            return ", ".join(joints)
+        by_frame.setdefault(fr, []).append(jid.split(".", 1)[1])
+    locals_ = {tuple(sorted(v)) for v in by_frame.values()}
+    order = [fr for fr in dict.fromkeys(frames) if fr in by_frame]
+    span = f"frames {order[0]}-{order[-1]}" if len(order) > 2 else \
+        " and ".join(f"frame {fr}" for fr in order)
+    if len(locals_) == 1 and len(order) > 1:
+        return f"{', '.join(next(iter(locals_)))} of {span} ({len(joints)} joints)"
+    return ", ".join(joints)
 
 
 def _axis_words(v: np.ndarray) -> str:
