@@ -11,14 +11,14 @@ from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
-from .prestress import prestress_test
-from .redundancy import key_members, redundancy_shares
+from .prestress import prestress_test, product_forces
+from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes
 
 __all__ = ["audit"]
 
 
-def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
+def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
           redundancy: bool | None = None, soft: bool = True,
           tol: Tolerances = DEFAULT) -> AuditResult:
     """Audit the stability of a pin-jointed frame.
@@ -42,7 +42,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
     ----------
     frame : Frame
     self_stress_cap : int, keyword-only
-        Compute at most this many states of self-stress (default 20); their
+        Compute at most this many states of self-stress (default 16, one block
+        solve in the sparse engine); their
         number is always exact.  Frames with more states report the first
         ``self_stress_cap`` and say so.
     method : {"auto", "dense", "sparse"}, keyword-only
@@ -113,10 +114,14 @@ def audit(frame: Frame, *, self_stress_cap: int = 20, method: str = "auto",
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
     order += list(range(ni, k))
     modes, info = modes[order], tuple(info[i] for i in order)
-    pre = prestress_test(frame, modes[:internal.shape[1]], decision.project)
+    # one projection serves the key-member probes and the product-force test
+    force = product_forces(frame, modes[:ni])
+    both = decision.project(np.hstack([probes(frame.n_members), force]))
+    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:])
+    key = key_members(frame.n_members, decision.self_stress_count, decision.project,
+                      projected=both[:, :2])
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
-    key = key_members(frame.n_members, decision.self_stress_count, decision.project)
     sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of()) if soft else None
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))

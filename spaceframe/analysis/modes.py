@@ -223,6 +223,10 @@ class _Context:
         nv = np.linalg.norm(v)
         return v / nv if nv > 0 else None
 
+    def _out_of_plane(self, j, uj) -> bool:
+        nv = self.joint_plane_normal(j)
+        return nv is not None and abs(nv @ uj) >= 0.95 * np.linalg.norm(uj)
+
     def joint_plane_normal(self, j):
         """Normal of the plane of joint j's members (None unless they span exactly a plane)."""
         ms = self.members_at(j)
@@ -364,9 +368,7 @@ class _Context:
             return "local", (f"Joint {jids[0]} has no members: nothing but its support holds "
                              f"it, and it is free {_dir_words(direction)}.")
         # out of the plane of the members at each moving joint
-        normals = [self.joint_plane_normal(j) for j in moving]
-        if all(nv is not None and abs(nv @ u[j]) >= 0.95 * np.linalg.norm(u[j])
-               for nv, j in zip(normals, moving)):
+        if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
             if n_mov == 1:
                 return "out-of-plane", (f"Joint {jids[0]} is free out of the plane of its "
                                         f"members ({_dir_words(direction)}): no member or "

@@ -38,7 +38,7 @@ import numpy as np
 
 from ..model import Frame
 
-__all__ = ["PrestressResult", "prestress_test", "STIFFENED", "NOT_STIFFENED"]
+__all__ = ["PrestressResult", "prestress_test", "product_forces", "STIFFENED", "NOT_STIFFENED"]
 
 STIFFENED = "first-order, stiffened by prestress"
 NOT_STIFFENED = "not stiffened by any prestress"
@@ -78,7 +78,14 @@ def _relative(frame: Frame, modes: np.ndarray) -> np.ndarray:
     return modes[:, frame.ends[:, 1], :] - modes[:, frame.ends[:, 0], :]
 
 
-def prestress_test(frame: Frame, modes: np.ndarray, project) -> PrestressResult:
+def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
+    """Product forces ``p_e = |du_e|^2 / L_e`` of each mode, ``(m, k) float``."""
+    du = _relative(frame, modes)
+    return np.einsum("kmd,kmd->mk", du, du) / frame.lengths()[:, None]
+
+
+def prestress_test(frame: Frame, modes: np.ndarray, project, *,
+                   projected: np.ndarray | None = None) -> PrestressResult:
     """Apply the product-force test to internal mechanisms.
 
     Parameters
@@ -88,6 +95,9 @@ def prestress_test(frame: Frame, modes: np.ndarray, project) -> PrestressResult:
         Internal mechanisms (joint movements).
     project : callable
         Projection onto the self-stress space, ``(m, q) -> (m, q)``.
+    projected : (m, k) float, optional
+        ``project(product_forces(frame, modes))`` when the caller has already
+        computed it (with other columns in the same solves).
 
     Returns
     -------
@@ -95,16 +105,16 @@ def prestress_test(frame: Frame, modes: np.ndarray, project) -> PrestressResult:
 
     Notes
     -----
-    Cost: one projection of ``k`` vectors (``k`` solves in the sparse engine)
-    and, for the whole-frame check, ``k (k + 1) / 2`` more when ``k <= 12``.
+    Cost: one projection of ``k`` vectors (``k / 16`` block solves in the
+    sparse engine); the whole-frame check reuses it.
     """
     k, m = modes.shape[0], frame.n_members
     if k == 0:
         return PrestressResult((), np.zeros((0, m)), None, None)
     L = frame.lengths()
     du = _relative(frame, modes)
-    p = np.einsum("kmd,kmd->mk", du, du) / L[:, None]          # (m, k) product forces
-    P = project(p)
+    p = product_forces(frame, modes)
+    P = project(p) if projected is None else projected
     orders, stress = [], np.zeros((k, m))
     for i in range(k):
         if np.linalg.norm(P[:, i]) > STIFFENING * max(np.linalg.norm(p[:, i]), 1e-300):

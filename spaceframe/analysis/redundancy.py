@@ -32,7 +32,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["key_members", "redundancy_shares", "KEY"]
+__all__ = ["key_members", "probes", "redundancy_shares", "KEY"]
 
 #: A member is key when every probe's force on it is at most KEY times the probe's largest.
 KEY = 1e-8
@@ -40,7 +40,13 @@ KEY = 1e-8
 _SEED = 20261202
 
 
-def key_members(m: int, self_stress_count: int, project) -> np.ndarray:
+def probes(m: int) -> np.ndarray:
+    """The two seeded random member force vectors whose projections find key members."""
+    return np.random.default_rng(_SEED).standard_normal((m, 2))
+
+
+def key_members(m: int, self_stress_count: int, project, *,
+                projected: np.ndarray | None = None) -> np.ndarray:
     """Indices of the members that carry no force in any state of self-stress.
 
     Parameters
@@ -50,6 +56,8 @@ def key_members(m: int, self_stress_count: int, project) -> np.ndarray:
     self_stress_count : int
     project : callable
         Projection onto the self-stress space.
+    projected : (m, 2) float, optional
+        ``project(probes(m))``, where the caller computed it already.
 
     Returns
     -------
@@ -62,9 +70,9 @@ def key_members(m: int, self_stress_count: int, project) -> np.ndarray:
     """
     if self_stress_count == 0:
         return np.arange(m)
-    probes = project(np.random.default_rng(_SEED).standard_normal((m, 2)))
-    scale = np.abs(probes).max(axis=0)
-    return np.flatnonzero(np.all(np.abs(probes) <= KEY * scale, axis=1))
+    t = project(probes(m)) if projected is None else projected
+    scale = np.abs(t).max(axis=0)
+    return np.flatnonzero(np.all(np.abs(t) <= KEY * scale, axis=1))
 
 
 def redundancy_shares(self_stress_count: int, project, *, max_solves: int = 20_000):

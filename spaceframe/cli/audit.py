@@ -19,7 +19,7 @@ EXIT_MECHANISM = 1
 @click.argument("model", type=click.Path(dir_okay=True, path_type=str))
 @click.option("--json", "as_json", is_flag=True,
               help="Print one JSON document on stdout (warnings go to stderr).")
-@click.option("--self-stress", "self_stress", default="20", show_default=True, metavar="N|all",
+@click.option("--self-stress", "self_stress", default="16", show_default=True, metavar="N|all",
               help="How many states of self-stress to compute and list (their number is "
                    "always exact).")
 @click.option("--method", type=click.Choice(["auto", "dense", "sparse"]), default="auto",
