@@ -11,7 +11,6 @@ import pytest
 import sympy
 
 from spaceframe import Frame, audit
-from spaceframe.analysis.equilibrium import compatibility_matrix, free_dofs
 
 from conftest import dense_compatibility
 from reference_cases import CASES, flat_truss

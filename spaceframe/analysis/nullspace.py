@@ -108,7 +108,7 @@ class RankDecision:
 
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
-                self_stress_cap: int = 20, method: str = "auto",
+                self_stress_cap: int = 16, method: str = "auto",
                 tol: Tolerances = DEFAULT) -> RankDecision:
     """Rank of the compatibility matrix and bases of its null spaces.
 
@@ -121,7 +121,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         joints.  Each coordinate is its own joint when absent.
     self_stress_cap : int, keyword-only
         Compute at most this many states of self-stress (their number is
-        always exact).  Default 20.
+        always exact).  Default 16.
     method : {"auto", "dense", "sparse"}, keyword-only
         ``"auto"`` takes the dense engine when ``m * n <= DENSE_LIMIT``.
     tol : Tolerances, keyword-only
