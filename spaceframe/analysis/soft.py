@@ -54,7 +54,7 @@ class SoftModes:
 
 
 def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = SOFT,
-               ea=None) -> SoftModes:
+               ea=None, perm=None) -> SoftModes:
     """The ``count`` softest modes above the mechanisms, kept where softer than ``fraction``.
 
     Parameters
@@ -67,6 +67,9 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
     joint_of : (N,) int
     ea : (m,) float, optional
         Axial stiffness of each member; uniform when absent.
+    perm : (N,) int, optional
+        A fill-reducing ordering already computed for ``C.T C`` (it has the
+        same pattern); computed when absent.
 
     Notes
     -----
@@ -93,17 +96,18 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
             vals, vecs = vals[keep], vecs[:, keep]
         vals, vecs = vals[:width], vecs[:, :width]
     else:
-        vals, vecs = _iterate(K, typical, mech, joint_of, width)
+        vals, vecs = _iterate(K, typical, mech, joint_of, width, perm)
     ratios = vals / typical
     soft = ratios < fraction
     return SoftModes(ratios[soft], vecs[:, soft], width)
 
 
-def _iterate(K, typical, mech, joint_of, width, iterations: int = 5):
+def _iterate(K, typical, mech, joint_of, width, perm, iterations: int = 4):
     from .nullspace import _ordering
 
     N = K.shape[0]
-    perm = _ordering(K, joint_of)
+    if perm is None:
+        perm = _ordering(K, joint_of)
     inv = np.empty_like(perm)
     inv[perm] = np.arange(N)
     Kp = K[perm][:, perm].tocsc()
