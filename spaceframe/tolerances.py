@@ -64,6 +64,12 @@ class Tolerances:
         A support selection rule ``z = min`` or ``x = 0`` picks the joints
         with ``|coordinate - value| <= select * size`` unless the rule gives
         ``within DISTANCE``.  Default ``1e-6``.
+    panel_plane : float
+        Four joints bound a planar panel (a bracing candidate) when the two
+        lines through opposite corners pass within ``panel_plane * L`` of each
+        other, ``L`` the longer of the two diagonals, and cross inside both.
+        Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
+        panel, a twisted one (a warped roof bay) is not.
     """
 
     rank: float = 1e-6
@@ -75,6 +81,7 @@ class Tolerances:
     merge: float = 1e-6
     near_miss: float = 0.01
     select: float = 1e-6
+    panel_plane: float = 1e-4
 
 
 DEFAULT = Tolerances()

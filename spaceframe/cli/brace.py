@@ -1,0 +1,163 @@
+"""``spaceframe brace MODEL``: the fewest, shortest members and restraints that remove every
+mechanism, proven by a re-audit of the braced frame."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import os
+import sys
+
+import click
+
+from .common import debug_option, force_option, run_guarded, supports_option
+
+__all__ = ["brace_command"]
+
+EXIT_HELD = 0
+EXIT_MECHANISM = 1
+
+
+def _box(text: str, dimension: int):
+    """``"x0,y0,z0,x1,y1,z1"`` (plane frame: four numbers) to low and high corners."""
+    from ..errors import SpaceframeError
+
+    try:
+        v = [float(x) for x in text.replace(" ", ",").split(",") if x]
+    except ValueError:
+        v = []
+    if len(v) != 2 * dimension:
+        example = "0,0,0,6,25,3" if dimension == 3 else "0,0,6,3"
+        raise SpaceframeError(f"--exclude-box takes {2 * dimension} numbers, the two opposite "
+                              f"corners, e.g. {example!r}; not {text!r}")
+    lo, hi = v[:dimension], v[dimension:]
+    return [min(a, b) for a, b in zip(lo, hi)], [max(a, b) for a, b in zip(lo, hi)]
+
+
+def _joint_indices(frame, ids, option: str):
+    from ..errors import SpaceframeError
+
+    index = {j: i for i, j in enumerate(frame.joint_ids)}
+    out = []
+    for jid in ids:
+        if jid not in index:
+            raise SpaceframeError(f"{option}: joint {jid!r} is not in "
+                                  f"{frame.source or 'the model'}; give joint ids of the model")
+        out.append(index[jid])
+    return out
+
+
+def _check_output(path: str, force: bool, inputs) -> None:
+    from ..errors import ModelError
+
+    for source in inputs:
+        if source and os.path.exists(path) and os.path.samefile(source, path):
+            raise ModelError("is an input of this command and is never overwritten; write to "
+                             "another file", path=path)
+    if os.path.exists(path) and not force:
+        raise ModelError("already exists and is not overwritten; choose another name, or pass "
+                         "--force to replace it", path=path)
+
+
+def _csv_text(result) -> str:
+    doc = result.to_dict()
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["item", "id", "start", "end", "joint", "direction", "length", "location",
+                "modes"])
+    for a in doc["added"]:
+        w.writerow(["member", a["id"], a["ends"][0], a["ends"][1], "", "",
+                    f"{a['length']:.6g}", a["location"], " ".join(map(str, a["modes"]))])
+    for x in doc["restraints_added"]:
+        w.writerow(["restraint", "", "", "", x["joint"],
+                    x["axis"] or " ".join(f"{v:.6g}" for v in x["direction"]), "", "",
+                    " ".join(map(str, x["modes"]))])
+    return buf.getvalue()
+
+
+@click.command("brace")
+@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@click.option("--json", "as_json", is_flag=True,
+              help="Print one JSON document on stdout (warnings go to stderr).")
+@click.option("--csv", "csv_path", type=click.Path(path_type=str), metavar="FILE",
+              help="Write the members and restraints to add as CSV.")
+@click.option("--write", "write_path", type=click.Path(path_type=str), metavar="OUT.toml",
+              help="Write the braced model (.toml or .json); new members tagged role = brace.")
+@click.option("--no-panels", is_flag=True,
+              help="Do not take panel diagonals as candidates (use --within or --candidates).")
+@click.option("--within", type=float, metavar="LENGTH",
+              help="Also every pair of joints at most LENGTH apart that no member joins.")
+@click.option("--candidates", "candidates_path", type=click.Path(path_type=str), metavar="FILE",
+              help="A CSV list of candidate members: start,end[,weight] (weight replaces the "
+                   "length as cost).")
+@click.option("--exclude-box", multiple=True, metavar="X0,Y0,Z0,X1,Y1,Z1",
+              help="No brace may pass through this box (repeatable).")
+@click.option("--exclude-bay", multiple=True, metavar="LABEL",
+              help="No brace in panels of this bay (the bay tag of their members; repeatable).")
+@click.option("--exclude-panel", multiple=True, metavar="J1,J2,J3,J4",
+              help="No brace in the panel with these corner joints (repeatable).")
+@click.option("--restraints", type=click.Choice(["auto", "always", "never"]), default="auto",
+              show_default=True,
+              help="Restraint candidates (axis directions at supported or attachable joints): "
+                   "auto = only when the frame has rigid-body modes or --attach is given.")
+@click.option("--attach", multiple=True, metavar="JOINT",
+              help="A joint that may be tied to the ground or a braced structure (repeatable).")
+@click.option("--tension-only", is_flag=True,
+              help="Rods that carry tension only: a chosen panel gets both diagonals.")
+@click.option("--alternatives", default=3, show_default=True, type=click.IntRange(0, 50),
+              help="Alternative sets of the same size to look for.")
+@supports_option
+@force_option
+@debug_option
+def brace_command(model, as_json, csv_path, write_path, no_panels, within, candidates_path,
+                  exclude_box, exclude_bay, exclude_panel, restraints, attach, tension_only,
+                  alternatives, supports, force, debug):
+    """Recommend the fewest, then shortest, bracing members (and restraints) that remove
+    every mechanism of the frame in MODEL, and re-audit the braced frame.
+
+    Candidates: both diagonals of every planar four-sided panel bounded by members, and
+    of every wall panel closed by the ground; more with --within and --candidates.
+    The selection is exact (greedy over a linear matroid).
+
+    Exit status: 0 when the braced frame is held, 1 when mechanisms remain, 2 for bad
+    input or usage.
+    """
+    def job():
+        from .. import load
+        from ..analysis.bracing import recommend_bracing
+        from ..io import save
+        from ..io.candidates import read_candidate_list
+        from ..selection import supports_for
+        from ..views.bracing_text import render_bracing
+
+        frame = supports_for(load(model), model, supports)
+        inputs = tuple(p for p in (model, candidates_path) if p)
+        for path in (csv_path, write_path):
+            if path:
+                _check_output(path, force, inputs)
+        listed = read_candidate_list(candidates_path, frame)[:2] if candidates_path else None
+        boxes = [_box(b, frame.dimension) for b in exclude_box]
+        panels = [set(_joint_indices(frame, [j.strip() for j in p.split(",") if j.strip()],
+                                     "--exclude-panel")) for p in exclude_panel]
+        result = recommend_bracing(
+            frame, panels=not no_panels, within=within, listed=listed, restraints=restraints,
+            attachable=_joint_indices(frame, attach, "--attach"), exclude_boxes=boxes,
+            exclude_bays=exclude_bay, exclude_panels=panels, tension_only=tension_only,
+            alternatives=alternatives)
+        if write_path:
+            save(result.braced, write_path, overwrite=force, inputs=inputs)
+        if csv_path:
+            with open(csv_path, "w", encoding="utf-8", newline="") as fh:
+                fh.write(_csv_text(result))
+        if as_json:
+            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+        else:
+            click.echo(render_bracing(result), nl=False)
+            for path, what in ((write_path, "braced model"), (csv_path, "list")):
+                if path:
+                    click.echo(f"wrote {path} ({what})", err=True)
+        return result
+
+    result = run_guarded(job, debug=debug)
+    sys.exit(EXIT_HELD if result.after.stable else EXIT_MECHANISM)

@@ -1,0 +1,89 @@
+"""A bracing recommendation as text: the members and restraints to add, totals, verdict after."""
+
+from __future__ import annotations
+
+from ..analysis.bracing import BRACING_CAUTION
+from ..results import CAUTION
+from .text import verdict
+
+__all__ = ["render_bracing"]
+
+
+def _modes(numbers) -> str:
+    return ", ".join(str(n) for n in numbers) if numbers else "-"
+
+
+def render_bracing(r, *, max_rows: int = 40) -> str:
+    """The recommendation of :func:`spaceframe.analysis.bracing.recommend_bracing` as text.
+
+    Parameters
+    ----------
+    r : BracingResult
+    max_rows : int
+        Rows of each table shown (the JSON has all).
+    """
+    f, doc = r.frame, r.to_dict()
+    units = f.units
+    lines = [f"Bracing recommendation: {f.name or '(unnamed frame)'}"
+             + (f"  [{f.source}]" if f.source else "")]
+    b = r.before
+    lines.append(f"before: {b.mechanisms} mechanism{'s' * (b.mechanisms != 1)} "
+                 f"({b.internal_mechanisms} internal, {b.rigid_body_modes} rigid-body); "
+                 f"candidates: {doc['candidates']['members']} members, "
+                 f"{doc['candidates']['restraints']} restraint directions")
+    if not b.mechanisms:
+        lines += ["", "Nothing to brace: the frame has no mechanism.", "",
+                  "Caution: " + CAUTION]
+        return "\n".join(lines) + "\n"
+    lines.append("")
+    added = doc["added"]
+    if added:
+        lines.append(f"Members to add ({len(added)}), the fewest and then the shortest that "
+                     f"remove what the candidates can:")
+        rows = [("id", "from", "to", f"length {units}", "where", "modes acted on")]
+        rows += [(a["id"], a["ends"][0], a["ends"][1], f"{a['length']:.3f}", a["location"],
+                  _modes(a["modes"])) for a in added[:max_rows]]
+        lines += _table(rows)
+        if len(added) > max_rows:
+            lines.append(f"  ... and {len(added) - max_rows} more (see --json or --csv)")
+    else:
+        lines.append("No member to add: no candidate member removes a mechanism.")
+    if doc["restraints_added"]:
+        lines.append("")
+        lines.append(f"Restraints to add ({len(doc['restraints_added'])}):")
+        rows = [("joint", "held direction", "modes acted on")]
+        rows += [(x["joint"], x["axis"] or str(x["direction"]), _modes(x["modes"]))
+                 for x in doc["restraints_added"][:max_rows]]
+        lines += _table(rows)
+    lines.append("")
+    lines.append(f"Total: {len(added)} member{'s' * (len(added) != 1)}, "
+                 f"{doc['total_length']:.3f} {units}; "
+                 f"{len(doc['restraints_added'])} restraint"
+                 f"{'s' * (len(doc['restraints_added']) != 1)}")
+    def names(items):
+        return "; ".join("-".join(a["ends"]) if "ends" in a else f"{a['joint']} {a['axis']}"
+                         for a in items)
+
+    for alt in doc["alternatives"]:
+        lines.append(f"  alternative of the same size, cost {alt['total_cost']:.3f}: "
+                     f"{names(alt['take'])} instead of {names(alt['instead_of'])}")
+    for note in doc["notes"]:
+        lines.append(f"Note: {note}")
+    lines.append("")
+    lines.append("After re-audit of the braced frame: " + verdict(r.after))
+    if r.remaining:
+        lines.append("")
+        lines.append(f"Left ({len(r.remaining)}), and what would remove them:")
+        for h in r.remaining[:max_rows]:
+            lines.append(f"  - {h}")
+        if len(r.remaining) > max_rows:
+            lines.append(f"  ... and {len(r.remaining) - max_rows} more (see --json)")
+    lines.append("")
+    lines.append("Caution: " + CAUTION + " " + BRACING_CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def _table(rows) -> list[str]:
+    widths = [max(len(str(row[c])) for row in rows) for c in range(len(rows[0]))]
+    return ["  " + "  ".join(str(v).ljust(w) for v, w in zip(row, widths)).rstrip()
+            for row in rows]

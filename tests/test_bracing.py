@@ -1,0 +1,252 @@
+"""Bracing recommendations: optimality against brute force, re-audit, restraints, bad input.
+
+Sources, named per test:
+- "brute force": every subset of the candidates, each braced frame's mechanisms counted from
+  a compatibility matrix built independently here (``conftest.dense_compatibility``) and
+  numpy's SVD; the reference for "fewest, then shortest".
+- "derived": facts worked out by hand from the geometry, stated in the test.
+- "common practice": facts of the trade (a rod carries tension only, so a panel braced for
+  both racking directions with rods needs both diagonals).
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+
+import spaceframe
+from spaceframe import Frame
+from spaceframe.analysis.bracing import panel_diagonals, recommend_bracing
+
+from conftest import dense_compatibility
+
+MODELS = Path(__file__).resolve().parent.parent / "models"
+
+
+def _mechanisms(coords, ends, held):
+    C = dense_compatibility(coords, ends, held)
+    if C.size == 0:
+        return C.shape[1]
+    s = np.linalg.svd(C, compute_uv=False)
+    return C.shape[1] - int(np.sum(s > 1e-6 * s[0]))
+
+
+def _brute_force(frame, cand_ends, held):
+    """Fewest candidates removing as many mechanisms as all of them, then least length."""
+    X, ends = frame.coords, frame.ends.tolist()
+    L = [float(np.linalg.norm(X[a] - X[b])) for a, b in cand_ends]
+    best = _mechanisms(X, ends + list(cand_ends), held)
+    for size in range(len(cand_ends) + 1):
+        costs = [sum(L[i] for i in sub) for sub in itertools.combinations(range(len(cand_ends)),
+                                                                        size)
+                 if _mechanisms(X, ends + [cand_ends[i] for i in sub], held) == best]
+        if costs:
+            return size, min(costs), best
+    raise AssertionError("unreachable")
+
+
+def _held(frame):
+    return [(int(j), int(np.argmax(np.abs(e)))) for j, e in
+            zip(frame.restraint_joint, frame.restraint_dir)]
+
+
+def _jitter(coords, seed, amount):
+    rng = np.random.default_rng(seed)
+    return np.asarray(coords, float) + amount * rng.uniform(-1, 1, np.shape(coords))
+
+
+def _plane_grid(seed):
+    """2 x 2 panels in the plane, pinned at the three feet, no diagonals; corners jittered."""
+    coords = [[x, y] for y in (0, 1, 2) for x in (0, 1, 2)]
+    coords = _jitter(coords, seed, 0.15)
+    ends = [[0, 3], [1, 4], [2, 5], [3, 6], [4, 7], [5, 8],
+            [3, 4], [4, 5], [6, 7], [7, 8]]
+    return Frame.from_arrays(coords, ends, supports={0: "pin", 1: "pin", 2: "pin"})
+
+
+def _box_frame(seed):
+    """Four pinned columns and a roof ring, no bracing: a 3D box; the roof jittered in z only
+    would warp panels, so the whole box is stretched, keeping faces planar."""
+    rng = np.random.default_rng(seed)
+    a, b, h = 3 + rng.uniform(0, 2), 2 + rng.uniform(0, 2), 2.5 + rng.uniform(0, 1)
+    coords = [[0, 0, 0], [a, 0, 0], [a, b, 0], [0, b, 0],
+              [0, 0, h], [a, 0, h], [a, b, h], [0, b, h]]
+    ends = [[0, 4], [1, 5], [2, 6], [3, 7], [4, 5], [5, 6], [6, 7], [7, 4]]
+    return Frame.from_arrays(coords, ends, supports={i: "pin" for i in range(4)})
+
+
+@pytest.mark.parametrize("make,seed", [(_plane_grid, s) for s in range(1, 7)]
+                         + [(_box_frame, s) for s in range(1, 5)])
+def test_greedy_equals_brute_force(make, seed):
+    # source: brute force over every subset of the candidates
+    frame = make(seed)
+    r = recommend_bracing(frame, alternatives=0)
+    cand = r.candidates
+    cand_ends = [tuple(e) for e, m in zip(cand.ends.tolist(), cand.is_member) if m]
+    assert 4 <= len(cand_ends) <= 12
+    size, length, left = _brute_force(frame, cand_ends, _held(frame))
+    assert len(r.members_added) == size
+    assert r.total_length == pytest.approx(length, abs=1e-9)
+    assert r.after.mechanisms == left == 0
+
+
+def test_hall_roof_braced_only_in_existing_panels():
+    # source: derived.  The roof of 6 trusses ties frames only at the top chord and eaves, so
+    # every panel bounded by members lies in a roof slope or an eaves/top-chord panel; the
+    # 5 bottom-chord joints of each of the 6 trusses are in no panel: 30 out-of-plane modes
+    # stay, the other 7 (6 internal, 1 rigid-body) go (roof panels and one bearing held).
+    frame = spaceframe.load(MODELS / "hall_roof_unbraced.toml")
+    r = recommend_bracing(frame, alternatives=0)
+    edges = {frozenset(e) for e in frame.ends.tolist()}
+    for i in r.members_added:
+        corners = r.candidates.panel[i]
+        assert corners is not None
+        assert all(frozenset((p, q)) in edges
+                   for p, q in zip(corners, corners[1:] + corners[:1]))
+        assert frame.member_tags["role"][frame.n_members:] == ()  # the input is unchanged
+    assert r.before.mechanisms == 37
+    assert len(r.members_added) == 6 and len(r.restraints_added) == 1
+    assert r.after.mechanisms == 30
+    assert set(r.after.mode_kinds) == {"out-of-plane"}
+    assert all("--within" in h for h in r.remaining)
+    # the braced frame as written re-audits with the core engine
+    again = spaceframe.audit(r.braced)
+    assert again.mechanisms == 30
+    assert r.braced.member_tags["role"][frame.n_members:] == ("brace",) * 6
+
+
+def test_hall_roof_stable_with_pairs_within_reach(tmp_path):
+    # source: derived.  Ties and diagonals between bottom chords of neighbouring trusses
+    # (5.0 m and 5.39 m) are within 5.4 m; with them every mechanism can go.
+    frame = spaceframe.load(MODELS / "hall_roof_unbraced.toml")
+    r = recommend_bracing(frame, within=5.4, alternatives=1)
+    assert r.after.stable
+    assert len(r.members_added) + len(r.restraints_added) == 37
+    out = tmp_path / "roof_braced.toml"
+    spaceframe.io.save(r.braced, out)
+    again = spaceframe.audit(spaceframe.load(out))
+    assert again.stable
+    assert again.frame.member_tags["role"].count("brace") == len(r.members_added)
+
+
+def test_canopy_one_brace_removes_the_sway():
+    # source: the model file's own derivation (one sway mechanism, removed by a roof
+    # diagonal of bay 3) and brute force over the shortest candidates.
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    r = recommend_bracing(frame)
+    assert len(r.chosen) == 1 and r.after.stable
+    cand = r.candidates
+    L = cand.length[r.chosen[0]]
+    # no single shorter candidate removes it (brute force over singles)
+    X, ends = frame.coords, frame.ends.tolist()
+    for i in np.flatnonzero(cand.is_member & (cand.length < L - 1e-9)):
+        assert _mechanisms(X, ends + [cand.ends[i].tolist()], _held(frame)) == 1
+    assert all(len(alt) == 1 for alt, _ in r.alternatives)
+
+
+def test_tension_only_takes_both_diagonals():
+    # source: common practice (rods carry tension only), and brute force on the panel count.
+    frame = _box_frame(9)
+    r = recommend_bracing(frame, tension_only=True, alternatives=0)
+    chosen = set(r.chosen)
+    assert chosen and all(r.candidates.partner[i] in chosen for i in chosen)
+    single = recommend_bracing(frame, alternatives=0)
+    assert len(r.chosen) == 2 * len(single.chosen)
+    assert r.after.stable
+    assert any("both diagonals" in n for n in r.notes)
+
+
+def test_free_tetrahedron_gets_six_restraints():
+    # source: derived.  A tetrahedron is rigid (6 members = 3 x 4 - 6) and, free in space,
+    # has exactly the six rigid-body modes; only restraints remove them.
+    coords = [[0, 0, 0], [2, 0, 0], [1, 1.8, 0], [1, 0.6, 1.6]]
+    ends = list(itertools.combinations(range(4), 2))
+    frame = Frame.from_arrays(coords, ends)
+    r = recommend_bracing(frame)
+    assert r.before.rigid_body_modes == 6 and r.before.internal_mechanisms == 0
+    assert len(r.restraints_added) == 6 and r.members_added == []
+    assert r.after.stable and r.after.rigid_body_modes == 0
+    doc = r.to_dict()
+    assert doc["added"] == [] and len(doc["restraints_added"]) == 6
+
+
+def test_no_restraints_when_no_rigid_body_mode():
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    assert recommend_bracing(frame).to_dict()["restraints_added"] == []
+
+
+def test_panel_detection_rejects_warped_and_concave_quads():
+    # source: derived.  A planar square has one panel; lifting one corner warps it.
+    flat = Frame.from_arrays([[0, 0, 0], [1, 0, 0], [1, 1, 0], [0, 1, 0]],
+                             [[0, 1], [1, 2], [2, 3], [3, 0]])
+    assert len(panel_diagonals(flat)) == 2
+    warped = Frame.from_arrays([[0, 0, 0], [1, 0, 0], [1, 1, 0.2], [0, 1, 0]],
+                               [[0, 1], [1, 2], [2, 3], [3, 0]])
+    assert panel_diagonals(warped) == []
+    dart = Frame.from_arrays([[0, 0], [2, 0], [0.5, 0.5], [0, 2]],
+                             [[0, 1], [1, 2], [2, 3], [3, 0]])
+    assert panel_diagonals(dart) == []
+
+
+# ------------------------------------------------------------------------- command line
+
+def run(*args):
+    from spaceframe.cli import main
+
+    return CliRunner().invoke(main, [str(a) for a in args])
+
+
+def test_cli_json_write_and_reaudit(tmp_path):
+    out = tmp_path / "canopy_braced.toml"
+    res = run("brace", MODELS / "canopy_sway.toml", "--json", "--write", out,
+              "--csv", tmp_path / "list.csv")
+    assert res.exit_code == 0, res.output
+    doc = json.loads(res.stdout)
+    assert {"added", "restraints_added", "total_length", "after"} <= set(doc)
+    assert doc["after"]["stable"] is True
+    assert all(len(a["ends"]) == 2 and a["length"] > 0 for a in doc["added"])
+    assert spaceframe.audit(spaceframe.load(out)).stable
+    assert '[tags.members.role]' in out.read_text() and 'brace = ["BR1"]' in out.read_text()
+    assert (tmp_path / "list.csv").read_text().startswith("item,")
+    again = run("brace", MODELS / "canopy_sway.toml", "--write", out)
+    assert again.exit_code == 2 and "--force" in again.output
+
+
+def test_cli_exit_one_when_mechanisms_remain():
+    res = run("brace", MODELS / "footbridge_truss.toml")
+    assert res.exit_code == 1
+    assert "Left (12)" in res.output and "Caution" in res.output
+
+
+def test_cli_unknown_joint_in_candidate_list(tmp_path):
+    lst = tmp_path / "cands.csv"
+    lst.write_text("start,end\nR3a,R4b\nR3a,R9x\n")
+    res = run("brace", MODELS / "canopy_sway.toml", "--candidates", lst)
+    assert res.exit_code == 2
+    assert f"{lst}:3:" in res.output and "'R9x'" in res.output and "Traceback" not in res.output
+
+
+def test_cli_zero_length_candidate(tmp_path):
+    lst = tmp_path / "cands.csv"
+    lst.write_text("start,end,weight\nR3a,R3a,1\n")
+    res = run("brace", MODELS / "canopy_sway.toml", "--candidates", lst)
+    assert res.exit_code == 2 and f"{lst}:2:" in res.output and "zero length" in res.output
+
+
+def test_cli_exclusion_that_excludes_everything():
+    res = run("brace", MODELS / "canopy_sway.toml", "--exclude-box", "-1,-1,-1,13,4,4")
+    assert res.exit_code == 2 and "exclusion" in res.output and "Traceback" not in res.output
+
+
+def test_cli_listed_candidate_with_weight_is_used(tmp_path):
+    # the listed roof diagonal of bay 3 made cheap wins over every panel diagonal
+    lst = tmp_path / "cands.csv"
+    lst.write_text("start,end,weight\nR3a,R4b,0.5\n")
+    res = run("brace", MODELS / "canopy_sway.toml", "--candidates", lst, "--json")
+    assert res.exit_code == 0
+    assert json.loads(res.stdout)["added"][0]["ends"] == ["R3a", "R4b"]
