@@ -142,7 +142,7 @@ def test_dangling_joint_is_described_alone():
     assert r.internal_mechanisms == 3
     for info in r.mode_info:
         assert info.joints == ("J5",)
-        assert "has no members" in info.description
+        assert "has no members and no support" in info.description
 
 
 def test_rotation_axis_is_named_by_its_joints():

@@ -100,7 +100,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     rigid = rigid_body_motions(frame, dofs, tol=tol)
     _check_rigid_inside(decision.mechanisms, rigid)
     internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
-    rigid = order_rigid(rigid, dofs)
+    rigid = order_rigid(rigid, dofs, frame.coords)
 
     mech = np.hstack([internal, rigid])
     modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))

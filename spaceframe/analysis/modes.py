@@ -121,7 +121,7 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
     return E[:, chosen], rigid
 
 
-def order_rigid(rigid: np.ndarray, dofs) -> np.ndarray:
+def order_rigid(rigid: np.ndarray, dofs, coords: np.ndarray | None = None) -> np.ndarray:
     """Rigid-body modes as pure translations first, then the rest (rotations).
 
     The translations permitted are the intersection of the rigid-body space
@@ -147,12 +147,47 @@ def order_rigid(rigid: np.ndarray, dofs) -> np.ndarray:
         R = rigid @ a
     else:
         nt, R = 0, rigid
-    parts = [R[:, :nt], R[:, nt:]]
-    out = np.hstack([canonical_basis(p) if p.shape[1] == 1 else p for p in parts])
+    # echelon form within each block: the translations come out along the axes where the
+    # supports allow that, and the sign and order are deterministic
+    turns = _axis_turns(R[:, nt:], dofs, coords) if coords is not None else R[:, nt:]
+    out = np.hstack([canonical_basis(R[:, :nt]), turns])
     for i in range(out.shape[1]):
         v = out[:, i]
         out[:, i] = v * np.sign(v[np.argmax(np.abs(v))]) / np.linalg.norm(v)
     return out
+
+
+def _axis_turns(R: np.ndarray, dofs, coords: np.ndarray) -> np.ndarray:
+    """Rotations about axes parallel to x, y, z through the centroid, where the block has them.
+
+    Each such rotation lying in ``span(R)`` is taken (Gram-Schmidt, in axis order); the rest
+    of the block follows in echelon form.
+    """
+    r = R.shape[1]
+    d = coords.shape[1]
+    if r == 0 or d != 3:
+        return canonical_basis(R)
+    joint = dofs.joint_of()
+    slot = np.arange(dofs.total) - dofs.offset[joint]
+    x = coords - coords.mean(axis=0)
+    kept = []
+    for a in range(3):
+        spin = np.cross(np.eye(3)[a], x)                       # (n, 3)
+        v = np.einsum("nd,nd->n", dofs.basis[joint, :, slot], spin[joint]) \
+            if dofs.total else np.zeros(0)
+        nv = np.linalg.norm(v)
+        if nv == 0 or np.linalg.norm(v - R @ (R.T @ v)) > 1e-9 * nv:
+            continue
+        for q in kept:
+            v = v - q * (q @ v)
+        if np.linalg.norm(v) > 1e-9 * nv:
+            kept.append(v / np.linalg.norm(v))
+    if not kept:
+        return canonical_basis(R)
+    K = np.array(kept).T
+    rest = R - K @ (K.T @ R)
+    u, s, _ = np.linalg.svd(rest, full_matrices=False)
+    return np.hstack([K, canonical_basis(u[:, :r - K.shape[1]])])
 
 
 def _joint_count(v, joint_of):
@@ -341,7 +376,7 @@ class _Context:
         if len(on_axis) >= 2:
             where = f"the line through joints {on_axis[0]} and {on_axis[-1]}"
         else:
-            where = f"an axis {_dir_words(axis, along=True)} through ({_xyz(p)})"
+            where = f"an axis {_dir_words(axis, along=True)} through ({_xyz(p, self.size)})"
         return (f"The whole frame can turn about {where}: the supports do not stop the "
                 f"rotation.", axis)
 
@@ -365,8 +400,11 @@ class _Context:
         names = _list(jids)
         # a joint with no members at all
         if n_mov == 1 and len(self.members_at(moving[0])) == 0:
-            return "local", (f"Joint {jids[0]} has no members: nothing but its support holds "
-                             f"it, and it is free {_dir_words(direction)}.")
+            if moving[0] in self.held:
+                return "local", (f"Joint {jids[0]} has no members and its support leaves it free "
+                                 f"{_dir_words(direction)}.")
+            return "local", (f"Joint {jids[0]} has no members and no support: it is free "
+                             f"{_dir_words(direction)}.")
         # out of the plane of the members at each moving joint
         if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
             if n_mov == 1:
@@ -453,7 +491,8 @@ def _dir_words(v, *, along=False):
     return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
 
 
-def _xyz(p):
+def _xyz(p, size=1.0):
+    p = np.where(np.abs(p) <= 1e-9 * size, 0.0, p)
     return ", ".join(f"{c:.3g}" for c in p)
 
 
