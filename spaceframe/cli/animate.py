@@ -1,0 +1,114 @@
+"""``spaceframe animate MODEL -o OUT``: a mechanism in motion, or a state of self-stress."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import click
+
+from .common import debug_option, force_option, run_guarded, supports_option
+
+__all__ = ["animate_command", "check_output"]
+
+SUFFIXES = (".gif", ".mp4", ".png")
+
+
+def check_output(out: str, model: str, force: bool, suffixes) -> Path:
+    """The output path, refused when it is the input, has a wrong suffix or exists."""
+    from ..errors import SpaceframeError
+
+    path = Path(out)
+    if path.suffix.lower() not in suffixes:
+        raise SpaceframeError(f"{out}: the output must end in {', '.join(suffixes)}")
+    if Path(model).exists() and path.exists() and path.resolve() == Path(model).resolve():
+        raise SpaceframeError(f"{out} is the input model: choose another output file")
+    if path.exists() and not force:
+        raise SpaceframeError(f"{out} exists: choose another name, or give --force to replace it")
+    if not path.parent.exists():
+        raise SpaceframeError(f"{out}: the folder {path.parent} does not exist")
+    return path
+
+
+@click.command("animate")
+@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@click.option("-o", "--output", "out", required=True, metavar="OUT",
+              help="Picture to write: .gif (looping), .mp4, or .png (a strip of poses; one row "
+                   "per mode).")
+@click.option("--mode", "mode", type=int, default=None, metavar="K",
+              help="The mechanism to show, numbered from 1 in the order the audit lists them "
+                   "(default 1).")
+@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (one row each in a PNG).")
+@click.option("--state", "state", type=int, default=None, metavar="K",
+              help="Draw state of self-stress K instead (a still .png): members coloured by force.")
+@click.option("--frames", "n", type=click.IntRange(2, 240), default=None,
+              help="Poses per cycle (default 24 for .gif/.mp4, 6 for .png), starting at the "
+                   "largest movement. Use an even number: with an odd one two poses in a row "
+                   "are the same, and a GIF merges them.")
+@click.option("--fps", type=click.FloatRange(1, 60), default=12.0, show_default=True,
+              help="Poses per second of a .gif or .mp4.")
+@click.option("--size", default="800x480", show_default=True, metavar="WxH",
+              help="Picture size in pixels.")
+@click.option("--quiet", is_flag=True, help="No progress display.")
+@supports_option
+@force_option
+@debug_option
+def animate_command(model, out, mode, every, state, n, fps, size, quiet, supports, force, debug):
+    """Show how the frame in MODEL can move: one mechanism (or each) drawn through a full
+    cycle, the frame at rest ghosted behind, supports as stalks with plates (one per
+    direction held), the mode's description as the caption.
+
+    A frame with no mechanism is drawn once, at rest. Exit status 0 when the picture is
+    written, 2 for bad input or usage.
+    """
+    def job():
+        from .. import audit, load
+        from ..errors import SpaceframeError
+        from ..selection import supports_for
+        from ..views.progress import progress
+        from ..views.render import mode_frames, state_picture, write_frames
+
+        if sum(x is not None and x is not False for x in (mode, state, every or None)) > 1:
+            raise SpaceframeError("give one of --mode K, --all and --state K")
+        wh = _size(size)
+        path = check_output(out, model, force, SUFFIXES)
+        frame = supports_for(load(model), model, supports)
+        result = audit(frame)
+        if state is not None:
+            if path.suffix.lower() != ".png":
+                raise SpaceframeError("a state of self-stress is a still: write it to a .png")
+            if result.self_stress_states == 0:
+                raise SpaceframeError("the frame has no state of self-stress to draw")
+            write_frames([[state_picture(result, state - 1, size=wh)]], path)
+            return
+        count = result.mechanisms
+        if mode is not None and not 1 <= mode <= max(count, 1):
+            raise SpaceframeError(f"--mode {mode}: the audit found {count} mechanism(s); "
+                                  f"give a number from 1 to {count}" if count else
+                                  f"--mode {mode}: the frame has no mechanism")
+        if count == 0:
+            click.echo("spaceframe: the frame is held (no mechanism): drawing it at rest.",
+                       err=True)
+            modes, poses = [None], 1
+        else:
+            modes = list(range(count)) if every else [(mode or 1) - 1]
+            poses = n or (6 if path.suffix.lower() == ".png" else 24)
+        rows = []
+        with progress(len(modes) * poses, f"rendering {path.name}", quiet=quiet) as step:
+            for k in modes:
+                rows.append(mode_frames(result, k, n=poses, size=wh, on_frame=step))
+        write_frames(rows, path, fps=fps)
+
+    run_guarded(job, debug=debug)
+
+
+def _size(text: str) -> tuple[int, int]:
+    from ..errors import SpaceframeError
+
+    try:
+        w, h = (int(v) for v in text.lower().split("x"))
+    except ValueError:
+        raise SpaceframeError(f"--size takes WIDTHxHEIGHT in pixels, e.g. 800x480, "
+                              f"not {text!r}") from None
+    if not (320 <= w <= 3840 and 240 <= h <= 2160):
+        raise SpaceframeError(f"--size {text}: width 320 to 3840 and height 240 to 2160 pixels")
+    return w, h

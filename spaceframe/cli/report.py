@@ -1,0 +1,38 @@
+"""``spaceframe report MODEL -o report.html``: the audit as one self-contained HTML page."""
+
+from __future__ import annotations
+
+import click
+
+from .animate import check_output
+from .common import debug_option, force_option, run_guarded, supports_option
+
+__all__ = ["report_command"]
+
+
+@click.command("report")
+@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@click.option("-o", "--output", "out", required=True, metavar="OUT.html",
+              help="The HTML file to write.")
+@supports_option
+@force_option
+@debug_option
+def report_command(model, out, supports, force, debug):
+    """Write the audit of MODEL as one HTML file: the verdict, the counts and what they
+    mean, the mechanisms and states of self-stress, the key members, the cautions, and a
+    3D view (turn, move, zoom, click to name a joint or member, choose a mode to see it
+    move). The file needs no network and no other file.
+
+    Exit status 0 when the report is written, whatever the verdict; 2 for bad input.
+    """
+    def job():
+        from .. import audit, load
+        from ..selection import supports_for
+        from ..views.report import render_report
+
+        path = check_output(out, model, force, (".html", ".htm"))
+        result = audit(supports_for(load(model), model, supports))
+        path.write_text(render_report(result), encoding="utf-8")
+        click.echo(f"spaceframe: wrote {path}", err=True)
+
+    run_guarded(job, debug=debug)

@@ -1,0 +1,149 @@
+"""The HTML report in a real headless Chromium: no errors, no network, a live 3D view.
+
+The browser is Debian's ``chromium`` driven through Playwright's Python
+package (never a browser that Playwright downloads).  Without a browser the
+tests skip, except in CI (``CI`` set), where they must run.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+import spaceframe
+from spaceframe import Frame
+from spaceframe.views.report import render_report
+
+MODELS = Path(__file__).resolve().parent.parent / "models"
+ARTIFACTS = Path(__file__).resolve().parent / "artifacts"
+CHROMIUM = "/usr/bin/chromium"
+ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+        "--disable-component-update", "--disable-sync", "--no-first-run"]
+
+
+def _why_no_browser() -> str | None:
+    try:
+        import playwright.sync_api  # noqa: F401
+    except ImportError:
+        return "the playwright package is not installed (pip install '.[test]')"
+    if not (os.path.exists(CHROMIUM) or shutil.which("chromium")):
+        return f"no Chromium at {CHROMIUM} (apt-get install chromium)"
+    return None
+
+
+@pytest.fixture(scope="module")
+def browser():
+    why = _why_no_browser()
+    if why:
+        if os.environ.get("CI"):
+            pytest.fail(f"CI must run the browser tests: {why}")
+        pytest.skip(why)
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as p:
+        b = p.chromium.launch(executable_path=CHROMIUM if os.path.exists(CHROMIUM)
+                              else shutil.which("chromium"), args=ARGS)
+        yield b
+        b.close()
+
+
+def _open(browser, html: str, tmp_path, name="report.html"):
+    """Load ``html`` from a file; return the page, its console errors and every request."""
+    path = tmp_path / name
+    path.write_text(html, encoding="utf-8")
+    page = browser.new_page(viewport={"width": 1300, "height": 1000})
+    errors, requests = [], []
+    page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+    page.on("pageerror", lambda e: errors.append(str(e)))
+    page.on("request", lambda r: requests.append(r.url))
+    page.goto(path.as_uri())
+    page.wait_for_load_state("load")
+    return page, errors, requests, path
+
+
+def _canvas(page) -> np.ndarray:
+    """The canvas pixels as an ``(h, w, c)`` array (the canvas's own PNG, decoded)."""
+    import base64
+    import io
+
+    from PIL import Image
+
+    url = page.evaluate("() => document.getElementById('view').toDataURL('image/png')")
+    png = base64.b64decode(url.split(",", 1)[1])
+    return np.asarray(Image.open(io.BytesIO(png)).convert("RGB"))
+
+
+def test_report_opens_clean_draws_and_animates(browser, tmp_path):
+    result = spaceframe.audit(spaceframe.load(MODELS / "canopy_sway.toml"))
+    page, errors, requests, path = _open(browser, render_report(result), tmp_path)
+    try:
+        assert requests == [path.as_uri()]
+        assert page.title().startswith("spaceframe report: Footpath canopy")
+        assert "MECHANISM" in page.inner_text("#verdict")
+        assert "competent engineer" in page.inner_text("#cautions")
+        assert page.locator("#mechanisms tbody tr").count() == result.mechanisms
+        assert page.locator("#states tbody tr").count() == result.self_stress_forces.shape[0]
+        still = _canvas(page)
+        assert (still[:, :, :3] < 200).any(axis=2).mean() > 0.01, "the canvas is blank"
+        page.click("#mode-list button >> nth=0")
+        page.wait_for_timeout(250)
+        a = _canvas(page)
+        page.wait_for_timeout(400)
+        b = _canvas(page)
+        assert np.abs(a.astype(int) - b.astype(int)).sum() > 0, "the chosen mode does not move"
+        assert page.get_attribute("#mode-list button >> nth=0", "aria-pressed") == "true"
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.screenshot(path=str(ARTIFACTS / "report_canopy_sway.png"), full_page=False)
+        assert errors == []
+    finally:
+        page.close()
+
+
+def test_pick_names_a_joint_and_views_turn(browser, tmp_path):
+    result = spaceframe.audit(spaceframe.load(MODELS / "plant_platform.toml"))
+    page, errors, _, _ = _open(browser, render_report(result), tmp_path)
+    try:
+        x, y = page.evaluate("() => spaceframeViewer.screenOf('T1_1')")
+        page.mouse.click(x, y)
+        assert "T1_1" in page.inner_text("#picked")
+        before = _canvas(page)
+        box = page.locator("#view").bounding_box()
+        cx, cy = box["x"] + 200, box["y"] + 200
+        page.mouse.move(cx, cy)
+        page.mouse.down()
+        page.mouse.move(cx + 120, cy + 30, steps=5)
+        page.mouse.up()
+        assert np.abs(_canvas(page).astype(int) - before.astype(int)).sum() > 0, "orbit did nothing"
+        page.mouse.move(box["x"] + 400, box["y"] + 260)
+        turned = _canvas(page)
+        page.mouse.wheel(0, -400)
+        assert np.abs(_canvas(page).astype(int) - turned.astype(int)).sum() > 0, "zoom did nothing"
+        page.click("#state-list button >> nth=0")
+        assert "tension" in page.inner_text("#legend")
+        assert errors == []
+    finally:
+        page.close()
+
+
+def test_ids_that_look_like_markup_stay_text(browser, tmp_path):
+    evil = "</script><img src=x onerror=alert(1)>"
+    frame = Frame.from_arrays([[0, 0, 0], [4, 0, 0], [2, 0, 3]], [[0, 1], [1, 2], [2, 0]],
+                              joint_ids=["A", evil, "C&amp;"], member_ids=["AB", "BC", "CA"],
+                              supports={0: "pin", 1: "yz"}, name="<b>Bold</b> & co")
+    html = render_report(spaceframe.audit(frame))
+    assert "</script><img" not in html
+    page, errors, requests, path = _open(browser, html, tmp_path)
+    try:
+        assert requests == [path.as_uri()]
+        assert page.inner_text("#title") == "<b>Bold</b> & co"
+        assert page.locator("img").count() == 0
+        x, y = page.evaluate("(id) => spaceframeViewer.screenOf(id)", evil)
+        page.mouse.click(x, y)
+        assert evil in page.inner_text("#picked")
+        assert errors == []
+    finally:
+        page.close()

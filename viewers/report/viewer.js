@@ -1,0 +1,388 @@
+// spaceframe report: builds the tables from the audit document and runs the 3D view.
+// Plain canvas 2D with its own orthographic projection; no library, no network.
+// Every string from the document goes in through textContent, never as markup.
+"use strict";
+(function () {
+  const doc = JSON.parse(document.getElementById("spaceframe-data").textContent);
+  const audit = doc.audit;
+  const geo = doc.geometry;
+
+  const COLOUR = {
+    member: "#5d6b75", movingMember: "#0072b2", movingJoint: "#d55e00", joint: "#3a3a3a",
+    support: "#009e73", ghost: "#c4c4c4", pick: "#cc79a7",
+    compression: [0x1d, 0x5f, 0xa6], zero: [0xe3, 0xe3, 0xe3], tension: [0xc2, 0x5a, 0x12],
+  };
+
+  // ---- small DOM helpers ------------------------------------------------------------
+  function el(tag, text, cls) {
+    const e = document.createElement(tag);
+    if (text !== undefined && text !== null) e.textContent = String(text);
+    if (cls) e.className = cls;
+    return e;
+  }
+  function row(cells) {
+    const tr = el("tr");
+    for (const c of cells) {
+      const td = el("td", c.text !== undefined ? c.text : c, c.cls);
+      tr.appendChild(td);
+    }
+    return tr;
+  }
+  function plural(n, word) { return n + " " + word + (n === 1 ? "" : "s"); }
+  function listIds(ids, most) {
+    if (ids.length <= most) return ids.join(", ");
+    return ids.slice(0, most).join(", ") + " and " + (ids.length - most) + " more";
+  }
+
+  // ---- the text of the report ---------------------------------------------------------
+  function fillText() {
+    document.title = "spaceframe report: " + (audit.name || "frame");
+    document.getElementById("title").textContent = audit.name || "(unnamed frame)";
+    document.getElementById("source").textContent =
+      (audit.source ? "Model " + audit.source + "; " : "") +
+      (audit.dimension === 3 ? "space frame" : "plane frame analysed in its plane") +
+      "; lengths in " + audit.units + ".";
+    const v = document.getElementById("verdict");
+    v.textContent = doc.verdict;
+    if (audit.stable) v.classList.add("held");
+    document.getElementById("caution-top").textContent = audit.caution;
+
+    const d = audit.dimension;
+    const meanings = [
+      ["joints", audit.joints, "points where members meet, each free to move in " + d + " directions unless held"],
+      ["members", audit.members, "pin-ended bars; each keeps one distance fixed"],
+      ["restraints", audit.restraints, "independent directions held by the supports"],
+      ["counting rule", (audit.maxwell > 0 ? "+" : "") + audit.maxwell,
+        "members + restraints - " + d + " x joints: negative proves mechanisms; zero or more proves nothing"],
+      ["rank", audit.rank, "independent member forces the joints can feel (rank of the equilibrium matrix)"],
+      ["mechanisms", audit.mechanisms, "independent ways the joints can move with no member changing length"],
+      ["rigid-body modes", audit.rigid_body_modes, "of those, the whole frame moving as one body on its supports"],
+      ["internal mechanisms", audit.internal_mechanisms, "the rest: the frame changes shape"],
+      ["states of self-stress", audit.self_stress_states, "independent sets of member forces with no load: the degree of redundancy"],
+    ];
+    const tb = document.querySelector("#counts tbody");
+    for (const [k, val, m] of meanings) tb.appendChild(row([k, { text: val, cls: "num" }, m]));
+
+    const ms = document.getElementById("mech-summary");
+    ms.textContent = audit.mechanisms === 0
+      ? "None: every joint is held in every direction by members and supports."
+      : plural(audit.mechanisms, "mechanism") + " (" + audit.internal_mechanisms + " internal, " +
+        audit.rigid_body_modes + " rigid-body), numbered as the audit lists them. Choose one in the view to see it move.";
+    const mb = document.querySelector("#mechanisms tbody");
+    audit.mechanism_modes.forEach((m, i) => {
+      mb.appendChild(row([{ text: i + 1, cls: "num" }, m.kind, m.description || "",
+        { text: listIds(m.joints || [], 8), cls: "ids" }, m.order || "(rigid-body)"]));
+    });
+
+    const ss = document.getElementById("stress-summary");
+    const q = audit.self_stress_modes.length;
+    ss.textContent = audit.self_stress_states === 0
+      ? "None: no member carries force without load (the frame, as far as it is held, is statically determinate)."
+      : plural(audit.self_stress_states, "independent state") + " of self-stress" +
+        (audit.self_stress_modes_complete ? "" : " (the first " + q + " computed)") +
+        ". Forces are scaled so the largest is 1; + is tension (the member pulls), - compression (it pushes).";
+    const sb = document.querySelector("#states tbody");
+    audit.self_stress_modes.forEach((s, i) => {
+      const entries = Object.entries(s.forces);
+      const tens = entries.filter(e => e[1] > 0).sort((a, b) => b[1] - a[1]);
+      const comp = entries.filter(e => e[1] < 0).sort((a, b) => a[1] - b[1]);
+      const fmt = list => listIds(list.map(e => e[0] + " " + (e[1] > 0 ? "+" : "") + e[1].toFixed(3)), 4) || "none";
+      sb.appendChild(row([{ text: i + 1, cls: "num" }, { text: entries.length, cls: "num" },
+        { text: fmt(tens), cls: "ids" }, { text: fmt(comp), cls: "ids" }]));
+    });
+
+    const key = audit.key_members || [];
+    document.getElementById("key-summary").textContent = key.length === 0
+      ? "No key member: every member takes part in some state of self-stress, so losing any single one leaves no new mechanism."
+      : plural(key.length, "member") + " carry no force in any state of self-stress: losing any one of them leaves a mechanism.";
+    document.getElementById("key-members").textContent = key.join(", ");
+
+    const cl = document.getElementById("cautions");
+    for (const c of [audit.caution].concat(doc.limits, audit.warnings || [])) cl.appendChild(el("li", c));
+    if (audit.rank_decision && audit.rank_decision.narrow)
+      cl.appendChild(el("li", "The rank decision was narrow: the result is sensitive to the geometry's precision."));
+    document.getElementById("footer").textContent = "Made by spaceframe " + doc.version + ".";
+  }
+
+  // ---- the 3D view ----------------------------------------------------------------------
+  const canvas = document.getElementById("view");
+  const ctx = canvas.getContext("2d");
+  const X = geo.coords, E = geo.ends;
+  const centre = [0, 1, 2].map(a => {
+    let lo = Infinity, hi = -Infinity;
+    for (const p of X) { lo = Math.min(lo, p[a]); hi = Math.max(hi, p[a]); }
+    return X.length ? (lo + hi) / 2 : 0;
+  });
+  const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
+  const show = { mode: -1, state: -1, t0: 0, picked: null };
+  let animating = false;
+
+  function setDirection(v) {
+    view.az = Math.atan2(v[1], v[0]);
+    view.el = Math.asin(Math.max(-1, Math.min(1, v[2])));
+  }
+  function fit(v) { setDirection(v); view.zoom = 1; view.panX = 0; view.panY = 0; }
+
+  function basis() {
+    const ca = Math.cos(view.az), sa = Math.sin(view.az), ce = Math.cos(view.el), se = Math.sin(view.el);
+    const back = [ce * ca, ce * sa, se];          // from the centre towards the eye
+    const right = [-sa, ca, 0];                    // horizontal, across the view
+    const up = [-se * ca, -se * sa, ce];           // back x right, so up stays up
+    return { back, right, up };
+  }
+  function scale() { return 0.78 * view.zoom * Math.min(canvas.width, canvas.height) / geo.extent; }
+
+  function positions() {
+    if (show.mode < 0) return X;
+    const u = geo.modes[show.mode];
+    const phase = animating ? 2 * Math.PI * ((performance.now() - show.t0) / 2000 % 1) : 0;
+    const a = geo.amplitude * geo.extent * Math.sin(phase);
+    return X.map((p, j) => [p[0] + a * u[j][0], p[1] + a * u[j][1], p[2] + a * u[j][2]]);
+  }
+
+  function projector() {
+    const b = basis(), s = scale();
+    const cx = canvas.width / 2 + view.panX, cy = canvas.height / 2 + view.panY;
+    return p => {
+      const d = [p[0] - centre[0], p[1] - centre[1], p[2] - centre[2]];
+      return [cx + s * (d[0] * b.right[0] + d[1] * b.right[1] + d[2] * b.right[2]),
+        cy - s * (d[0] * b.up[0] + d[1] * b.up[1] + d[2] * b.up[2]),
+        d[0] * b.back[0] + d[1] * b.back[1] + d[2] * b.back[2]];
+    };
+  }
+
+  function forceColour(t) {
+    const [a, b, f] = t < 0 ? [COLOUR.zero, COLOUR.compression, -t] : [COLOUR.zero, COLOUR.tension, t];
+    const c = a.map((v, i) => Math.round(v + (b[i] - v) * Math.min(1, f)));
+    return "rgb(" + c.join(",") + ")";
+  }
+
+  function draw() {
+    const W = canvas.width, H = canvas.height;
+    ctx.fillStyle = "#ffffff";
+    ctx.fillRect(0, 0, W, H);
+    const P = projector();
+    const now = positions().map(P);
+    const moving = show.mode >= 0 ? geo.moving[show.mode] : null;
+    const forces = show.state >= 0 ? geo.forces[show.state] : null;
+    ctx.lineCap = "round";
+    if (show.mode >= 0) {                             // the frame at rest, ghosted behind
+      const rest = X.map(P);
+      ctx.strokeStyle = COLOUR.ghost; ctx.lineWidth = 1.5;
+      ctx.beginPath();
+      for (const [a, b] of E) { ctx.moveTo(rest[a][0], rest[a][1]); ctx.lineTo(rest[b][0], rest[b][1]); }
+      ctx.stroke();
+    }
+    const order = E.map((e, k) => k).sort((k, l) =>
+      (now[E[k][0]][2] + now[E[k][1]][2]) - (now[E[l][0]][2] + now[E[l][1]][2]));
+    for (const k of order) {
+      const [a, b] = E[k];
+      let colour = COLOUR.member, width = 2.5;
+      if (moving && (moving[a] || moving[b])) { colour = COLOUR.movingMember; width = 3.5; }
+      if (forces) {
+        const t = forces[k];
+        colour = Math.abs(t) > 1e-6 ? forceColour(t) : COLOUR.ghost;
+        width = Math.abs(t) > 1e-6 ? 4.5 : 1.5;
+      }
+      if (show.picked && show.picked.kind === "member" && show.picked.index === k) { colour = COLOUR.pick; width = 6; }
+      ctx.strokeStyle = colour; ctx.lineWidth = width;
+      ctx.beginPath(); ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[b][0], now[b][1]); ctx.stroke();
+    }
+    drawSupports(P, now);
+    for (let j = 0; j < now.length; j++) {
+      const picked = show.picked && show.picked.kind === "joint" && show.picked.index === j;
+      const mv = moving && moving[j];
+      const r = picked ? 7 : mv ? 6 : 2.5;
+      ctx.fillStyle = picked ? COLOUR.pick : mv ? COLOUR.movingJoint : COLOUR.joint;
+      ctx.beginPath(); ctx.arc(now[j][0], now[j][1], r, 0, 2 * Math.PI); ctx.fill();
+    }
+    if (animating) requestAnimationFrame(draw);
+  }
+
+  // A support is drawn as one stalk per held direction, ending in a plate across it.
+  function drawSupports(P, now) {
+    const b = basis(), s = scale();
+    ctx.strokeStyle = COLOUR.support;
+    for (const sup of geo.supports) {
+      const j = sup[0], d = sup[1], len = geo.glyph * geo.extent;
+      const p0 = now[j];
+      const tip = [p0[0] + s * len * dot(d, b.right), p0[1] - s * len * dot(d, b.up)];
+      ctx.lineWidth = 3;
+      ctx.beginPath(); ctx.moveTo(p0[0], p0[1]); ctx.lineTo(tip[0], tip[1]); ctx.stroke();
+      const sx = tip[0] - p0[0], sy = tip[1] - p0[1], l = Math.hypot(sx, sy);
+      ctx.lineWidth = 4;
+      ctx.beginPath();
+      if (l > 2) {
+        const px = -sy / l * 8, py = sx / l * 8;
+        ctx.moveTo(tip[0] - px, tip[1] - py); ctx.lineTo(tip[0] + px, tip[1] + py);
+      } else {                                          // held along the line of sight
+        ctx.arc(p0[0], p0[1], 8, 0, 2 * Math.PI);
+      }
+      ctx.stroke();
+    }
+  }
+  function dot(u, v) { return u[0] * v[0] + u[1] * v[1] + u[2] * v[2]; }
+
+  // ---- picking ------------------------------------------------------------------------
+  function pickAt(x, y) {
+    const P = projector();
+    const now = positions().map(P);
+    let best = null, bestD = 9;
+    now.forEach((p, j) => {
+      const dd = Math.hypot(p[0] - x, p[1] - y);
+      if (dd < bestD) { bestD = dd; best = { kind: "joint", index: j }; }
+    });
+    if (!best) {
+      bestD = 7;
+      E.forEach(([a, b], k) => {
+        const dd = segmentDistance(x, y, now[a], now[b]);
+        if (dd < bestD) { bestD = dd; best = { kind: "member", index: k }; }
+      });
+    }
+    show.picked = best;
+    const out = document.getElementById("picked");
+    if (!best) out.textContent = "Nothing picked.";
+    else if (best.kind === "joint") {
+      const p = X[best.index];
+      out.textContent = "joint " + geo.joints[best.index] + " at (" + p.map(v => v.toFixed(3)).join(", ") + ")";
+    } else {
+      const [a, b] = E[best.index];
+      let text = "member " + geo.members[best.index] + ": " + geo.joints[a] + " to " + geo.joints[b];
+      if (show.state >= 0) {
+        const t = geo.forces[show.state][best.index];
+        text += "; force " + (t > 0 ? "+" : "") + t.toFixed(3) + (t > 1e-6 ? " tension" : t < -1e-6 ? " compression" : " (none)");
+      }
+      out.textContent = text;
+    }
+    if (!animating) draw();
+  }
+  function segmentDistance(x, y, a, b) {
+    const dx = b[0] - a[0], dy = b[1] - a[1], l2 = dx * dx + dy * dy;
+    const t = l2 > 0 ? Math.max(0, Math.min(1, ((x - a[0]) * dx + (y - a[1]) * dy) / l2)) : 0;
+    return Math.hypot(a[0] + t * dx - x, a[1] + t * dy - y);
+  }
+
+  // ---- pointer and wheel ----------------------------------------------------------------
+  let drag = null;
+  function canvasXY(ev) {
+    const r = canvas.getBoundingClientRect();
+    return [(ev.clientX - r.left) * canvas.width / r.width, (ev.clientY - r.top) * canvas.height / r.height];
+  }
+  canvas.addEventListener("contextmenu", ev => ev.preventDefault());
+  canvas.addEventListener("pointerdown", ev => {
+    const [x, y] = canvasXY(ev);
+    drag = { x, y, x0: x, y0: y, pan: ev.shiftKey || ev.button !== 0, moved: false };
+    canvas.setPointerCapture(ev.pointerId);
+  });
+  canvas.addEventListener("pointermove", ev => {
+    if (!drag) return;
+    const [x, y] = canvasXY(ev);
+    const dx = x - drag.x, dy = y - drag.y;
+    if (Math.hypot(x - drag.x0, y - drag.y0) > 4) drag.moved = true;
+    if (drag.pan) { view.panX += dx; view.panY += dy; }
+    else {
+      view.az -= dx * 0.01;
+      view.el = Math.max(-1.5, Math.min(1.5, view.el + dy * 0.01));
+    }
+    drag.x = x; drag.y = y;
+    if (!animating) draw();
+  });
+  canvas.addEventListener("pointerup", ev => {
+    if (drag && !drag.moved) { const [x, y] = canvasXY(ev); pickAt(x, y); }
+    drag = null;
+  });
+  canvas.addEventListener("wheel", ev => {
+    ev.preventDefault();
+    view.zoom = Math.max(0.1, Math.min(40, view.zoom * Math.exp(-ev.deltaY * 0.001)));
+    if (!animating) draw();
+  }, { passive: false });
+
+  // ---- mode and state lists --------------------------------------------------------------
+  const buttons = [];
+  function press(active) { for (const b of buttons) b.setAttribute("aria-pressed", String(b === active)); }
+  function chooseMode(i, button) {
+    show.mode = i; show.state = -1; show.t0 = performance.now();
+    fit(geo.views[i]);
+    press(button);
+    legend();
+    if (!animating) { animating = true; requestAnimationFrame(draw); }
+  }
+  function chooseState(i, button) {
+    show.mode = -1; show.state = i; animating = false;
+    fit(geo.rest_view);
+    press(button);
+    legend();
+    draw();
+  }
+  function atRest() { show.mode = -1; show.state = -1; animating = false; press(null); legend(); draw(); }
+
+  function fillLists() {
+    const ml = document.getElementById("mode-list");
+    if (!audit.mechanism_modes.length) ml.appendChild(el("li", "None: nothing moves.", "muted"));
+    audit.mechanism_modes.forEach((m, i) => {
+      const li = el("li"), b = el("button", (i + 1) + ". " + m.kind + ": " + (m.description || ""));
+      b.type = "button"; b.setAttribute("aria-pressed", "false"); b.dataset.mode = String(i);
+      b.addEventListener("click", () => chooseMode(i, b));
+      buttons.push(b); li.appendChild(b); ml.appendChild(li);
+    });
+    const sl = document.getElementById("state-list");
+    if (!audit.self_stress_modes.length) sl.appendChild(el("li", "None.", "muted"));
+    audit.self_stress_modes.forEach((s, i) => {
+      const li = el("li"), b = el("button", "State " + (i + 1) + ": " + plural(Object.keys(s.forces).length, "member"));
+      b.type = "button"; b.setAttribute("aria-pressed", "false"); b.dataset.state = String(i);
+      b.addEventListener("click", () => chooseState(i, b));
+      buttons.push(b); li.appendChild(b); sl.appendChild(li);
+    });
+    // BRACING: when `spaceframe brace` results are in the document, their toggle is built
+    // here, beside the state list (see the marked place in template.html).
+    document.getElementById("rest").addEventListener("click", atRest);
+    document.getElementById("fit").addEventListener("click", () => {
+      fit(show.mode >= 0 ? geo.views[show.mode] : geo.rest_view); if (!animating) draw();
+    });
+  }
+
+  function legend() {
+    const box = document.getElementById("legend");
+    box.textContent = "";
+    const entries = [];
+    if (show.state >= 0) {
+      const d = el("div"), ramp = el("span", null, "ramp");
+      ramp.style.background = "linear-gradient(to right, " + forceColour(-1) + ", " + forceColour(0) + ", " + forceColour(1) + ")";
+      d.appendChild(el("span", "compression -1")); d.appendChild(ramp); d.appendChild(el("span", "+1 tension"));
+      box.appendChild(d);
+      entries.push([COLOUR.ghost, "light grey, thin: carries nothing in this state"]);
+    } else if (show.mode >= 0) {
+      entries.push([COLOUR.movingJoint, "vermillion: joints that move"],
+        [COLOUR.movingMember, "blue: members at them"],
+        [COLOUR.ghost, "light grey: the frame at rest"]);
+    } else {
+      entries.push([COLOUR.member, "slate: members"], [COLOUR.joint, "dark dots: joints"]);
+    }
+    entries.push([COLOUR.support, "green stalk and plate: a direction a support holds"],
+      [COLOUR.pick, "pink: what you picked"]);
+    for (const [c, words] of entries) {
+      const d = el("div"), sw = el("span", null, "swatch");
+      sw.style.background = c;
+      d.appendChild(sw); d.appendChild(el("span", words)); box.appendChild(d);
+    }
+  }
+
+  // For tests and for scripting: where a joint is drawn, and the choices above.
+  window.spaceframeViewer = {
+    screenOf(jointId) {
+      const j = geo.joints.indexOf(jointId);
+      if (j < 0) return null;
+      const p = projector()(positions()[j]);
+      const r = canvas.getBoundingClientRect();
+      return [r.left + p[0] * r.width / canvas.width, r.top + p[1] * r.height / canvas.height];
+    },
+    chooseMode(i) { chooseMode(i, buttons[i]); },
+    atRest,
+  };
+
+  fillText();
+  fillLists();
+  fit(geo.rest_view);
+  legend();
+  draw();
+})();
