@@ -59,6 +59,9 @@ class Frame:
         post, tie, purlin, brace, ...), ``"frame"`` (the planar frame an item
         belongs to, ``"1"``, ``"2"``...), ``"bay"``.  Analyses use them to
         describe results; they never change the numbers.
+    member_properties : mapping of str to (m,) float
+        Numeric member properties; ``"EA"`` (axial stiffness, any consistent
+        unit) weights the soft-mode search.  Absent: uniform.
     """
 
     joint_ids: tuple[str, ...]
@@ -74,6 +77,7 @@ class Frame:
     lines: Mapping[tuple[str, str], int] = field(default_factory=dict)
     joint_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    member_properties: Mapping[str, np.ndarray] = field(default_factory=dict)
 
     def __post_init__(self):
         d = self.dimension
@@ -112,6 +116,15 @@ class Frame:
                                      path=self.source)
                 tags[str(key)] = labels
             object.__setattr__(self, attr, MappingProxyType(tags))
+        props = {}
+        for key, values in dict(self.member_properties).items():
+            arr = np.array(values, dtype=float).reshape(-1)
+            if len(arr) != len(ends) or not np.all(np.isfinite(arr)) or np.any(arr <= 0):
+                raise ModelError(f"member property {key!r} needs one positive finite value per "
+                                 f"member ({len(ends)})", path=self.source)
+            arr.setflags(write=False)
+            props[str(key)] = arr
+        object.__setattr__(self, "member_properties", MappingProxyType(props))
 
     @property
     def n_joints(self) -> int:

@@ -234,4 +234,6 @@ def _drop_repeated_members(frame: Frame, line) -> Frame:
     return dataclasses.replace(frame, member_ids=tuple(compress(ids, keep)),
                                ends=frame.ends[keep],
                                member_tags={k: tuple(compress(v, keep))
-                                            for k, v in frame.member_tags.items()})
+                                            for k, v in frame.member_tags.items()},
+                               member_properties={k: v[keep] for k, v in
+                                                  frame.member_properties.items()})

@@ -123,6 +123,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
     sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of(),
+                    ea=frame.member_properties.get("EA"),
                     perm=getattr(decision.project, "perm", None)) if soft else None
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))

@@ -6,9 +6,9 @@ axial stiffnesses ``EA / L`` the stiffness matrix is ``K = C.T diag(EA / L) C``;
 its smallest eigenvalues above the mechanisms, divided by the frame's typical
 stiffness (the median diagonal entry of ``K``, the stiffness of a joint held
 by its own members), measure how soft those modes are.  The ratio has no
-unit and does not change with the unit of length.  ``EA`` is uniform unless
-the model gives it (the native format has no member properties yet), so
-only ``1 / L`` weights the members.
+unit and does not change with the unit of length or of force.  ``EA`` comes
+from the model's ``[properties.members.EA]`` table, and is uniform when the
+model gives none (then only ``1 / L`` weights the members).
 
 The eigenvalues come from a block inverse iteration with the factorisation of
 ``K + delta I`` (``delta = 1e-10`` of the typical stiffness), the mechanisms

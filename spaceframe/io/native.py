@@ -38,9 +38,23 @@ Ids are strings.  ``dimension`` defaults to 3, ``units`` to ``"m"`` and
 
 An item listed under no label of an attribute has the label ``""``; an id
 that is not in the model, or is listed under two labels of one attribute, is
-an error.  The top-level keys ``groups``, ``properties``, ``loads`` and
-``notes`` are reserved for later versions and accepted without a word; any
-other unknown key draws a :class:`SpaceframeWarning`.
+an error.
+
+Member properties (see :attr:`Frame.member_properties`) are tables
+``[properties.members.<name>]``; the one known is ``EA``, the axial
+stiffness in any consistent unit::
+
+    [properties.members.EA]
+    default = 2.0e5          # every member not named below
+    "role=chord" = 4.0e5     # every member tagged role = chord
+    AB = 1.0e5               # one member
+
+A member id wins over a selector, a selector over the default; a member left
+without a value is an error.
+
+The top-level keys ``groups``, ``loads`` and ``notes`` are reserved for later
+versions and accepted without a word; any other unknown key draws a
+:class:`SpaceframeWarning`.
 
 Reading is built for large models: arrays are made by NumPy from the parsed
 lists, ids are mapped to indices through one dict, and the type checks run
@@ -75,9 +89,12 @@ __all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_j
            "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
 #: Top-level keys reserved for later versions: accepted and ignored.
-RESERVED_KEYS = ("groups", "properties", "loads", "notes")
+RESERVED_KEYS = ("groups", "loads", "notes")
+
+#: Member properties the native format knows, with what each means.
+PROPERTIES = {"EA": "axial stiffness, in any consistent unit (only ratios are used)"}
 
 _KNOWN = frozenset(KEYS + RESERVED_KEYS)
 _SECTION = {"joint": "joints", "member": "members", "support": "supports"}
@@ -262,10 +279,12 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
     restraint_joint, restraint_dir = _restraints(_section(doc, "supports", at), index,
                                                  dimension, tol, at)
     joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
+    properties = _properties(doc, member_ids, member_tags, at)
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
                   dimension=dimension, name=name, units=units, source=source,
-                  joint_tags=joint_tags, member_tags=member_tags)
+                  joint_tags=joint_tags, member_tags=member_tags,
+                  member_properties=properties)
     return check_frame(frame, tol=tol, locate=at.line)
 
 
@@ -513,6 +532,87 @@ def _tags(doc: dict, joint_ids: tuple, member_ids: tuple,
     return out["joints"], out["members"]
 
 
+def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> dict:
+    """Member properties from ``[properties.members.<name>]`` tables.
+
+    A table holds ``default = value``, selectors ``"<tag attribute>=<label>" = value``
+    (every member with that tag) and member ids; they apply in that order, so a
+    member id wins over a selector and a selector over the default.  Values are
+    positive numbers.  A member left without a value (no default) is an error.
+    """
+    props = doc.get("properties", {})
+    example = at.pair("default", "2.0e5")
+    if not isinstance(props, dict) or not isinstance(props.get("members", {}), dict) or \
+            any(k != "members" for k in props):
+        raise at.error(f"properties must be tables [properties.members.<name>], e.g. "
+                       f"[properties.members.EA] then {example}", "key", "properties")
+    index = dict(zip(member_ids, range(len(member_ids))))
+    out = {}
+    for name, table in props.get("members", {}).items():
+        here = _tags_line(at, "members", name, root="properties")
+        if name not in PROPERTIES:
+            warnings.warn(f"{where(at.source, here)}unknown member property {name!r} is "
+                          f"ignored; known: "
+                          + ", ".join(f"{k} ({v})" for k, v in PROPERTIES.items()),
+                          SpaceframeWarning, stacklevel=4)
+            continue
+        if not isinstance(table, dict):
+            raise ModelError(f"[properties.members.{name}] must be a table of default = value, "
+                             f'"<tag>=<label>" = value and member id = value', path=at.source,
+                             line=here)
+        values = np.full(len(member_ids), np.nan)
+        ranked = sorted(table.items(), key=lambda kv: (0 if kv[0] == "default" else
+                                                       1 if "=" in kv[0] else 2))
+        for key, value in ranked:
+            line = _tags_line(at, "members", name, key, root="properties")
+            if isinstance(value, bool) or not isinstance(value, _NUMBER) or \
+                    not np.isfinite(value) or value <= 0:
+                raise ModelError(f"[properties.members.{name}] {key!r}: give a positive number, "
+                                 f"not {value!r}", path=at.source, line=line, item=key)
+            if key == "default":
+                values[:] = value
+            elif "=" in key:
+                attr, _, label = key.partition("=")
+                labels = member_tags.get(attr.strip())
+                if labels is None or label.strip() not in labels:
+                    known = sorted({f"{a}={lab}" for a, labs in member_tags.items()
+                                    for lab in labs if lab})
+                    raise ModelError(f"[properties.members.{name}] selector {key!r} matches no "
+                                     f"member: no member has tag {attr.strip()!r} = "
+                                     f"{label.strip()!r}; correct the selector or remove "
+                                     f"the line{_did_you_mean(key, known)}",
+                                     path=at.source, line=line, item=key)
+                values[np.array(labels) == label.strip()] = value
+            else:
+                k = index.get(key)
+                if k is None:
+                    raise ModelError(f"[properties.members.{name}] names member {key!r}, which "
+                                     f"is not in {at.ref('members')}; correct the id or remove "
+                                     f"the line{_did_you_mean(key, index)}", path=at.source,
+                                     line=line, item=key)
+                values[k] = value
+        if np.isnan(values).any():
+            first = member_ids[int(np.flatnonzero(np.isnan(values))[0])]
+            raise ModelError(f"[properties.members.{name}] gives no value for member {first!r} "
+                             f"(and {int(np.isnan(values).sum()) - 1} others); add {example} "
+                             f"or a value for each member", path=at.source, line=here,
+                             item=first)
+        out[name] = values
+    return out
+
+
+def _property_rows(frame: Frame) -> list[tuple[str, list[tuple[str, float]]]]:
+    """``(name, [(key, value)])`` to write each member property: a default, then exceptions."""
+    rows = []
+    for name, values in frame.member_properties.items():
+        vals, counts = np.unique(values, return_counts=True)
+        default = float(vals[np.argmax(counts)])
+        items = [("default", default)] + [(mid, float(v)) for mid, v in
+                                          zip(frame.member_ids, values) if v != default]
+        rows.append((name, items))
+    return rows
+
+
 def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> tuple[str, ...]:
     """One label per item (``""`` where none) from ``{label: [ids]}``."""
     labels = [""] * len(index)
@@ -540,14 +640,14 @@ def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> t
 
 
 def _tags_line(at: _Where, kind: str, attr: str | None = None,
-               label: str | None = None) -> int | None:
-    """The line of ``label`` under ``[tags.<kind>.<attr>]`` (or of the header), where found."""
+               label: str | None = None, *, root: str = "tags") -> int | None:
+    """The line of ``label`` under ``[<root>.<kind>.<attr>]`` (or of the header), where found."""
     if at.text is None:
         return None
     lines = at.text.splitlines()
     if at.syntax == "json":
         start, found = 0, None
-        for key in ("tags", kind, attr, label):
+        for key in (root, kind, attr, label):
             if key is None:
                 break
             m = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:").search(
@@ -556,7 +656,7 @@ def _tags_line(at: _Where, kind: str, attr: str | None = None,
                 break
             start, found = m.end(), at.text.count("\n", 0, m.start()) + 1
         return found
-    want = ["tags", kind] + ([attr] if attr is not None else [])
+    want = [root, kind] + ([attr] if attr is not None else [])
     header = None
     for k, text in enumerate(lines, 1):
         m = re.match(r"^\s*\[([^\[\]]+)\]\s*(?:#.*)?$", text)
@@ -895,6 +995,9 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
         out += ["", f"[tags.{kind}.{_toml_id(attr)}]"]
         out += [f"{_toml_id(label)} = [{', '.join(map(_quote, items))}]"
                 for label, items in groups]
+    for name, items in _property_rows(frame):
+        out += ["", f"[properties.members.{_toml_id(name)}]"]
+        out += [f"{_toml_id(key)} = {float(v)!r}" for key, v in items]
     _write(target, "\n".join(out) + "\n", overwrite)
 
 
@@ -962,4 +1065,9 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
         body.append('  "tags": {\n' + ",\n".join(f'   "{kind}": {{\n' + ",\n".join(v)
                                                  + "\n   }" for kind, v in sections.items())
                     + "\n  }")
+    prop_rows = _property_rows(frame)
+    if prop_rows:
+        inner = ",\n".join(f"    {_quote(name)}: {{" + ", ".join(
+            f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
+        body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
     _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)

@@ -129,8 +129,9 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                             "not computed (raise --self-stress to compute more)"))
     if r.soft_info:
         lines.append("")
-        lines.append("Soft modes (held, but a local pattern with less than 0.1 % of the frame's "
-                     "typical joint stiffness; uniform EA):")
+        ea = "EA from the model" if "EA" in r.frame.member_properties else "uniform EA"
+        lines.append(f"Soft modes (held, but a local pattern with less than 0.1 % of the "
+                     f"frame's typical joint stiffness; {ea}):")
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: {info.description}")
     lines.extend(_robustness(r, max_entries))

@@ -1,0 +1,92 @@
+"""Member properties (EA) in the native format, and the soft modes they weight."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+
+import spaceframe
+from spaceframe import ModelError, audit
+from spaceframe.cli import main
+from spaceframe.io.native import dump_json, dump_toml
+
+# A joint D held by three members from three pinned joints (a tripod): stable, and D's
+# stiffness along each leg comes from that leg alone.
+TRIPOD = """name = "Tripod"
+[joints]
+A = [0.0, 0.0, 0.0]
+B = [4.0, 0.0, 0.0]
+C = [0.0, 4.0, 0.0]
+D = [1.0, 1.0, 3.0]
+[members]
+AD = ["A", "D"]
+BD = ["B", "D"]
+CD = ["C", "D"]
+[supports]
+A = "pin"
+B = "pin"
+C = "pin"
+[tags.members.role]
+leg = ["AD", "BD"]
+prop = ["CD"]
+"""
+
+
+def tripod(write, ea_table=""):
+    return spaceframe.load(write("tripod.toml", TRIPOD + ea_table))
+
+
+def test_ea_default_selector_and_id(write):
+    f = tripod(write, '[properties.members.EA]\ndefault = 2.0\n"role=prop" = 5.0\nAD = 7.0\n')
+    assert f.member_properties["EA"].tolist() == [7.0, 2.0, 5.0]
+
+
+@pytest.mark.parametrize("dump,suffix", [(dump_toml, ".toml"), (dump_json, ".json")])
+def test_ea_round_trip(write, tmp_path, dump, suffix):
+    f = tripod(write, '[properties.members.EA]\ndefault = 2.0\nBD = 0.5\n')
+    out = tmp_path / f"again{suffix}"
+    dump(f, out)
+    g = spaceframe.load(out)
+    assert g.member_properties["EA"].tolist() == f.member_properties["EA"].tolist()
+
+
+@pytest.mark.parametrize("table,words,line", [
+    ('[properties.members.EA]\nAX = 1.0\ndefault = 1.0\n', ["'AX'", "not in", "correct the id"], 19),
+    ('[properties.members.EA]\ndefault = -1.0\n', ["positive number"], 19),
+    ('[properties.members.EA]\nAD = 1.0\n', ["no value for member", "default = 2.0e5"], 18),
+    ('[properties.members.EA]\ndefault = 1\n"role=strut" = 2\n', ["matches no member"], 20),
+])
+def test_bad_ea_tables(write, table, words, line):
+    path = write("tripod.toml", TRIPOD + table)
+    with pytest.raises(ModelError) as err:
+        spaceframe.load(path)
+    message = str(err.value)
+    assert f"tripod.toml:{line}:" in message
+    for w in words:
+        assert w in message
+    res = CliRunner().invoke(main, ["audit", str(path)])
+    assert res.exit_code == 2 and "Traceback" not in res.output
+
+
+def test_a_weak_leg_gives_a_soft_mode(write):
+    """Derived: with one leg a millionth as stiff (EA), joint D is held along that leg only
+    weakly: the softest mode moves D alone, with a stiffness ratio of order 1e-6 that
+    scales with the weak EA (the Rayleigh quotient is linear in each member's EA/L)."""
+    assert audit(tripod(write)).soft_info == ()          # uniform EA: nothing soft
+    r6 = audit(tripod(write, '[properties.members.EA]\ndefault = 1.0\nCD = 1e-6\n'))
+    r7 = audit(tripod(write, '[properties.members.EA]\ndefault = 1.0\nCD = 1e-7\n'))
+    assert r6.stable and len(r6.soft_info) == 1
+    assert r6.soft_info[0].joints == ("D",)
+    assert 1e-7 < r6.soft_ratios[0] < 1e-5
+    assert r7.soft_ratios[0] == pytest.approx(r6.soft_ratios[0] / 10, rel=0.05)
+
+
+def test_soft_ratio_has_no_unit(write):
+    """Derived: the ratio is dimensionless: the same in mm with EA in other units."""
+    f = tripod(write, '[properties.members.EA]\ndefault = 1.0\nCD = 1e-6\n')
+    g = spaceframe.Frame.from_arrays(f.coords * 1000, f.ends, joint_ids=f.joint_ids,
+                                     member_ids=f.member_ids,
+                                     supports={0: "pin", 1: "pin", 2: "pin"},
+                                     member_properties={"EA": f.member_properties["EA"] * 7e3})
+    assert audit(g).soft_ratios == pytest.approx(audit(f).soft_ratios, rel=1e-9)
