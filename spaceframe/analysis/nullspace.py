@@ -377,10 +377,7 @@ class _Projector:
             E[idx, np.arange(len(idx))] = 1.0
             if mech.shape[1]:
                 E -= mech @ mech[idx].T
-            Z = np.empty_like(E)
-            for b in range(0, len(idx), _BLOCK):
-                rhs = E[:, b:b + _BLOCK][self.perm]
-                Z[:, b:b + _BLOCK] = lu.solve(np.asfortranarray(rhs))[self.inv]
+            Z = lu.solve(np.asfortranarray(E[self.perm]))[self.inv]
             if mech.shape[1]:
                 Z -= mech @ (mech.T @ Z)
             W = C @ Z                                   # (m, batch)
