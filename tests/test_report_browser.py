@@ -147,3 +147,50 @@ def test_ids_that_look_like_markup_stay_text(browser, tmp_path):
         assert errors == []
     finally:
         page.close()
+
+
+def test_bracing_toggle_draws_the_braces_and_gives_the_audit_after(browser, tmp_path):
+    """The canopy with its proposal (from `spaceframe brace`'s engine): the toggle adds the
+    brace to the drawing and shows the braced frame's audit, which the core engine found
+    held; the bracing table lists the member."""
+    from spaceframe.analysis.bracing import recommend_bracing
+
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    result = spaceframe.audit(frame)
+    proposal = recommend_bracing(frame)
+    assert proposal.after.stable
+    page, errors, requests, path = _open(browser, render_report(result, proposal), tmp_path)
+    try:
+        assert requests == [path.as_uri()]
+        assert page.locator("#bracing tbody tr").count() == len(proposal.members_added)
+        assert not page.is_visible("#bracing-after")
+        plain = _canvas(page)
+        page.click("#bracing-toggle")
+        braced = _canvas(page)
+        # the brace is drawn in its own orange: pixels of that colour appear
+        orange = np.all(np.abs(braced.astype(int) - [0xE6, 0x9F, 0x00]) < 24, axis=2)
+        was = np.all(np.abs(plain.astype(int) - [0xE6, 0x9F, 0x00]) < 24, axis=2)
+        assert orange.sum() > was.sum() + 20, "the toggle drew no brace"
+        assert page.is_visible("#bracing-after")
+        assert "0 mechanisms" in page.inner_text("#bracing-after")
+        assert "HELD" in page.inner_text("#bracing-after")
+        assert "proposed bracing" in page.inner_text("#legend")
+        page.click("#bracing-toggle")
+        assert not page.is_visible("#bracing-after")
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.click("#bracing-toggle")
+        page.screenshot(path=str(ARTIFACTS / "report_canopy_bracing.png"), full_page=False)
+        assert errors == []
+    finally:
+        page.close()
+
+
+def test_held_frame_has_no_bracing_section(browser, tmp_path):
+    result = spaceframe.audit(spaceframe.load(MODELS / "plant_platform.toml"))
+    page, errors, _, _ = _open(browser, render_report(result), tmp_path)
+    try:
+        assert not page.is_visible("#bracing-section")
+        assert not page.is_visible("#bracing-controls")
+        assert errors == []
+    finally:
+        page.close()

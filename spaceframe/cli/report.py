@@ -14,14 +14,18 @@ __all__ = ["report_command"]
 @click.argument("model", type=click.Path(dir_okay=True, path_type=str))
 @click.option("-o", "--output", "out", required=True, metavar="OUT.html",
               help="The HTML file to write.")
+@click.option("--bracing/--no-bracing", default=True, show_default=True,
+              help="For a frame with mechanisms, include the bracing proposal of "
+                   "`spaceframe brace` (default candidates) and the audit after it.")
 @supports_option
 @force_option
 @debug_option
-def report_command(model, out, supports, force, debug):
+def report_command(model, out, bracing, supports, force, debug):
     """Write the audit of MODEL as one HTML file: the verdict, the counts and what they
     mean, the mechanisms and states of self-stress, the key members, the cautions, and a
     3D view (turn, move, zoom, click to name a joint or member, choose a mode to see it
-    move). The file needs no network and no other file.
+    move; and, for a frame with mechanisms, the proposed bracing with the audit after
+    it). The file needs no network and no other file.
 
     Exit status 0 when the report is written, whatever the verdict; 2 for bad input.
     """
@@ -31,8 +35,13 @@ def report_command(model, out, supports, force, debug):
         from ..views.report import render_report
 
         path = check_output(out, model, force, (".html", ".htm"))
-        result = audit(supports_for(load(model), model, supports))
-        path.write_text(render_report(result), encoding="utf-8")
+        frame = supports_for(load(model), model, supports)
+        result = audit(frame)
+        proposal = None
+        if bracing and not result.stable:
+            from ..analysis.bracing import recommend_bracing
+            proposal = recommend_bracing(frame)
+        path.write_text(render_report(result, proposal), encoding="utf-8")
         click.echo(f"spaceframe: wrote {path}", err=True)
 
     run_guarded(job, debug=debug)

@@ -51,8 +51,13 @@ def asset(name: str) -> str:
                               f"package: reinstall spaceframe") from None
 
 
-def report_document(result: AuditResult) -> dict:
+def report_document(result: AuditResult, bracing=None) -> dict:
     """The JSON document the page reads: the audit, its verdict, and the geometry to draw.
+
+    With ``bracing`` (a :class:`spaceframe.analysis.bracing.BracingResult` of the
+    same frame) the document also holds the proposed members (their ends as
+    joint indices, so the view can draw them), the restraints, and the verdict
+    and counts of the braced frame's audit.
 
     ``geometry`` holds the frame in 3D (a plane frame's y becomes z), the
     mechanisms as ``(p, n, 3)`` arrays, the joints each one moves, the
@@ -89,6 +94,27 @@ def report_document(result: AuditResult) -> dict:
             "views": [r6(view_direction(s.coords, u)) for u in s.modes],
             "rest_view": r6(view_direction(s.coords)),
         },
+        "bracing": None if bracing is None else _bracing_document(bracing),
+    }
+
+
+def _bracing_document(b) -> dict:
+    """What the page shows of a bracing proposal: members, restraints, the audit after."""
+    doc = b.to_dict()
+    c = b.candidates
+    for entry, i in zip(doc["added"], b.members_added):
+        entry["joint_indices"] = [int(j) for j in c.ends[i]]
+    after = b.after
+    return {
+        "added": doc["added"],
+        "restraints_added": doc["restraints_added"],
+        "total_length": doc["total_length"],
+        "after_verdict": verdict(after),
+        "after": {k: getattr(after, k) for k in ("mechanisms", "internal_mechanisms",
+                                                 "rigid_body_modes", "self_stress_states")},
+        "after_stable": bool(after.stable),
+        "remaining": doc["remaining"],
+        "caution": doc["caution"],
     }
 
 
@@ -102,8 +128,8 @@ def script_json(doc) -> str:
     return text
 
 
-def render_report(result: AuditResult) -> str:
-    """The report of ``result`` as one HTML document (str).
+def render_report(result: AuditResult, bracing=None) -> str:
+    """The report of ``result`` as one HTML document (str), with ``bracing`` if given.
 
     Cost: O(p n) for p mechanisms and n joints, plus one view search per mode.
     """
@@ -112,6 +138,7 @@ def render_report(result: AuditResult) -> str:
         if end in text.lower():
             raise SpaceframeError(f"the report's {name} contains {end}>, which would end its "
                                   f"element early")
-    parts = {"STYLE": style, "SCRIPT": script, "DATA": script_json(report_document(result))}
+    parts = {"STYLE": style, "SCRIPT": script,
+             "DATA": script_json(report_document(result, bracing))}
     # one pass: text put in is never searched again for markers
     return _MARK.sub(lambda m: parts[m.group(1)], asset("template.html"))

@@ -9,7 +9,7 @@
 
   const COLOUR = {
     member: "#5d6b75", movingMember: "#0072b2", movingJoint: "#d55e00", joint: "#3a3a3a",
-    support: "#009e73", ghost: "#c4c4c4", pick: "#cc79a7",
+    support: "#009e73", ghost: "#c4c4c4", pick: "#cc79a7", brace: "#e69f00",
     compression: [0x1d, 0x5f, 0xa6], zero: [0xe3, 0xe3, 0xe3], tension: [0xc2, 0x5a, 0x12],
   };
 
@@ -114,7 +114,8 @@
     return X.length ? (lo + hi) / 2 : 0;
   });
   const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
-  const show = { mode: -1, state: -1, t0: 0, picked: null };
+  const show = { mode: -1, state: -1, t0: 0, picked: null, bracing: false };
+  const bracing = doc.bracing;
   let animating = false;
 
   function setDirection(v) {
@@ -187,6 +188,15 @@
       if (show.picked && show.picked.kind === "member" && show.picked.index === k) { colour = COLOUR.pick; width = 6; }
       ctx.strokeStyle = colour; ctx.lineWidth = width;
       ctx.beginPath(); ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[b][0], now[b][1]); ctx.stroke();
+    }
+    if (show.bracing && bracing) {                    // proposed members: orange, dashed
+      ctx.strokeStyle = COLOUR.brace; ctx.lineWidth = 4; ctx.setLineDash([10, 6]);
+      ctx.beginPath();
+      for (const b of bracing.added) {
+        const [a, c] = b.joint_indices;
+        ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[c][0], now[c][1]);
+      }
+      ctx.stroke(); ctx.setLineDash([]);
     }
     drawSupports(P, now);
     for (let j = 0; j < now.length; j++) {
@@ -333,11 +343,46 @@
       b.addEventListener("click", () => chooseState(i, b));
       buttons.push(b); li.appendChild(b); sl.appendChild(li);
     });
-    // BRACING: when `spaceframe brace` results are in the document, their toggle is built
-    // here, beside the state list (see the marked place in template.html).
+    if (bracing) fillBracing();
     document.getElementById("rest").addEventListener("click", atRest);
     document.getElementById("fit").addEventListener("click", () => {
       fit(show.mode >= 0 ? geo.views[show.mode] : geo.rest_view); if (!animating) draw();
+    });
+  }
+
+  // The proposal: a table, and a toggle that draws the braces and gives the audit after them.
+  function fillBracing() {
+    document.getElementById("bracing-controls").hidden = false;
+    document.getElementById("bracing-section").hidden = false;
+    const n = bracing.added.length, r = bracing.restraints_added.length;
+    document.getElementById("bracing-summary").textContent =
+      plural(n, "member") + " (" + bracing.total_length.toFixed(3) + " " + audit.units + " in all)" +
+      (r ? " and " + plural(r, "added restraint direction") : "") +
+      ": the fewest, then the shortest, that remove what the candidates can. After them: " +
+      bracing.after_verdict;
+    const tb = document.querySelector("#bracing tbody");
+    for (const b of bracing.added)
+      tb.appendChild(row([b.id, b.ends[0], b.ends[1], { text: b.length.toFixed(3), cls: "num" },
+        b.location || "", (b.modes || []).join(", ")]));
+    for (const q of bracing.restraints_added)
+      tb.appendChild(row(["restraint", q.joint, "", "", "hold along (" + q.direction.map(v => v.toFixed(2)).join(", ") + ")",
+        (q.modes || []).join(", ")]));
+    for (const t of bracing.remaining) tb.appendChild(row(["left", "", "", "", t, ""]));
+    document.getElementById("bracing-caution").textContent = bracing.caution;
+    const toggle = document.getElementById("bracing-toggle");
+    const after = document.getElementById("bracing-after");
+    toggle.addEventListener("click", () => {
+      show.bracing = !show.bracing;
+      toggle.setAttribute("aria-pressed", String(show.bracing));
+      toggle.textContent = show.bracing ? "Hide the proposed bracing" : "Show the proposed bracing";
+      after.hidden = !show.bracing;
+      const a = bracing.after;
+      after.textContent = "Audit after bracing: " + plural(a.mechanisms, "mechanism") + ", " +
+        plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
+      if (show.bracing) {               // at rest, seen as for the first mode: across its motion
+        atRest();
+        if (geo.views.length) { fit(geo.views[0]); draw(); }
+      } else { legend(); if (!animating) draw(); }
     });
   }
 
@@ -358,6 +403,7 @@
     } else {
       entries.push([COLOUR.member, "slate: members"], [COLOUR.joint, "dark dots: joints"]);
     }
+    if (show.bracing) entries.push([COLOUR.brace, "orange, dashed: proposed bracing"]);
     entries.push([COLOUR.support, "green stalk and plate: a direction a support holds"],
       [COLOUR.pick, "pink: what you picked"]);
     for (const [c, words] of entries) {
@@ -377,6 +423,7 @@
       return [r.left + p[0] * r.width / canvas.width, r.top + p[1] * r.height / canvas.height];
     },
     chooseMode(i) { chooseMode(i, buttons[i]); },
+    bracingShown() { return show.bracing; },
     atRest,
   };
 
