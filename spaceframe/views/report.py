@@ -74,9 +74,21 @@ def report_document(result: AuditResult, bracing=None) -> dict:
                       else [False] * len(size))
     glyph_dirs = [(end - start) / np.linalg.norm(end - start) for start, end, _ in s.glyphs()]
     r6 = lambda a: np.round(np.asarray(a, float), 6).tolist()  # noqa: E731
+    audit = result.to_dict()
+    # the geometry below carries every movement and force as arrays: the audit's
+    # per-item dictionaries would only double the file for a large frame
+    for m in audit["mechanism_modes"]:
+        m.pop("displacements", None)
+        m.pop("prestress", None)
+        m["members"] = []
+    audit["self_stress_modes"] = []
+    audit["redundancy"] = None
+    for sm in audit.get("soft_modes", []):
+        sm.pop("displacements", None)
     return {
         "version": __version__,
-        "audit": result.to_dict(),
+        "audit": audit,
+        "states": [_state_summary(result, i) for i in range(result.self_stress_forces.shape[0])],
         "verdict": verdict(result),
         "limits": list(LIMITS),
         "geometry": {
@@ -90,12 +102,25 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
             "moving": moving,
-            "forces": [r6(t) for t in result.self_stress_forces],
+            "forces": [np.round(np.asarray(t, float), 3).tolist() for t in result.self_stress_forces],
             "views": [r6(view_direction(s.coords, u)) for u in s.modes],
             "rest_view": r6(view_direction(s.coords)),
         },
         "bracing": None if bracing is None else _bracing_document(bracing),
     }
+
+
+def _state_summary(result: AuditResult, i: int, most: int = 4) -> dict:
+    """A state of self-stress for the tables: how many members, the largest of each sign."""
+    t = result.self_stress_forces[i]
+    ids = result.frame.member_ids
+    carrying = np.abs(t) > 1e-6
+    tension = [k for k in np.argsort(-t, kind="stable") if t[k] > 1e-6]
+    compression = [k for k in np.argsort(t, kind="stable") if t[k] < -1e-6]
+    pick = lambda ks: [[ids[k], round(float(t[k]), 6)] for k in ks[:most]]  # noqa: E731
+    return {"members": int(carrying.sum()), "tension": pick(tension),
+            "more_tension": max(0, len(tension) - most), "compression": pick(compression),
+            "more_compression": max(0, len(compression) - most)}
 
 
 def _bracing_document(b) -> dict:

@@ -75,20 +75,18 @@
     });
 
     const ss = document.getElementById("stress-summary");
-    const q = audit.self_stress_modes.length;
+    const q = doc.states.length;
     ss.textContent = audit.self_stress_states === 0
       ? "None: no member carries force without load (the frame, as far as it is held, is statically determinate)."
       : plural(audit.self_stress_states, "independent state") + " of self-stress" +
         (audit.self_stress_modes_complete ? "" : " (the first " + q + " computed)") +
         ". Forces are scaled so the largest is 1; + is tension (the member pulls), - compression (it pushes).";
     const sb = document.querySelector("#states tbody");
-    audit.self_stress_modes.forEach((s, i) => {
-      const entries = Object.entries(s.forces);
-      const tens = entries.filter(e => e[1] > 0).sort((a, b) => b[1] - a[1]);
-      const comp = entries.filter(e => e[1] < 0).sort((a, b) => a[1] - b[1]);
-      const fmt = list => listIds(list.map(e => e[0] + " " + (e[1] > 0 ? "+" : "") + e[1].toFixed(3)), 4) || "none";
-      sb.appendChild(row([{ text: i + 1, cls: "num" }, { text: entries.length, cls: "num" },
-        { text: fmt(tens), cls: "ids" }, { text: fmt(comp), cls: "ids" }]));
+    doc.states.forEach((s, i) => {
+      const fmt = (list, more) => (list.map(e => e[0] + " " + (e[1] > 0 ? "+" : "") + e[1].toFixed(3)).join(", ") +
+        (more > 0 ? " and " + more + " more" : "")) || "none";
+      sb.appendChild(row([{ text: i + 1, cls: "num" }, { text: s.members, cls: "num" },
+        { text: fmt(s.tension, s.more_tension), cls: "ids" }, { text: fmt(s.compression, s.more_compression), cls: "ids" }]));
     });
 
     const key = audit.key_members || [];
@@ -167,28 +165,61 @@
     const moving = show.mode >= 0 ? geo.moving[show.mode] : null;
     const forces = show.state >= 0 ? geo.forces[show.state] : null;
     ctx.lineCap = "round";
-    if (show.mode >= 0) {                             // the frame at rest, ghosted behind
+    if (show.mode >= 0 && E.length <= 20000) {        // the frame at rest, ghosted behind
       const rest = X.map(P);
-      ctx.strokeStyle = COLOUR.ghost; ctx.lineWidth = 1.5;
+      ctx.strokeStyle = COLOUR.ghost; ctx.lineWidth = E.length > 4000 ? 0.75 : 1.5;
       ctx.beginPath();
       for (const [a, b] of E) { ctx.moveTo(rest[a][0], rest[a][1]); ctx.lineTo(rest[b][0], rest[b][1]); }
       ctx.stroke();
     }
-    const order = E.map((e, k) => k).sort((k, l) =>
+    // Members are stroked one path per style: a few strokes whatever the frame's size.
+    // Small frames are drawn back to front, so nearer members cover farther ones; large ones
+    // with thin square-ended lines, which a software canvas strokes several times faster.
+    const big = E.length > 4000;
+    const order = big ? null : E.map((e, k) => k).sort((k, l) =>
       (now[E[k][0]][2] + now[E[k][1]][2]) - (now[E[l][0]][2] + now[E[l][1]][2]));
-    for (const k of order) {
-      const [a, b] = E[k];
-      let colour = COLOUR.member, width = 2.5;
-      if (moving && (moving[a] || moving[b])) { colour = COLOUR.movingMember; width = 3.5; }
+    const thin = big ? 0.45 : 1;
+    ctx.lineCap = big ? "butt" : "round";
+    const groups = [];                                 // key -> [colour, width, members]
+    // while the view is dragged or a mode moves, a large frame is drawn from a sample of
+    // its members (the legend says so); at rest it is drawn whole
+    const stride = ((drag && drag.moved) || animating) && E.length > 20000
+      ? Math.ceil(E.length / 20000) : 1;
+    const n = E.length;
+    for (let i = 0; i < n; i += stride) {
+      const k = order ? order[i] : i;
+      const a = E[k][0], b = E[k][1];
+      let key = 1, colour = COLOUR.member, width = 2.5;
+      if (moving && (moving[a] || moving[b])) { key = 2; colour = COLOUR.movingMember; width = 3.5; }
       if (forces) {
         const t = forces[k];
-        colour = Math.abs(t) > 1e-6 ? forceColour(t) : COLOUR.ghost;
-        width = Math.abs(t) > 1e-6 ? 4.5 : 1.5;
+        if (Math.abs(t) > 1e-6) {
+          const q = Math.round(t * 16);
+          key = 40 + q; colour = forceColour(q / 16); width = 4.5;
+        } else { key = 0; colour = COLOUR.ghost; width = 1.5; }
       }
-      if (show.picked && show.picked.kind === "member" && show.picked.index === k) { colour = COLOUR.pick; width = 6; }
-      ctx.strokeStyle = colour; ctx.lineWidth = width;
-      ctx.beginPath(); ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[b][0], now[b][1]); ctx.stroke();
+      if (show.picked && show.picked.kind === "member" && show.picked.index === k) { key = 99; colour = COLOUR.pick; width = 6; }
+      if (order) {                                     // small frame: in depth order
+        ctx.strokeStyle = colour; ctx.lineWidth = width;
+        ctx.beginPath(); ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[b][0], now[b][1]); ctx.stroke();
+        continue;
+      }
+      if (!groups[key]) groups[key] = [colour, width * thin, []];
+      groups[key][2].push(k);
     }
+    const rank = key => (key === 0 ? 0 : key === 1 ? 1 : key === 99 ? 3 : 2);
+    const keys = Object.keys(groups).map(Number).sort((p, q) => rank(p) - rank(q));
+    for (const key of keys) {
+      const [colour, width, list] = groups[key];
+      ctx.strokeStyle = colour; ctx.lineWidth = width;
+      ctx.beginPath();
+      for (const k of list) {
+        const a = E[k][0], b = E[k][1];
+        ctx.moveTo(now[a][0], now[a][1]); ctx.lineTo(now[b][0], now[b][1]);
+      }
+      ctx.stroke();
+    }
+    ctx.lineCap = "round";
     if (show.bracing && bracing) {                    // proposed members: orange, dashed
       ctx.strokeStyle = COLOUR.brace; ctx.lineWidth = 4; ctx.setLineDash([10, 6]);
       ctx.beginPath();
@@ -199,12 +230,26 @@
       ctx.stroke(); ctx.setLineDash([]);
     }
     drawSupports(P, now);
+    // joints: one path per colour on a large frame (only moving and picked joints stand out)
+    const bigJ = now.length > 4000;
+    const plain = [], moved = [];
     for (let j = 0; j < now.length; j++) {
       const picked = show.picked && show.picked.kind === "joint" && show.picked.index === j;
       const mv = moving && moving[j];
-      const r = picked ? 7 : mv ? 6 : 2.5;
-      ctx.fillStyle = picked ? COLOUR.pick : mv ? COLOUR.movingJoint : COLOUR.joint;
-      ctx.beginPath(); ctx.arc(now[j][0], now[j][1], r, 0, 2 * Math.PI); ctx.fill();
+      if (picked) {
+        ctx.fillStyle = COLOUR.pick;
+        ctx.beginPath(); ctx.arc(now[j][0], now[j][1], 7, 0, 2 * Math.PI); ctx.fill();
+      } else if (!bigJ) {
+        ctx.fillStyle = mv ? COLOUR.movingJoint : COLOUR.joint;
+        ctx.beginPath(); ctx.arc(now[j][0], now[j][1], mv ? 6 : 2.5, 0, 2 * Math.PI); ctx.fill();
+      } else (mv ? moved : plain).push(j);
+    }
+    for (const [list, colour, half] of [[plain, COLOUR.joint, 1.5], [moved, COLOUR.movingJoint, 2.5]]) {
+      if (!list.length) continue;
+      ctx.fillStyle = colour;
+      ctx.beginPath();
+      for (const j of list) ctx.rect(now[j][0] - half, now[j][1] - half, 2 * half, 2 * half);
+      ctx.fill();
     }
     if (animating) requestAnimationFrame(draw);
   }
@@ -298,8 +343,10 @@
     if (!animating) draw();
   });
   canvas.addEventListener("pointerup", ev => {
+    const moved = drag && drag.moved;
     if (drag && !drag.moved) { const [x, y] = canvasXY(ev); pickAt(x, y); }
     drag = null;
+    if (moved && !animating) draw();                  // the whole frame again, not the sample
   });
   canvas.addEventListener("wheel", ev => {
     ev.preventDefault();
@@ -336,9 +383,9 @@
       buttons.push(b); li.appendChild(b); ml.appendChild(li);
     });
     const sl = document.getElementById("state-list");
-    if (!audit.self_stress_modes.length) sl.appendChild(el("li", "None.", "muted"));
-    audit.self_stress_modes.forEach((s, i) => {
-      const li = el("li"), b = el("button", "State " + (i + 1) + ": " + plural(Object.keys(s.forces).length, "member"));
+    if (!doc.states.length) sl.appendChild(el("li", "None.", "muted"));
+    doc.states.forEach((s, i) => {
+      const li = el("li"), b = el("button", "State " + (i + 1) + ": " + plural(s.members, "member"));
       b.type = "button"; b.setAttribute("aria-pressed", "false"); b.dataset.state = String(i);
       b.addEventListener("click", () => chooseState(i, b));
       buttons.push(b); li.appendChild(b); sl.appendChild(li);
@@ -398,8 +445,10 @@
       entries.push([COLOUR.ghost, "light grey, thin: carries nothing in this state"]);
     } else if (show.mode >= 0) {
       entries.push([COLOUR.movingJoint, "vermillion: joints that move"],
-        [COLOUR.movingMember, "blue: members at them"],
-        [COLOUR.ghost, "light grey: the frame at rest"]);
+        [COLOUR.movingMember, "blue: members at them"]);
+      if (E.length <= 20000) entries.push([COLOUR.ghost, "light grey: the frame at rest"]);
+      else entries.push([COLOUR.member, "large frame: while it moves, 1 member in " +
+        Math.ceil(E.length / 20000) + " is drawn"]);
     } else {
       entries.push([COLOUR.member, "slate: members"], [COLOUR.joint, "dark dots: joints"]);
     }
