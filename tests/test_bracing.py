@@ -95,29 +95,115 @@ def test_greedy_equals_brute_force(make, seed):
     assert r.after.mechanisms == left == 0
 
 
-def test_hall_roof_braced_only_in_existing_panels():
-    # source: derived.  The roof of 6 trusses ties frames only at the top chord and eaves, so
-    # every panel bounded by members lies in a roof slope or an eaves/top-chord panel; the
-    # 5 bottom-chord joints of each of the 6 trusses are in no panel: 30 out-of-plane modes
-    # stay, the other 7 (6 internal, 1 rigid-body) go (roof panels and one bearing held).
+def _sides_exist(braced, corners):
+    edges = {frozenset(e) for e in braced.ends.tolist()}
+    return all(frozenset((p, q)) in edges for p, q in zip(corners, corners[1:] + corners[:1])
+               if p >= 0 and q >= 0)
+
+
+def test_hall_roof_stable_with_ties_and_braces_in_panels_that_exist():
+    # source: derived.  Before: 37 mechanisms; the 5 bottom-chord joints L1..L5 of each of the
+    # 6 trusses are free out of plane (30), and each of the 7 tie lines slides along the hall
+    # (7, one of them rigid-body).  A tie at L1..L5 in each of the 5 bays makes each of those
+    # 5 lines a path (25 ties, each removing one); then 12 lines slide, and 11 braces (a
+    # spanning tree of the lines) plus one restraint along the hall hold them: 37 in all.
+    # Ties (5.0 m) are cheaper than any diagonal (5.04 m and more), so all 25 are taken and
+    # every diagonal lies in a panel that exists in the braced frame, its ties included.
     frame = spaceframe.load(MODELS / "hall_roof_unbraced.toml")
     r = recommend_bracing(frame, alternatives=0)
-    edges = {frozenset(e) for e in frame.ends.tolist()}
-    for i in r.members_added:
-        corners = r.candidates.panel[i]
-        assert corners is not None
-        assert all(frozenset((p, q)) in edges
-                   for p, q in zip(corners, corners[1:] + corners[:1]))
-        assert frame.member_tags["role"][frame.n_members:] == ()  # the input is unchanged
     assert r.before.mechanisms == 37
+    assert r.after.stable and spaceframe.audit(r.braced).stable
+    cand = r.candidates
+    ties = [i for i in r.members_added if cand.origin[i] == "tie"]
+    braces = [i for i in r.members_added if cand.origin[i] != "tie"]
+    assert len(ties) == 25 and len(braces) == 11 and len(r.restraints_added) == 1
+    for i in braces:
+        assert cand.panel[i] is not None and _sides_exist(r.braced, cand.panel[i])
+    for i in ties:
+        a, b = (frame.joint_ids[j] for j in cand.ends[i])
+        assert a.split(".")[1] == b.split(".")[1] and a.split(".")[1] in {"L1", "L2", "L3",
+                                                                         "L4", "L5"}
+        assert r.item(i)["location"].startswith("bottom-chord tie at L")
+    assert "bottom-chord tie at L2, bay 3" in {r.item(i)["location"] for i in ties}
+    assert r.total_length == pytest.approx(sum(cand.length[i] for i in r.members_added))
+    roles = r.braced.member_tags["role"][frame.n_members:]
+    assert roles.count("tie") == 25 and roles.count("brace") == 11
+    assert "B3.L2" in r.braced.member_ids
+    assert frame.member_tags["role"][frame.n_members:] == ()  # the input is unchanged
+
+
+def test_hall_roof_without_ties_keeps_to_existing_panels():
+    # source: derived.  Without ties no panel reaches the bottom chords: the 30 out-of-plane
+    # modes stay, the other 7 (6 internal, 1 rigid-body) go (roof panels, one bearing held).
+    frame = spaceframe.load(MODELS / "hall_roof_unbraced.toml")
+    r = recommend_bracing(frame, ties=False, alternatives=0)
+    for i in r.members_added:
+        assert r.candidates.panel[i] is not None
+        assert _sides_exist(frame, r.candidates.panel[i])
     assert len(r.members_added) == 6 and len(r.restraints_added) == 1
-    assert r.after.mechanisms == 30
+    assert r.after.mechanisms == 30 == spaceframe.audit(r.braced).mechanisms
     assert set(r.after.mode_kinds) == {"out-of-plane"}
     assert all("--within" in h for h in r.remaining)
-    # the braced frame as written re-audits with the core engine
-    again = spaceframe.audit(r.braced)
-    assert again.mechanisms == 30
     assert r.braced.member_tags["role"][frame.n_members:] == ("brace",) * 6
+
+
+def _small_extruded(seed):
+    """Two frames of a king-post truss, tied at the eaves and the ridge only;
+    the first frame's left bearing held along the building so there is no rigid-body mode.
+    Height and spacing vary with the seed, so the cost order does."""
+    from spaceframe.extrude import extrude
+
+    rng = np.random.default_rng(seed)
+    h, spacing = 0.8 + rng.uniform(0, 0.8), 2.5 + rng.uniform(0, 1.5)
+    planar = Frame.from_arrays([[0, 0], [2, 0], [4, 0], [2, h]],
+                               [[0, 1], [1, 2], [0, 3], [3, 2], [1, 3]],
+                               supports={0: "pin", 2: "y"}, joint_ids=["L0", "L1", "L2", "U1"])
+    spec = {"frames": 2, "spacing": spacing, "out_of_plane": "free",
+            "ties": {"eaves": ["L0", "L2"], "ridge": ["U1"]},
+            "support": [{"at": "L0", "frames": [1], "out_of_plane": "held"}]}
+    return extrude(planar, spec)
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3, 4])
+def test_ties_and_tie_panels_greedy_equals_brute_force(seed):
+    # source: brute force over every subset of the candidates (ties and diagonals alike).
+    frame = _small_extruded(seed)
+    r = recommend_bracing(frame, alternatives=0)
+    assert r.before.rigid_body_modes == 0 and r.before.mechanisms > 0
+    cand = r.candidates
+    assert {"tie", "tie panel"} <= set(cand.origin)
+    cand_ends = [tuple(e) for e in cand.ends.tolist()]
+    assert len(cand_ends) <= 16
+    size, length, left = _brute_force(frame, cand_ends, _held(frame))
+    assert left == 0 and r.after.stable
+    assert len(r.members_added) == size
+    assert r.total_length == pytest.approx(length, abs=1e-9)
+    for i in r.members_added:
+        if cand.origin[i] != "tie":
+            assert _sides_exist(r.braced, cand.panel[i])
+
+
+def test_no_tie_candidates_without_frames():
+    # source: derived.  A frame with no frame tag has no frames to tie.
+    frame = _box_frame(3)
+    r = recommend_bracing(frame, alternatives=0)
+    assert not {"tie", "tie panel"} & set(r.candidates.origin)
+
+
+def test_lone_planar_truss_names_the_joints_to_restrain():
+    # source: derived (the model file's own count).  All 25 members lie in y = 0; the 12 joints
+    # off the bearings each move along y alone; one restraint along y at each holds them.
+    frame = spaceframe.load(MODELS / "footbridge_truss.toml")
+    r = recommend_bracing(frame, alternatives=0)
+    note = next(n for n in r.notes if "lateral restraint" in n)
+    free = ["B1", "B2", "B3", "B4", "B5", "T0", "T1", "T2", "T3", "T4", "T5", "T6"]
+    assert "plane y = 0" in note and "--attach " + ",".join(free) in note
+    index = {j: i for i, j in enumerate(frame.joint_ids)}
+    held = recommend_bracing(frame, attachable=[index[j] for j in free], alternatives=0)
+    assert held.after.stable and len(held.restraints_added) == 12
+    assert all(np.allclose(np.abs(held.candidates.direction[i]), [0, 1, 0])
+               for i in held.restraints_added)
+    assert not any("lateral restraint" in n for n in held.notes)
 
 
 def test_hall_roof_stable_with_pairs_within_reach(tmp_path):
@@ -131,7 +217,8 @@ def test_hall_roof_stable_with_pairs_within_reach(tmp_path):
     spaceframe.io.save(r.braced, out)
     again = spaceframe.audit(spaceframe.load(out))
     assert again.stable
-    assert again.frame.member_tags["role"].count("brace") == len(r.members_added)
+    roles = again.frame.member_tags["role"]
+    assert roles.count("brace") + roles.count("tie") == len(r.members_added)
 
 
 def test_canopy_one_brace_removes_the_sway():
@@ -221,6 +308,28 @@ def test_cli_exit_one_when_mechanisms_remain():
     res = run("brace", MODELS / "footbridge_truss.toml")
     assert res.exit_code == 1
     assert "Left (12)" in res.output and "Caution" in res.output
+
+
+def test_cli_attach_list_holds_the_footbridge():
+    # source: derived, as test_lone_planar_truss_names_the_joints_to_restrain
+    bare = run("brace", MODELS / "footbridge_truss.toml")
+    assert bare.exit_code == 1 and "need lateral restraint" in bare.output
+    res = run("brace", MODELS / "footbridge_truss.toml", "--json",
+              "--attach", "B1,B2,B3,B4,B5,T0,T1,T2", "--attach", "T3,T4,T5,T6")
+    assert res.exit_code == 0, res.output
+    doc = json.loads(res.stdout)
+    assert len(doc["restraints_added"]) == 12 and doc["after"]["stable"] is True
+    bad = run("brace", MODELS / "footbridge_truss.toml", "--attach", "B1,Q9")
+    assert bad.exit_code == 2 and "'Q9'" in bad.output and "Traceback" not in bad.output
+
+
+def test_cli_no_ties_leaves_the_bottom_chords():
+    res = run("brace", MODELS / "hall_roof_unbraced.toml", "--no-ties", "--json",
+              "--alternatives", "0")
+    assert res.exit_code == 1
+    assert json.loads(res.stdout)["after"]["mechanisms"] == 30
+    ties = run("brace", MODELS / "hall_roof_unbraced.toml", "--alternatives", "0")
+    assert ties.exit_code == 0 and "bottom-chord tie at L2, bay 3" in ties.output
 
 
 def test_cli_unknown_joint_in_candidate_list(tmp_path):

@@ -5,8 +5,13 @@ Candidates
     existing members (a 4-cycle of the member graph whose diagonals cross
     inside it), and of every wall panel closed by the ground (three members
     from one fully held joint to another, coplanar with them: the ground is
-    the fourth side).  Optionally every pair of joints within a distance,
-    and a user's list.  Restraint candidates are the axis directions not yet
+    the fourth side).  In a frame of several frames (a ``frame`` joint tag,
+    as :mod:`spaceframe.extrude` writes), also a tie between every pair of
+    corresponding joints of adjacent frames that no member joins (the same
+    place in each frame, one frame spacing apart), and both diagonals of
+    every panel such ties close with members or other ties: a diagonal there
+    needs its ties.  Optionally every pair of joints within a distance, and
+    a user's list.  Restraint candidates are the axis directions not yet
     held at the supported joints (every joint of a frame with no support at
     all) and at joints marked attachable.
 
@@ -63,7 +68,7 @@ from .audit import audit
 from .equilibrium import compatibility_matrix
 
 __all__ = ["CandidateSet", "BracingResult", "find_candidates", "panel_diagonals",
-           "reach_rows", "greedy_basis", "recommend_bracing", "braced_frame", "location", "ACTS",
+           "tie_candidates", "planar_plane", "reach_rows", "greedy_basis", "recommend_bracing", "braced_frame", "location", "ACTS",
            "BRACING_CAUTION"]
 
 #: A candidate "acts on" a mode when the mode stretches it by more than this fraction of
@@ -77,7 +82,8 @@ BRACING_CAUTION = ("Bracing advice is a starting point for a competent engineer,
 PER_MODE = 3
 _AXES = "xyz"
 #: Candidate origins, in the order they are preferred when costs tie.
-ORIGINS = ("panel", "wall panel", "listed", "within", "support", "attachable")
+ORIGINS = ("panel", "wall panel", "tie", "tie panel", "listed", "within", "support",
+           "attachable")
 
 
 @dataclass(frozen=True, eq=False)
@@ -100,7 +106,8 @@ class CandidateSet:
         One of :data:`ORIGINS` for each candidate.
     panel : tuple of (tuple of int or None)
         The corners of the panel a diagonal belongs to, in cyclic order
-        (``-1`` for the ground side of a wall panel); None otherwise.
+        (``-1`` for the ground side of a wall panel); None otherwise.  The
+        sides of a ``"tie panel"`` that no member joins are tie candidates.
     partner : (c,) int
         The other diagonal of the same panel, or -1.
     """
@@ -157,7 +164,7 @@ def _crossing(P, a, b, c, e, tol: Tolerances) -> bool:
     return gap <= tol.panel_plane * L and 1e-9 < st[0] < 1 - 1e-9 and 1e-9 < st[1] < 1 - 1e-9
 
 
-def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
+def panel_diagonals(frame: Frame, *, also=(), tol: Tolerances = DEFAULT):
     """Both diagonals of every planar four-sided panel, and of every wall panel on the ground.
 
     A panel is a cycle of four members whose diagonals cross inside it (so
@@ -167,12 +174,20 @@ def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
     between those joints as the fourth side.  Diagonals that are already
     members are left out.
 
+    Parameters
+    ----------
+    frame : Frame
+    also : sequence of (int, int), keyword-only
+        Joint pairs counted as sides too (candidate ties): a panel with one
+        of them as a side is a ``"tie panel"``.  Wall panels use members only.
+    tol : Tolerances, keyword-only
+
     Returns
     -------
     list of (a, b, corners, origin)
         ``corners`` in cyclic order (the first and last of a wall panel are
-        the supported joints); ``origin`` ``"panel"`` or ``"wall panel"``.
-        Each panel's two diagonals are consecutive.
+        the supported joints); ``origin`` ``"panel"``, ``"wall panel"`` or
+        ``"tie panel"``.  Each panel's two diagonals are consecutive.
 
     Notes
     -----
@@ -185,6 +200,11 @@ def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
     for a, b in frame.ends.tolist():
         nbrs[a].add(b)
         nbrs[b].add(a)
+    real = [set(s) for s in nbrs]
+    extra = {frozenset(map(int, e)) for e in also} - {frozenset(e) for e in frame.ends.tolist()}
+    for a, b in (tuple(e) for e in extra):
+        nbrs[a].add(b)
+        nbrs[b].add(a)
     wedges = defaultdict(list)
     for v in range(n):
         nv = sorted(nbrs[v])
@@ -195,6 +215,8 @@ def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
 
     def add(corners, origin):
         a, b, c, e = corners
+        if any(frozenset(s) in extra for s in ((a, b), (b, c), (c, e), (e, a))):
+            origin = "tie panel"
         for p, q in ((a, c), (b, e)):
             if p >= 0 and q >= 0 and q not in nbrs[p]:
                 out.append((min(p, q), max(p, q), tuple(corners), origin))
@@ -212,10 +234,10 @@ def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
                     add((u, v1, w, v2), "panel")
     held = np.bincount(frame.restraint_joint, minlength=n) >= frame.dimension
     for x, y in frame.ends.tolist():
-        for A in sorted(j for j in nbrs[x] if held[j] and j != y):
-            for B in sorted(j for j in nbrs[y] if held[j] and j not in (x, A)):
+        for A in sorted(j for j in real[x] if held[j] and j != y):
+            for B in sorted(j for j in real[y] if held[j] and j not in (x, A)):
                 key = frozenset(((min(A, y), max(A, y)), (min(x, B), max(x, B))))
-                if key in seen or B in nbrs[A]:
+                if key in seen or B in real[A]:
                     continue  # a member A-B makes it an ordinary panel, found above
                 seen.add(key)
                 if _crossing(P, A, x, y, B, tol):
@@ -223,6 +245,117 @@ def panel_diagonals(frame: Frame, *, tol: Tolerances = DEFAULT):
                         if q not in nbrs[p]:
                             out.append((min(p, q), max(p, q), (A, x, y, B), "wall panel"))
     return out
+
+
+def _frame_labels(frame: Frame):
+    """The frames of a frame of frames, in order along the building, and their joints.
+
+    Labels are the ``frame`` joint tag (empty: a joint of no frame); numeric
+    labels go in numeric order, others in order of first appearance.
+    """
+    jf = frame.joint_tags.get("frame")
+    if jf is None:
+        return []
+    joints = defaultdict(list)
+    for j, label in enumerate(jf):
+        if label:
+            joints[label].append(j)
+    labels = list(joints)
+    if all(label.isdigit() for label in labels):
+        labels.sort(key=int)
+    return [(label, np.array(joints[label], dtype=np.int64)) for label in labels]
+
+
+def _planar_id(frame: Frame, j: int, label: str) -> str:
+    """The id of joint ``j`` in its planar frame: ``F3.U2`` of frame 3 is ``U2``."""
+    jid = frame.joint_ids[j]
+    prefix = f"F{label}."
+    return jid[len(prefix):] if jid.startswith(prefix) else jid
+
+
+def _offset(frame: Frame, A, B, la: str, lb: str) -> np.ndarray:
+    """The translation from frame ``la`` (joints ``A``) to the next, ``lb`` (joints ``B``).
+
+    The median difference of joints with the same planar id, or, when the
+    frames share none, the difference of the frames' centroids.
+    """
+    X = frame.coords
+    ib = {_planar_id(frame, j, lb): j for j in B.tolist()}
+    pairs = [(a, ib[p]) for a in A.tolist() if (p := _planar_id(frame, a, la)) in ib]
+    if pairs:
+        a, b = np.array(pairs).T
+        return np.median(X[b] - X[a], axis=0)
+    return X[B].mean(axis=0) - X[A].mean(axis=0)
+
+
+def tie_candidates(frame: Frame, *, tol: Tolerances = DEFAULT) -> list[tuple[int, int, str]]:
+    """Ties between corresponding joints of adjacent frames that no member joins.
+
+    In a frame made of frames (the ``frame`` joint tag of
+    :func:`spaceframe.extrude.extrude`), joint ``a`` of one frame and ``b``
+    of the next correspond when ``|X[b] - X[a] - t| <= tol.merge * size``,
+    ``t`` the translation from one frame to the next (:func:`_offset`) and
+    ``size`` the largest extent of the frame.  Pairs of joints both held in
+    every direction are left out (a tie there holds nothing).
+
+    Returns
+    -------
+    list of (a, b, bay)
+        ``a`` in the earlier frame; ``bay`` the label of the bay between
+        them: the earlier frame's number when labels are numbers (bay 2 runs
+        from frame 2 to frame 3, as in the extrusion), else ``"la-lb"``.
+
+    Notes
+    -----
+    Cost O(n log n): one k-d tree query per pair of adjacent frames.
+    """
+    frames = _frame_labels(frame)
+    if frame.dimension != 3 or len(frames) < 2:
+        return []
+    from scipy.spatial import cKDTree
+
+    X = frame.coords
+    size = float(np.max(np.ptp(X, axis=0))) or 1.0
+    existing = {(min(a, b), max(a, b)) for a, b in frame.ends.tolist()}
+    held = np.bincount(frame.restraint_joint, minlength=frame.n_joints) >= frame.dimension
+    out = []
+    for (la, A), (lb, B) in zip(frames, frames[1:]):
+        t = _offset(frame, A, B, la, lb)
+        if np.linalg.norm(t) <= tol.merge * size:
+            continue  # frames in one place: nothing to tie
+        dist, idx = cKDTree(X[B]).query(X[A] + t, distance_upper_bound=tol.merge * size)
+        bay = la if la.isdigit() and lb.isdigit() else f"{la}-{lb}"
+        for a, dd, ii in zip(A.tolist(), dist.tolist(), idx.tolist()):
+            if not np.isfinite(dd):
+                continue
+            b = int(B[ii])
+            if (min(a, b), max(a, b)) in existing or (held[a] and held[b]):
+                continue
+            out.append((a, b, bay))
+    return out
+
+
+def planar_plane(frame: Frame, *, tol: Tolerances = DEFAULT):
+    """The plane every joint of a space frame lies in, or None.
+
+    The joints are coplanar when each is within ``tol.panel_plane * size``
+    of the least-squares plane through them (``size`` the largest extent).
+
+    Returns
+    -------
+    (normal (3,) float, point (3,) float) or None
+        The unit normal (its largest component positive) and the centroid.
+    """
+    if frame.dimension != 3 or frame.n_joints < 3:
+        return None
+    X = frame.coords
+    c = X.mean(axis=0)
+    _, s, vt = np.linalg.svd(X - c, full_matrices=False)
+    size = float(np.max(np.ptp(X, axis=0)))
+    normal = vt[-1] * np.sign(vt[-1][np.argmax(np.abs(vt[-1]))])
+    if size == 0 or np.max(np.abs((X - c) @ normal)) > tol.panel_plane * size:
+        return None
+    return normal, c
 
 
 def _restraint_candidates(frame: Frame, attachable, *, tol: Tolerances):
@@ -260,7 +393,8 @@ def _segment_hits_box(p, q, lo, hi) -> bool:
     return True
 
 
-def find_candidates(frame: Frame, *, panels: bool = True, within: float | None = None,
+def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
+                    within: float | None = None,
                     listed=None, restraints: bool = False, attachable=(),
                     exclude_boxes=(), exclude_bays=(), exclude_panels=(),
                     tension_only: bool = False, tol: Tolerances = DEFAULT) -> CandidateSet:
@@ -272,6 +406,12 @@ def find_candidates(frame: Frame, *, panels: bool = True, within: float | None =
     panels : bool, keyword-only
         Diagonals of planar panels and of wall panels on the ground
         (:func:`panel_diagonals`).  Default True.
+    ties : bool, keyword-only
+        In a frame of frames, ties between corresponding joints of adjacent
+        frames (:func:`tie_candidates`) and, with ``panels``, both diagonals
+        of every panel those ties close (origin ``"tie panel"``: such a
+        diagonal needs its ties).  Default True; nothing for a frame with
+        no ``frame`` joint tag.
     within : float, keyword-only
         Also every pair of joints at most this far apart (in the frame's
         units) that no member joins.
@@ -284,7 +424,8 @@ def find_candidates(frame: Frame, *, panels: bool = True, within: float | None =
     exclude_boxes : sequence of ((d,), (d,)) float, keyword-only
         No candidate member may pass through these boxes (low, high corners).
     exclude_bays : sequence of str, keyword-only
-        Bay labels (the ``bay`` tag of a panel's members) where no brace goes.
+        Bay labels (the ``bay`` tag of a panel's members; a tie's bay for a
+        side that is a tie) where no brace goes.  Ties themselves are kept.
     exclude_panels : sequence of sets of int, keyword-only
         Panels, by their corner joints, where no brace goes.
     tension_only : bool, keyword-only
@@ -303,9 +444,15 @@ def find_candidates(frame: Frame, *, panels: bool = True, within: float | None =
     d = frame.dimension
     X = frame.coords
     items = []  # (a, b, corners, origin, cost)
+    tie_pairs = [(a, b) for a, b, _ in tie_candidates(frame, tol=tol)] if ties else []
     if panels:
-        items += [(a, b, corners, origin, np.nan) for a, b, corners, origin
-                  in panel_diagonals(frame, tol=tol)]
+        found_panels = panel_diagonals(frame, also=tie_pairs, tol=tol)
+        items += [(a, b, corners, origin, np.nan) for a, b, corners, origin in found_panels
+                  if origin != "tie panel"]
+    items += [(min(a, b), max(a, b), None, "tie", np.nan) for a, b in tie_pairs]
+    if panels:
+        items += [(a, b, corners, origin, np.nan) for a, b, corners, origin in found_panels
+                  if origin == "tie panel"]
     existing = {(min(a, b), max(a, b)) for a, b in frame.ends.tolist()}
     if listed is not None:
         for (a, b), w in zip(np.asarray(listed[0]).tolist(), listed[1]):
@@ -334,7 +481,7 @@ def find_candidates(frame: Frame, *, panels: bool = True, within: float | None =
     excluded_panels = [frozenset(p) for p in exclude_panels]
 
     def bay_of(corners):
-        return _panel_bay(corners, bay_tags, member_at)
+        return _panel_bay(corners, bay_tags, member_at, frame.joint_tags.get("frame"))
 
     kept = []
     for it in items:
@@ -389,15 +536,33 @@ def find_candidates(frame: Frame, *, panels: bool = True, within: float | None =
                         partner=np.asarray(partner, dtype=np.int64))
 
 
-def _panel_bay(corners, bay_tags, member_at) -> str:
-    """The most common ``bay`` label of a panel's side members ('' when none)."""
-    if corners is None or bay_tags is None:
+def _bay_between(jframe, a: int, b: int) -> str:
+    """The bay between the frames of joints ``a`` and ``b`` ('' in one frame or none)."""
+    if jframe is None or min(a, b) < 0 or not jframe[a] or not jframe[b] or jframe[a] == jframe[b]:
+        return ""
+    la, lb = jframe[a], jframe[b]
+    if la.isdigit() and lb.isdigit():
+        lo, hi = sorted((int(la), int(lb)))
+        return str(lo) if hi == lo + 1 else f"{lo}-{hi}"
+    return "-".join(sorted((la, lb)))
+
+
+def _panel_bay(corners, bay_tags, member_at, jframe=None) -> str:
+    """The most common ``bay`` label of a panel's sides ('' when none).
+
+    A side that is a member gives its ``bay`` tag; one that is not (a tie
+    candidate) the bay between its ends' frames (``jframe``, the ``frame``
+    joint tag).
+    """
+    if corners is None or (bay_tags is None and jframe is None):
         return ""
     labels = []
     for p, q in zip(corners, corners[1:] + corners[:1]):
         k = member_at.get((min(p, q), max(p, q)))
-        if k is not None and bay_tags[k]:
+        if k is not None and bay_tags is not None and bay_tags[k]:
             labels.append(bay_tags[k])
+        elif k is None and _bay_between(jframe, p, q):
+            labels.append(_bay_between(jframe, p, q))
     return Counter(labels).most_common(1)[0][0] if labels else ""
 
 
@@ -493,36 +658,47 @@ def _s_max(frame: Frame) -> float:
 
 
 def braced_frame(frame: Frame, cand: CandidateSet, chosen) -> Frame:
-    """The frame with the chosen candidate members (tagged ``role = "brace"``) and restraints.
+    """The frame with the chosen candidate members and restraints.
 
-    New members are named ``BR1``, ``BR2``... (skipping ids in use).  Member
-    tags the frame has are extended: ``role`` and ``group`` ``"brace"``,
-    ``frame`` where both ends are in one frame, ``bay`` from the panel's sides.
+    New braces are named ``BR1``, ``BR2``... (skipping ids in use), and
+    tagged ``role`` and ``group`` ``"brace"``; a tie is named as the
+    extrusion names one, ``B<bay>.<planar joint>`` (``BR<n>`` when that id
+    is in use), and tagged ``"tie"``.  Member tags the frame has are
+    extended: ``frame`` where both ends are in one frame, ``bay`` from the
+    panel's sides or the tie's frames.
     """
     chosen = list(chosen)
     mem = [i for i in chosen if cand.joint[i] < 0]
     res = [i for i in chosen if cand.joint[i] >= 0]
     used = set(frame.member_ids)
+    jframe = frame.joint_tags.get("frame")
     ids, k = [], 1
-    for _ in mem:
+    for i in mem:
+        a, b = cand.ends[i]
+        if cand.origin[i] == "tie":
+            name = f"B{_bay_between(jframe, a, b)}.{_planar_id(frame, a, jframe[a])}"
+            if name not in used:
+                ids.append(name)
+                used.add(name)
+                continue
         while f"BR{k}" in used:
             k += 1
         ids.append(f"BR{k}")
-        k += 1
+        used.add(f"BR{k}")
     tags = {key: list(v) for key, v in frame.member_tags.items()}
     tags.setdefault("role", [""] * frame.n_members)
-    jframe = frame.joint_tags.get("frame")
     bay_tags = frame.member_tags.get("bay")
     member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
     for i in mem:
         a, b = cand.ends[i]
         for key, labels in tags.items():
             if key in ("role", "group"):
-                labels.append("brace")
+                labels.append("tie" if cand.origin[i] == "tie" else "brace")
             elif key == "frame":
                 labels.append(jframe[a] if jframe is not None and jframe[a] == jframe[b] else "")
             elif key == "bay":
-                labels.append(_panel_bay(cand.panel[i], bay_tags, member_at))
+                labels.append(_bay_between(jframe, a, b) if cand.origin[i] == "tie" else
+                              _panel_bay(cand.panel[i], bay_tags, member_at, jframe))
             else:
                 labels.append("")
     return Frame(joint_ids=frame.joint_ids, coords=frame.coords,
@@ -611,6 +787,9 @@ class BracingResult:
                      "location": location(f, c, i)}
             if c.panel[i] is not None:
                 entry["panel"] = [f.joint_ids[j] if j >= 0 else "ground" for j in c.panel[i]]
+            if c.origin[i] == "tie panel":
+                entry["needs_ties"] = [[f.joint_ids[p], f.joint_ids[q]]
+                                       for p, q in _missing_ties(f, c.panel[i])]
         if modes is not None:
             entry["modes"] = list(modes)
         return entry
@@ -653,15 +832,41 @@ class BracingResult:
         }
 
 
+def _tie_name(frame: Frame, a: int, b: int) -> str:
+    """A tie in the trade's words: ``"bottom-chord tie at L2, bay 3"``.
+
+    A tie is a bottom-chord tie when its first joint is at the lowest level
+    of its frame (within ``DEFAULT.select`` of the frame's size; feet of
+    posts left out), a longitudinal tie otherwise.
+    """
+    jf = frame.joint_tags["frame"]
+    role = frame.joint_tags.get("role") or ("",) * frame.n_joints
+    own = [j for j in range(frame.n_joints) if jf[j] == jf[a] and role[j] != "foot"]
+    z = frame.coords[own, 2]
+    size = float(np.max(np.ptp(frame.coords, axis=0))) or 1.0
+    kind = ("bottom-chord tie" if frame.coords[a, 2] - z.min() <= DEFAULT.select * size
+            else "longitudinal tie")
+    return f"{kind} at {_planar_id(frame, a, jf[a])}, bay {_bay_between(jf, a, b)}"
+
+
+def _missing_ties(frame: Frame, corners) -> list[tuple[int, int]]:
+    """The sides of a panel that no member joins (the ties a tie-panel diagonal needs)."""
+    existing = {frozenset(e) for e in frame.ends.tolist()}
+    sides = zip(corners, corners[1:] + corners[:1])
+    return [(p, q) for p, q in sides if p >= 0 and q >= 0 and frozenset((p, q)) not in existing]
+
+
 def location(frame: Frame, cand: CandidateSet, i: int) -> str:
     """Where candidate member ``i`` is, in words: frames, bay and plane, from tags and geometry."""
     a, b = cand.ends[i]
-    words = []
     jf = frame.joint_tags.get("frame")
+    if cand.origin[i] == "tie":
+        return _tie_name(frame, a, b)
+    words = []
     if jf is not None and jf[a] and jf[b]:
         words.append(f"frame {jf[a]}" if jf[a] == jf[b] else f"between frames {jf[a]} and {jf[b]}")
     member_at = {(min(p, q), max(p, q)): k for k, (p, q) in enumerate(frame.ends.tolist())}
-    bay = _panel_bay(cand.panel[i], frame.member_tags.get("bay"), member_at)
+    bay = _panel_bay(cand.panel[i], frame.member_tags.get("bay"), member_at, jf)
     if bay:
         words.append(f"bay {bay}")
     corners = cand.panel[i]
@@ -681,12 +886,18 @@ def location(frame: Frame, cand: CandidateSet, i: int) -> str:
             words.append(f"plane pitched {pitch:.0f} deg")
     if cand.origin[i] == "wall panel":
         words.append("wall panel closed by the ground")
+    elif cand.origin[i] == "tie panel":
+        at = " and ".join(_planar_id(frame, p, jf[p]) for p, _ in _missing_ties(frame, corners))
+        kind = ("plan bracing" if words and words[-1].startswith("horizontal") else
+                "vertical bracing" if words and words[-1].startswith("vertical") else "bracing")
+        words.append(f"{kind} in the panel closed by the ties at {at} (needs its ties)")
     elif cand.origin[i] in ("within", "listed"):
         words.append("no panel" if cand.origin[i] == "within" else "from the candidate list")
     return ", ".join(words) or "-"
 
 
-def recommend_bracing(frame: Frame, *, panels: bool = True, within: float | None = None,
+def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
+                      within: float | None = None,
                       listed=None, restraints: str = "auto", attachable=(),
                       exclude_boxes=(), exclude_bays=(), exclude_panels=(),
                       tension_only: bool = False, alternatives: int = 3,
@@ -705,7 +916,7 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, within: float | None
     Parameters
     ----------
     frame : Frame
-    panels, within, listed, attachable, exclude_boxes, exclude_bays, exclude_panels, \
+    panels, ties, within, listed, attachable, exclude_boxes, exclude_bays, exclude_panels, \
 tension_only : keyword-only
         As in :func:`find_candidates`.
     restraints : {"auto", "always", "never"}, keyword-only
@@ -756,7 +967,7 @@ tension_only : keyword-only
     before = audit(frame, tol=tol, **opts)
     use_restraints = restraints == "always" or (
         restraints == "auto" and (before.rigid_body_modes > 0 or len(attachable) > 0))
-    cand = find_candidates(frame, panels=panels, within=within, listed=listed,
+    cand = find_candidates(frame, panels=panels, ties=ties, within=within, listed=listed,
                            restraints=use_restraints, attachable=attachable,
                            exclude_boxes=exclude_boxes, exclude_bays=exclude_bays,
                            exclude_panels=exclude_panels, tension_only=tension_only, tol=tol)
@@ -796,6 +1007,9 @@ tension_only : keyword-only
         notes.append(f"the re-audit finds {after.mechanisms} mechanisms where the selection "
                      f"expected {expected}: the rank decision is close; check the braced frame")
     remaining = _hints(braced, after, restraints_tried=use_restraints)
+    lateral = _lateral_note(braced, after, tol=tol)
+    if lateral:
+        notes.append(lateral)
     if removed <= 0 and k:
         notes.append("no candidate removes any mechanism")
     return BracingResult(frame=frame, before=before, candidates=cand, chosen=tuple(chosen),
@@ -848,6 +1062,34 @@ def _alternatives(elements, order, cost, basis, threshold, most, cand, tension_o
             found.append((tuple(_expand(other, cand, tension_only)),
                           float(sum(cost[i] for i in other))))
     return sorted(found, key=lambda t: t[1])
+
+
+def _lateral_note(frame: Frame, after: AuditResult, *, tol: Tolerances) -> str:
+    """For a lone planar frame in space: which joints need lateral restraint, and how to give it.
+
+    Every member of such a frame lies in one plane and nothing ties it to
+    another frame, so no candidate member can hold a joint out of that
+    plane: only something stiff beside it can (a deck, plan bracing, a
+    braced structure), given as restraints at ``--attach`` joints.
+    """
+    plane = planar_plane(frame, tol=tol)
+    if plane is None or not after.mechanisms:
+        return ""
+    normal, centre = plane
+    u = after.mode_displacements            # (k, n, 3), each mode's largest movement 1
+    out = np.abs(u @ normal).max(axis=0) > ACTS
+    if not out.any():
+        return ""
+    ids = [frame.joint_ids[j] for j in np.flatnonzero(out)]
+    axis = int(np.argmax(np.abs(normal)))
+    where = (f"the plane {_AXES[axis]} = {centre[axis]:.3g}" if abs(normal[axis]) > 0.999 else
+             "one plane")
+    direction = _AXES[axis] if abs(normal[axis]) > 0.999 else "out of that plane"
+    return (f"every member lies in {where} and nothing ties the frame to another: no member "
+            f"in that plane can hold a joint out of it.  Joints {', '.join(ids)} "
+            f"({len(ids)}) need lateral restraint along {direction}, from something stiff "
+            f"beside the frame (a deck, plan bracing, a second braced truss).  Mark the joints "
+            f"that can be tied to it: --attach {','.join(ids)}")
 
 
 def _hints(frame: Frame, after: AuditResult, *, restraints_tried: bool) -> tuple[str, ...]:

@@ -86,6 +86,9 @@ def _csv_text(result) -> str:
               help="Write the braced model (.toml or .json); new members tagged role = brace.")
 @click.option("--no-panels", is_flag=True,
               help="Do not take panel diagonals as candidates (use --within or --candidates).")
+@click.option("--no-ties", is_flag=True,
+              help="In a frame of frames, do not take ties between corresponding joints of "
+                   "adjacent frames, or the diagonals of the panels they close, as candidates.")
 @click.option("--within", type=float, metavar="LENGTH",
               help="Also every pair of joints at most LENGTH apart that no member joins.")
 @click.option("--candidates", "candidates_path", type=click.Path(path_type=str), metavar="FILE",
@@ -101,8 +104,9 @@ def _csv_text(result) -> str:
               show_default=True,
               help="Restraint candidates (axis directions at supported or attachable joints): "
                    "auto = only when the frame has rigid-body modes or --attach is given.")
-@click.option("--attach", multiple=True, metavar="JOINT",
-              help="A joint that may be tied to the ground or a braced structure (repeatable).")
+@click.option("--attach", multiple=True, metavar="JOINT[,JOINT...]",
+              help="Joints that may be tied to the ground or a braced structure, such as a "
+                   "deck (comma-separated; repeatable).")
 @click.option("--tension-only", is_flag=True,
               help="Rods that carry tension only: a chosen panel gets both diagonals.")
 @click.option("--alternatives", default=3, show_default=True, type=click.IntRange(0, 50),
@@ -110,14 +114,17 @@ def _csv_text(result) -> str:
 @supports_option
 @force_option
 @debug_option
-def brace_command(model, as_json, csv_path, write_path, no_panels, within, candidates_path,
+def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, within,
+                  candidates_path,
                   exclude_box, exclude_bay, exclude_panel, restraints, attach, tension_only,
                   alternatives, supports, force, debug):
     """Recommend the fewest, then shortest, bracing members (and restraints) that remove
     every mechanism of the frame in MODEL, and re-audit the braced frame.
 
     Candidates: both diagonals of every planar four-sided panel bounded by members, and
-    of every wall panel closed by the ground; more with --within and --candidates.
+    of every wall panel closed by the ground; in a frame of frames (extruded), ties
+    between corresponding joints of adjacent frames and the diagonals of the panels they
+    close; more with --within and --candidates.
     The selection is exact (greedy over a linear matroid).
 
     Exit status: 0 when the braced frame is held, 1 when mechanisms remain, 2 for bad
@@ -141,8 +148,9 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, within, candi
         panels = [set(_joint_indices(frame, [j.strip() for j in p.split(",") if j.strip()],
                                      "--exclude-panel")) for p in exclude_panel]
         result = recommend_bracing(
-            frame, panels=not no_panels, within=within, listed=listed, restraints=restraints,
-            attachable=_joint_indices(frame, attach, "--attach"), exclude_boxes=boxes,
+            frame, panels=not no_panels, ties=not no_ties, within=within, listed=listed, restraints=restraints,
+            attachable=_joint_indices(frame, [j.strip() for a in attach for j in a.split(",")
+                                              if j.strip()], "--attach"), exclude_boxes=boxes,
             exclude_bays=exclude_bay, exclude_panels=panels, tension_only=tension_only,
             alternatives=alternatives)
         if write_path:

@@ -56,7 +56,9 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
                  for x in doc["restraints_added"][:max_rows]]
         lines += _table(rows)
     lines.append("")
-    lines.append(f"Total: {len(added)} member{'s' * (len(added) != 1)}, "
+    n_ties = sum(a["origin"] == "tie" for a in added)
+    split = f" ({n_ties} ties, {len(added) - n_ties} braces)" if n_ties else ""
+    lines.append(f"Total: {len(added)} member{'s' * (len(added) != 1)}{split}, "
                  f"{doc['total_length']:.3f} {units}; "
                  f"{len(doc['restraints_added'])} restraint"
                  f"{'s' * (len(doc['restraints_added']) != 1)}")
