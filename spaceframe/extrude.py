@@ -64,10 +64,8 @@ from __future__ import annotations
 import difflib
 import os
 import re
-import tomllib
 import warnings
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
@@ -152,21 +150,10 @@ def read_spec(path) -> Spec:
         For a file that cannot be read or is not TOML, and for every check of
         :func:`spec_from_document`.
     """
+    from .io.settings import read_settings
+
     source = os.fspath(path)
-    try:
-        text = Path(source).read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise ModelError("no such spec file; check the path and its spelling",
-                         path=source) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise ModelError(f"cannot be read ({exc}); a spec is UTF-8 TOML text",
-                         path=source) from None
-    try:
-        doc = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        m = re.search(r"at line (\d+)", str(exc))
-        raise ModelError(f"not valid TOML: {exc}; fix the syntax there", path=source,
-                         line=int(m.group(1)) if m else None) from None
+    doc, text = read_settings(source, "spec")
     return spec_from_document(doc, path=source, text=text)
 
 

@@ -54,9 +54,9 @@ def test_sample_from_the_issue_loads_and_audits(write):
         mode["displacements"]["C"] == [0.0, pytest.approx(-1.0), 0.0]
 
 
-# extrusion specs and support sidecars are TOML too, but not models
+# extrusion specs, support sidecars and batch variants are TOML too, but not models
 DEMO_MODELS = sorted(p for p in MODELS.glob("*.toml")
-                     if not p.name.endswith((".spec.toml", ".supports.toml")))
+                     if not p.name.endswith((".spec.toml", ".supports.toml", ".variants.toml")))
 
 
 @pytest.mark.parametrize("model", DEMO_MODELS, ids=lambda p: p.name)

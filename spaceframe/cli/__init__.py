@@ -25,6 +25,7 @@ def main():
 
 from .animate import animate_command  # noqa: E402
 from .audit import audit_command  # noqa: E402  (subcommands register on the group)
+from .batch import batch_command  # noqa: E402
 from .brace import brace_command  # noqa: E402
 from .convert import convert_command  # noqa: E402
 from .extrude import extrude_command  # noqa: E402
@@ -36,3 +37,4 @@ main.add_command(convert_command)
 main.add_command(animate_command)
 main.add_command(report_command)
 main.add_command(brace_command)
+main.add_command(batch_command)
