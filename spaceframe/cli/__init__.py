@@ -30,11 +30,13 @@ from .brace import brace_command  # noqa: E402
 from .convert import convert_command  # noqa: E402
 from .extrude import extrude_command  # noqa: E402
 from .report import report_command  # noqa: E402
+from .view import view_command  # noqa: E402
 
 main.add_command(audit_command)
 main.add_command(extrude_command)
 main.add_command(convert_command)
 main.add_command(animate_command)
 main.add_command(report_command)
+main.add_command(view_command)
 main.add_command(brace_command)
 main.add_command(batch_command)

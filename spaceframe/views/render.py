@@ -26,7 +26,7 @@ from ..errors import SpaceframeError
 from ..results import AuditResult
 from .scene import AMPLITUDE, Scene, phases, scene_of, view_direction
 
-__all__ = ["mode_frames", "state_picture", "write_frames", "PALETTE", "SIZE"]
+__all__ = ["mode_frames", "state_picture", "write_frames", "support_glyphs", "PALETTE", "SIZE"]
 
 #: Colours of the pictures (colour-blind-safe), each with the word used in legends.
 PALETTE = {
@@ -77,6 +77,23 @@ def _tubes(pv, points, ends, radius):
     return mesh.tube(radius=radius, n_sides=10) if mesh.n_points else mesh
 
 
+def support_glyphs(pv, scene: Scene, points):
+    """Support glyphs as one mesh: a green stalk and end plate per held direction, at the
+    joints' positions ``points`` (n, 3); None without supports."""
+    glyphs = scene.glyphs()
+    if not glyphs:
+        return None
+    e = scene.extent
+    shift = points - scene.coords
+    parts = []
+    for (start, end, d), j in zip(glyphs, (j for j, _ in scene.supports)):
+        a, b = start + shift[j], end + shift[j]
+        parts.append(pv.Tube(pointa=a, pointb=b, radius=0.006 * e, n_sides=8))
+        parts.append(pv.Cylinder(center=b, direction=d, radius=0.028 * e, height=0.006 * e,
+                                 resolution=20))
+    return pv.merge(parts)
+
+
 class _Stage:
     """One off-screen plotter with the parts of a frame's picture that stay put.
 
@@ -119,17 +136,7 @@ class _Stage:
 
     def supports(self, points):
         """Green stalks with end plates, one per held direction, following their joints."""
-        glyphs = self.scene.glyphs()
-        if not glyphs:
-            return None
-        shift = points - self.scene.coords
-        parts = []
-        for (start, end, d), j in zip(glyphs, (j for j, _ in self.scene.supports)):
-            a, b = start + shift[j], end + shift[j]
-            parts.append(self.pv.Tube(pointa=a, pointb=b, radius=0.006 * self.e, n_sides=8))
-            parts.append(self.pv.Cylinder(center=b, direction=d, radius=0.028 * self.e,
-                                          height=0.006 * self.e, resolution=20))
-        return self.pv.merge(parts)
+        return support_glyphs(self.pv, self.scene, points)
 
     def camera(self, direction, points_sets):
         """Look at the frame from ``direction``, fitted to every pose in ``points_sets``."""
