@@ -15,6 +15,7 @@ from ..errors import ModelError
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
 from . import native
+from .binary import dump_npz, read_npz
 from .csvpair import read_csv_pair
 from .drawing import DRAWING_SUFFIXES, read_drawing
 from .mesh import MESH_SUFFIXES, read_mesh
@@ -22,11 +23,12 @@ from .mesh import MESH_SUFFIXES, read_mesh
 __all__ = ["load", "load_planar", "save", "find_line", "READERS", "LINE_FINDERS", "WRITERS"]
 
 #: File suffix (lower case) -> ``reader(path, *, tol) -> Frame``.
-READERS = {".toml": native.read_toml, ".json": native.read_json, ".csv": read_csv_pair,
+READERS = {".toml": native.read_toml, ".json": native.read_json, ".npz": read_npz,
+           ".csv": read_csv_pair,
            **{s: read_mesh for s in MESH_SUFFIXES}, **{s: read_drawing for s in DRAWING_SUFFIXES}}
 
 #: File suffix (lower case) -> ``writer(frame, path, *, overwrite)``: the native formats.
-WRITERS = {".toml": native.dump_toml, ".json": native.dump_json}
+WRITERS = {".toml": native.dump_toml, ".json": native.dump_json, ".npz": dump_npz}
 
 #: File suffix (lower case) -> ``finder(text, kind, id) -> line or None``, used by messages.
 LINE_FINDERS = {".toml": native.toml_line, ".json": native.json_line}
@@ -97,7 +99,7 @@ def load_planar(path, options: dict | None = None, *, tol: Tolerances = DEFAULT)
 
 
 def save(frame: Frame, path, *, overwrite: bool = False, inputs=()) -> None:
-    """Write a frame as a native model file (``.toml`` or ``.json``, by the suffix).
+    """Write a frame as a native model file (``.toml``, ``.json`` or ``.npz``, by the suffix).
 
     Parameters
     ----------
@@ -117,8 +119,8 @@ def save(frame: Frame, path, *, overwrite: bool = False, inputs=()) -> None:
     target = os.fspath(path)
     writer = WRITERS.get(Path(target).suffix.lower())
     if writer is None:
-        raise ModelError("a model is written as .toml or .json; give the output one of those "
-                         "suffixes", path=target)
+        raise ModelError("a model is written as .toml, .json or .npz (binary, for large "
+                         "frames); give the output one of those suffixes", path=target)
     for source in inputs:
         source = os.fspath(source)
         if os.path.realpath(source) == os.path.realpath(target) or (
