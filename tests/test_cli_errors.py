@@ -45,4 +45,4 @@ def test_directory_exits_2(tmp_path):
 def test_unknown_suffix_exits_2(tmp_path):
     path = tmp_path / "model.txt"
     path.write_text(SAMPLE, encoding="utf-8")
-    check_refused(run(path), path, None, [".json, .obj, .off, .ply, .stl, .svg or .toml model files"])
+    check_refused(run(path), path, None, [".json, .npz, .obj, .off, .ply, .stl, .svg or .toml model files"])
