@@ -27,7 +27,7 @@ def test_ten_thousand_member_families_match_dense_svd(family):
         frame = double_layer_grid(35, supports="minimal")              # 9,800 members
     else:
         from bench_scale import _scaffold
-        frame = _scaffold(64, 16)                                       # ~10,000 members
+        frame = _scaffold(64, 16)                                       # 8,384 members
     assert frame.n_members > 8000
     held = [(int(j), int(np.argmax(np.abs(v)))) for j, v in
             zip(frame.restraint_joint, frame.restraint_dir)]
