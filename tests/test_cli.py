@@ -10,27 +10,16 @@ from click.testing import CliRunner
 
 from spaceframe.cli import main
 
+from test_io import SAMPLE
+
 MODELS = Path(__file__).resolve().parent.parent / "models"
 
 KEYS = {"dimension", "joints", "members", "restraints", "maxwell", "rank", "mechanisms",
         "rigid_body_modes", "internal_mechanisms", "self_stress_states", "stable", "rigid",
         "mechanism_modes", "self_stress_modes"}
 
-TRIANGLE = """name = "Plant platform, south bay"
-units = "m"
-dimension = 3
-[joints]
-A = [0.0, 0.0, 0.0]
-B = [4.0, 0.0, 0.0]
-C = [2.0, 0.0, 3.0]
-[members]
-AB = ["A", "B"]
-BC = ["B", "C"]
-CA = ["C", "A"]
-[supports]
-A = "pin"
-B = "yz"
-"""
+# the documented sample model (the triangle of the format description), from test_io
+TRIANGLE = SAMPLE
 
 
 def run(*args):
