@@ -9,7 +9,8 @@ without a traceback.
 
 from __future__ import annotations
 
-__all__ = ["SpaceframeError", "ModelError", "SpaceframeWarning", "where"]
+__all__ = ["SpaceframeError", "ModelError", "OutputExistsError", "InternalError",
+           "SpaceframeWarning", "where"]
 
 
 def where(path: str | None = None, line: int | None = None) -> str:
@@ -42,6 +43,44 @@ class ModelError(SpaceframeError):
                  line: int | None = None, item: str | None = None):
         self.path, self.line, self.item, self.reason = path, line, item, message
         super().__init__(where(path, line) + message)
+
+
+class OutputExistsError(ModelError):
+    """An output file exists and the caller did not allow replacing it.
+
+    The message names the file and says how to go on in the library's terms;
+    the command line adds its own option for replacing the file.
+    """
+
+    def __init__(self, path: str):
+        super().__init__("already exists and is not overwritten; choose another name, or "
+                         "allow replacing it", path=path)
+
+
+class InternalError(RuntimeError):
+    """A failure inside spaceframe that the input did not cause.
+
+    A factorisation that breaks down, a check inside the engine that does not
+    hold: the model was read and is valid, and the fault is in the method or
+    its numerical limits.  It is deliberately not a :class:`SpaceframeError`
+    (the command line exits 3 for it, not 2) and carries what was computed
+    before the failure, as scipy's ``ArpackNoConvergence`` carries its partial
+    eigenvectors.
+
+    Parameters
+    ----------
+    message : str
+        What failed, in the engine's terms.
+    stage : str
+        The step that failed (``"factorisation"``, ``"mechanism basis"``...).
+    partial : dict, optional
+        What had been computed before it (counts, arrays, the gap), by name.
+    """
+
+    def __init__(self, message: str, *, stage: str, partial: dict | None = None):
+        self.stage = stage
+        self.partial = dict(partial or {})
+        super().__init__(message)
 
 
 class SpaceframeWarning(UserWarning):

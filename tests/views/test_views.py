@@ -22,7 +22,7 @@ from spaceframe.views.scene import phases, scene_of, view_direction
 pytest.importorskip("pyvista")
 iio = pytest.importorskip("imageio.v3")
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 SMALL = (480, 320)
 
 

@@ -23,9 +23,9 @@ import spaceframe
 from spaceframe import Frame
 from spaceframe.analysis.bracing import panel_diagonals, recommend_bracing
 
-from conftest import dense_compatibility
+from common.matrices import dense_compatibility
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
 def _mechanisms(coords, ends, held):

@@ -14,7 +14,7 @@ from spaceframe.cli import main
 from spaceframe.selection import apply_rules
 
 trimesh = pytest.importorskip("trimesh")
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
 def counts(frame):

@@ -10,9 +10,9 @@ from click.testing import CliRunner
 
 from spaceframe.cli import main
 
-from test_io import SAMPLE
+from common.model_files import SAMPLE
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 
 KEYS = {"dimension", "joints", "members", "restraints", "maxwell", "rank", "mechanisms",
         "rigid_body_modes", "internal_mechanisms", "self_stress_states", "stable", "rigid",

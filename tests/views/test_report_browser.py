@@ -18,8 +18,8 @@ import spaceframe
 from spaceframe import Frame
 from spaceframe.views.report import render_report
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
-ARTIFACTS = Path(__file__).resolve().parent / "artifacts"
+MODELS = Path(__file__).resolve().parents[2] / "models"
+ARTIFACTS = Path(__file__).resolve().parents[1] / "artifacts"
 CHROMIUM = "/usr/bin/chromium"
 ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
         "--disable-component-update", "--disable-sync", "--no-first-run"]

@@ -13,7 +13,7 @@ from spaceframe import ModelError
 from spaceframe.cli import main
 from spaceframe.io.binary import dump_npz
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
 @pytest.mark.parametrize("name", ["hall_roof_unbraced.toml", "canopy_sway.toml",

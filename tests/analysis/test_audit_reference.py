@@ -12,8 +12,9 @@ import sympy
 
 from spaceframe import Frame, audit
 
-from conftest import dense_compatibility
-from reference_cases import CASES, flat_truss
+from common.matrices import dense_compatibility
+from common.reference_cases import CASES, flat_truss
+from common.transforms import rotation, transformed
 
 METHODS = ["dense", "sparse"]
 
@@ -132,29 +133,6 @@ def test_against_numpy_dense_svd(seed, method):
     assert r.mechanisms == C.shape[1] - rank
     assert r.self_stress_states == C.shape[0] - rank
     assert_maxwell(r)
-
-
-def transformed(frame, *, scale=1.0, rotation=None, shift=None, seed=0):
-    """The same frame in other units, turned, moved, and with joints and members reordered."""
-    rng = np.random.default_rng(seed)
-    d = frame.dimension
-    R = np.eye(d) if rotation is None else rotation
-    X = frame.coords @ R.T * scale + (0 if shift is None else shift)
-    pj = rng.permutation(frame.n_joints)
-    inv = np.argsort(pj)
-    pm = rng.permutation(frame.n_members)
-    ends = inv[frame.ends[pm]][:, ::-1]  # also swap each member's ends
-    sup = {}
-    for j, v in zip(frame.restraint_joint, frame.restraint_dir):
-        sup.setdefault(int(inv[j]), []).append((R @ v).tolist())
-    return Frame.from_arrays(X[pj], ends, supports=sup,
-                             joint_ids=[frame.joint_ids[i] for i in pj],
-                             member_ids=[frame.member_ids[i] for i in pm])
-
-
-def rotation(d, seed):
-    q, _ = np.linalg.qr(np.random.default_rng(seed).standard_normal((d, d)))
-    return q
 
 
 @pytest.mark.parametrize("method", METHODS)

@@ -11,7 +11,7 @@ from click.testing import CliRunner
 
 from spaceframe.cli import main
 
-from test_io import ERROR_CASES, SAMPLE
+from common.model_files import ERROR_CASES, SAMPLE
 
 
 def run(*args):

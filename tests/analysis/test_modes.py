@@ -10,9 +10,9 @@ import pytest
 from spaceframe import Frame, audit
 from spaceframe.analysis.prestress import NOT_STIFFENED, STIFFENED
 
-from reference_cases import (CASES, braced_square, collinear_pair, dangling_joint, flat_truss,
-                             four_bar_square, tetrahedron)
-from test_audit_reference import rotation, transformed
+from common.reference_cases import (CASES, braced_square, collinear_pair, dangling_joint,
+                                    flat_truss, four_bar_square, tetrahedron)
+from common.transforms import rotation, transformed
 
 METHODS = ["dense", "sparse"]
 
@@ -176,7 +176,7 @@ def test_extruded_roof_is_worded_in_the_trade_s_terms():
     from pathlib import Path
     from spaceframe import load
     from spaceframe.views.text import render_audit
-    path = Path(__file__).resolve().parent.parent / "models" / "hall_roof_unbraced.toml"
+    path = Path(__file__).resolve().parents[2] / "models" / "hall_roof_unbraced.toml"
     r = audit(load(path))
     kinds = list(r.mode_kinds)
     assert kinds.count("lean") == 1

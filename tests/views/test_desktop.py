@@ -11,7 +11,7 @@ from click.testing import CliRunner
 import spaceframe
 from spaceframe.cli import main
 
-MODELS = Path(__file__).resolve().parent.parent / "models"
+MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
 @pytest.fixture(scope="module")
