@@ -70,6 +70,19 @@ class Tolerances:
         other, ``L`` the longer of the two diagonals, and cross inside both.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    mechanism_load : float
+        A load ``f`` (all joint forces of a case, one vector) acts on the
+        mechanisms, and is not carried, when ``||P f|| > mechanism_load *
+        ||f||``, ``P`` the orthogonal projection onto the mechanism space.
+        Default ``1e-6``: the sparse engine's mechanism basis is accurate to
+        about ``1e-8``, and a load with a millionth of itself on a mechanism
+        is, for a designer, not carried.
+    zero_force : float
+        A member force ``N`` of a case counts as none (neither tension nor
+        compression; written as 0) when ``|N| <= zero_force * max |N|`` over
+        that case's members, and a reaction component likewise against the
+        largest reaction component.  Default ``1e-9``: round-off of the
+        solve is about ``1e-13`` of the largest force.
     """
 
     rank: float = 1e-6
@@ -82,6 +95,8 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    mechanism_load: float = 1e-6
+    zero_force: float = 1e-9
 
 
 DEFAULT = Tolerances()

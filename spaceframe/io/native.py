@@ -52,7 +52,10 @@ stiffness in any consistent unit::
 A member id wins over a selector, a selector over the default; a member left
 without a value is an error.
 
-The top-level keys ``groups``, ``loads`` and ``notes`` are reserved for later
+Loads (``force_units``, ``[loads.NAME]``, ``[combinations.NAME]``,
+``[self_weight]``, ``[notional]``) are read by :mod:`spaceframe.io.loads`.
+
+The top-level keys ``groups`` and ``notes`` are reserved for later
 versions and accepted without a word; any other unknown key draws a
 :class:`SpaceframeWarning`.
 
@@ -84,14 +87,16 @@ from ..model import UNITS, Frame
 from ..supports import AXES, restraint_rows
 from ..tolerances import DEFAULT, Tolerances
 from ..validation import check_frame
+from . import loads as _loads
 
 __all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_json",
            "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags",
+        "properties") + _loads.KEYS
 #: Top-level keys reserved for later versions: accepted and ignored.
-RESERVED_KEYS = ("groups", "loads", "notes")
+RESERVED_KEYS = ("groups", "notes")
 
 #: Member properties the native format knows, with what each means.
 PROPERTIES = {"EA": "axial stiffness, in any consistent unit (only ratios are used)"}
@@ -297,11 +302,13 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
                                                  dimension, tol, at)
     joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
     properties = _properties(doc, member_ids, member_tags, at)
+    loads = _loads.read_loads(doc, dimension, joint_ids, path=source,
+                              locate=lambda *keys: _loads.path_line(text, syntax, keys))
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
                   dimension=dimension, name=name, units=units, source=source,
                   joint_tags=joint_tags, member_tags=member_tags,
-                  member_properties=properties)
+                  member_properties=properties, loads=loads)
     return check_frame(frame, tol=tol, locate=at.line)
 
 
@@ -996,8 +1003,9 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
         is a directory, or a coordinate is not finite.
     """
     target = _check_writable(frame, path, overwrite)
+    load_head, load_tables = _loads.toml_lines(frame.loads)
     out = [f"name = {_quote(frame.name)}", f"units = {_quote(frame.units)}",
-           f"dimension = {frame.dimension}", "", "[joints]"]
+           f"dimension = {frame.dimension}", *load_head, "", "[joints]"]
     out += [f"{_toml_id(j)} = {_numbers(x)}" for j, x in zip(frame.joint_ids, frame.coords)]
     out += ["", "[members]"]
     ids = frame.joint_ids
@@ -1015,6 +1023,7 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
     for name, items in _property_rows(frame):
         out += ["", f"[properties.members.{_toml_id(name)}]"]
         out += [f"{_toml_id(key)} = {float(v)!r}" for key, v in items]
+    out += load_tables
     _write(target, "\n".join(out) + "\n", overwrite)
 
 
@@ -1087,4 +1096,5 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
         inner = ",\n".join(f"    {_quote(name)}: {{" + ", ".join(
             f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
         body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
+    body += _loads.json_entries(frame.loads)
     _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)
