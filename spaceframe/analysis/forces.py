@@ -18,6 +18,12 @@ are named in the audit's words.
   their orthogonal complement: ``K + delta I`` is factorised, the mechanisms
   are projected out, and iterative refinement removes the shift's effect.
 
+One-way members (the member tag ``carries``: ``tension`` for rods, cables
+and guys, ``compression`` for props and bearings) that come out loaded the
+wrong way go slack: the worst is left out and the case solved again, one
+member at a time, until every one-way member is loaded its own way (the
+slack members are reported per case).
+
 One sparse factorisation serves every load case (a block solve).  Reactions
 are the forces the supports exert on the frame: at every joint, load plus
 reaction plus the members' pulls sum to zero.
@@ -33,6 +39,8 @@ References
 
 from __future__ import annotations
 
+import dataclasses
+from dataclasses import dataclass
 from typing import Sequence
 
 import numpy as np
@@ -51,8 +59,10 @@ __all__ = ["forces"]
 #: Relative shift ``delta / typical stiffness`` of ``K + delta I`` when mechanisms remain.
 #: Not a tolerance: it decides nothing, and iterative refinement removes its effect.
 _SHIFT = 1e-8
-#: Iterative refinement stops once ``||f - C.T t|| <= _REFINED * ||f||``, or after _STEPS.
+#: Iterative refinement stops once ``||f - K u|| <= _REFINED * ||f||``, once a step reduces
+#: the residual by less than a factor ``1 / _STALLED`` (round-off reached), or after _STEPS.
 _REFINED = 1e-13
+_STALLED = 0.25
 _STEPS = 12
 
 
@@ -109,17 +119,82 @@ def forces(frame: Frame, cases: Sequence[str] | None = None, *, loads: LoadSet |
     ----------
     See the module docstring.
     """
-    from .audit import audit
-
     loads = loads if loads is not None else frame.loads
     if loads is None or not (loads.cases or loads.self_weight):
         raise ModelError("the model has no load cases; add a table [loads.NAME] of "
                          "joint = [fx, fy, fz] ([fx, fy] in a plane frame), e.g. [loads.snow] "
                          "then U1 = [0.0, 0.0, -5.0]", path=frame.source)
     applied = loads.applied(frame, cases)
-    n, d, m = frame.n_joints, frame.dimension, frame.n_members
-    q = len(applied.names)
+    d, q = frame.dimension, len(applied.names)
     F = applied.forces                                           # (q, n, d)
+    got = _solve(frame, F, method, tol)
+    carried, T, excited = got.carried.copy(), got.T.copy(), list(got.excited)
+    methods = [got.how if c else "none" for c in carried]
+    residual = got.residual.copy()
+    slack: list[tuple[str, ...]] = [()] * q
+    tension_only, compression_only = _one_way(frame)
+    warnings = list(got.warnings)
+    if tension_only.any() or compression_only.any():
+        for i in np.flatnonzero(carried):
+            t, gone, sub = _settle(frame, F[i], T[i], tension_only, compression_only, method, tol)
+            slack[i] = tuple(frame.member_ids[j] for j in gone)
+            if sub is not None and not sub.carried[0]:
+                carried[i], T[i], methods[i], residual[i] = False, np.nan, "none", np.nan
+                excited[i] = sub.excited[0]
+                warnings.append(f"case {applied.names[i]!r}: with its slack one-way members "
+                                f"({', '.join(slack[i])}) left out, the frame cannot carry it")
+            else:
+                T[i] = t
+                if sub is not None:
+                    methods[i], residual[i] = sub.how, sub.residual[0]
+                    if sub.mechanisms:
+                        warnings.append(f"case {applied.names[i]!r}: with its slack one-way "
+                                        f"members ({', '.join(slack[i])}) left out the frame "
+                                        f"is a mechanism; this load is orthogonal to it, but "
+                                        f"any other would move it")
+
+    support = np.unique(frame.restraint_joint)
+    R = np.full((q, len(support), d), np.nan)
+    use = np.flatnonzero(carried)
+    if use.size:
+        pulls = _member_pulls(frame, T[use])                     # (q', n, d)
+        R[use] = -(F[use] + pulls)[:, support]
+    k = got.mechanisms
+    if k and carried.any():
+        warnings.append(f"the frame is still a mechanism ({k} independent "
+                        f"mechanism{'s' if k > 1 else ''}): the loads carried here are "
+                        f"orthogonal to every one, but any other load would move it")
+    return ForcesResult(frame=frame, force_units=loads.force_units, names=applied.names,
+                        kinds=applied.kinds, loads=F, carried=carried, member_forces=T,
+                        reaction_joints=support, reactions=R,
+                        mechanism_fraction=got.fraction, excited=tuple(excited),
+                        methods=tuple(methods), residual=residual, slack=tuple(slack),
+                        mechanisms=k, self_stress_states=got.self_stress,
+                        ea_given=frame.member_properties.get("EA") is not None,
+                        warnings=tuple(warnings), tol=tol)
+
+
+@dataclass(frozen=True, eq=False)
+class _Solved:
+    """What one solve of ``q`` cases on one frame gives (arrays over the cases)."""
+
+    carried: np.ndarray
+    fraction: np.ndarray
+    excited: tuple
+    T: np.ndarray
+    residual: np.ndarray
+    how: str
+    mechanisms: int
+    self_stress: int
+    warnings: tuple
+
+
+def _solve(frame: Frame, F: np.ndarray, method: str, tol: Tolerances) -> _Solved:
+    """Audit ``frame``, then solve every case of ``F (q, n, d)`` that no mechanism takes."""
+    from .audit import audit
+
+    n, d, m = frame.n_joints, frame.dimension, frame.n_members
+    q = len(F)
     dofs = free_dofs(frame)
     C = compatibility_matrix(frame, dofs)
     found = audit(frame, self_stress_cap=0, soft=False, redundancy=False, method=method, tol=tol)
@@ -135,22 +210,21 @@ def forces(frame: Frame, cases: Sequence[str] | None = None, *, loads: LoadSet |
     else:
         fraction, each = np.zeros(q), np.zeros((0, q))
     carried = fraction <= tol.mechanism_load
-    excited = tuple(_excited(found, each[:, i], fraction[i], tol) if not carried[i] else ()
+    excited = tuple(_excited(found, each[:, i], tol) if not carried[i] else ()
                     for i in range(q))
 
     f = _to_free(F, dofs)                                        # (N, q)
     use = np.flatnonzero(carried)
     T = np.full((q, m), np.nan)
     residual = np.full(q, np.nan)
-    ea = frame.member_properties.get("EA")
-    how = "equilibrium" if s == 0 else "stiffness"
     if use.size and m:
         rhs = f[:, use]
         if s == 0:
             t = _equilibrium_solve(C, rhs)
         else:
             mech = _to_free(found.mode_displacements, dofs) if k else np.zeros((C.shape[1], 0))
-            t = _stiffness_solve(C, rhs, frame.lengths(), ea, mech, dofs)
+            t = _stiffness_solve(C, rhs, frame.lengths(), frame.member_properties.get("EA"),
+                                 mech, dofs)
         T[use] = t.T
         residual[use] = np.linalg.norm(C.T @ t - rhs, axis=0) / safe[use]
     elif use.size:
@@ -158,32 +232,70 @@ def forces(frame: Frame, cases: Sequence[str] | None = None, *, loads: LoadSet |
         residual[use] = np.linalg.norm(f[:, use], axis=0) / safe[use]
     bad = use[residual[use] > max(10 * tol.mechanism_load, 1e-9)] if use.size else use
     if bad.size:
-        raise InternalError(f"the forces of case {applied.names[bad[0]]!r} do not satisfy "
-                            f"equilibrium (relative residual {residual[bad[0]]:.2g}); report the "
-                            f"model", stage="forces",
-                            partial={"cases": applied.names, "residual": residual})
-
-    support = np.unique(frame.restraint_joint)
-    R = np.full((q, len(support), d), np.nan)
-    if use.size:
-        pulls = _member_pulls(frame, np.nan_to_num(T[use]))      # (q', n, d)
-        R[use] = -(F[use] + pulls)[:, support]
-    warnings = list(found.warnings)
-    if k and carried.any():
-        warnings.append(f"the frame is still a mechanism ({k} independent "
-                        f"mechanism{'s' if k > 1 else ''}): the loads carried here are "
-                        f"orthogonal to every one, but any other load would move it")
-    return ForcesResult(frame=frame, force_units=loads.force_units, names=applied.names,
-                        kinds=applied.kinds, loads=F, carried=carried, member_forces=T,
-                        reaction_joints=support, reactions=R, mechanism_fraction=fraction,
-                        excited=excited,
-                        methods=tuple(how if c else "none" for c in carried),
-                        residual=residual, slack=((),) * q, mechanisms=k,
-                        self_stress_states=s, ea_given=ea is not None,
-                        warnings=tuple(warnings), tol=tol)
+        raise InternalError(f"the member forces of a load case do not satisfy equilibrium "
+                            f"(relative residual {residual[bad[0]]:.2g}); report the model",
+                            stage="forces", partial={"residual": residual})
+    return _Solved(carried=carried, fraction=fraction, excited=excited, T=T, residual=residual,
+                   how="equilibrium" if s == 0 else "stiffness", mechanisms=k, self_stress=s,
+                   warnings=found.warnings)
 
 
-def _excited(found, each: np.ndarray, total: float, tol: Tolerances) -> tuple:
+def _one_way(frame: Frame) -> tuple[np.ndarray, np.ndarray]:
+    """Masks ``(m,) bool`` of tension-only and compression-only members (tag ``carries``)."""
+    labels = frame.member_tags.get("carries")
+    if labels is None:
+        none = np.zeros(frame.n_members, dtype=bool)
+        return none, none.copy()
+    labels = np.array(labels, dtype=object)
+    return labels == "tension", labels == "compression"
+
+
+def _settle(frame: Frame, F: np.ndarray, t: np.ndarray, tension_only: np.ndarray,
+            compression_only: np.ndarray, method: str, tol: Tolerances):
+    """Leave out one-way members loaded the wrong way, one at a time, until none is.
+
+    The member loaded most the wrong way (a tension-only member in the
+    largest compression, or a compression-only member in the largest
+    tension) goes slack and the case is solved again without it; a member
+    left out is not brought back.  Returns ``(forces (m,), slack indices,
+    last solve or None)``; the forces are None when the frame without its
+    slack members cannot carry the load.
+
+    Notes
+    -----
+    Each step is one audit and one solve of the reduced frame; at most ``m``
+    steps.
+    """
+    active = np.ones(frame.n_members, dtype=bool)
+    gone: list[int] = []
+    sub = None
+    for _ in range(frame.n_members):
+        scale = float(np.max(np.abs(t))) if t.size else 0.0
+        wrong = np.where(active & tension_only, -t, 0.0)
+        wrong = np.maximum(wrong, np.where(active & compression_only, t, 0.0))
+        j = int(np.argmax(wrong)) if wrong.size else 0
+        if not wrong.size or wrong[j] <= tol.zero_force * scale:
+            break
+        active[j] = False
+        gone.append(j)
+        sub = _solve(_members_only(frame, active), F[None], method, tol)
+        if not sub.carried[0]:
+            return None, gone, sub
+        t = np.zeros(frame.n_members)
+        t[active] = sub.T[0]
+    return t, gone, sub
+
+
+def _members_only(frame: Frame, keep: np.ndarray) -> Frame:
+    """The frame with only the members where ``keep`` is True (tags and properties kept)."""
+    idx = np.flatnonzero(keep)
+    return dataclasses.replace(
+        frame, member_ids=tuple(frame.member_ids[i] for i in idx), ends=frame.ends[idx],
+        member_tags={k: tuple(v[i] for i in idx) for k, v in frame.member_tags.items()},
+        member_properties={k: v[idx] for k, v in frame.member_properties.items()}, loads=None)
+
+
+def _excited(found, each: np.ndarray, tol: Tolerances) -> tuple:
     """The mechanisms a load acts on, largest share first (at least the largest one)."""
     order = np.argsort(-each, kind="stable")
     keep = [i for i in order if each[i] > tol.mechanism_load] or [int(order[0])]
@@ -264,10 +376,12 @@ def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs) -> np.ndarray:
     target = project(f)
     scale = np.maximum(np.linalg.norm(target, axis=0), np.finfo(float).tiny)
     u = np.zeros_like(target)
-    r = target
+    r, last = target, np.inf
     for _ in range(_STEPS):
         u += project(lu.solve(np.asfortranarray(r[perm]))[inv])
         r = target - K @ u
-        if np.all(np.linalg.norm(r, axis=0) <= _REFINED * scale):
-            break
+        worst = float(np.max(np.linalg.norm(r, axis=0) / scale))
+        if worst <= _REFINED or worst > _STALLED * last:
+            break                       # refined, or round-off reached: no step gains
+        last = worst
     return w[:, None] * (C @ u)

@@ -294,3 +294,27 @@ def test_tripod_in_space_and_against_lstsq():
     assert r.member_forces[1] == pytest.approx(sol[:3], rel=1e-10)
     for i in range(2):
         check_equilibrium(r, i)
+
+
+def test_tension_only_diagonals_go_slack():
+    """An X-braced portal with rod diagonals (tag carries = tension), w = 4, h = 3: under a
+    horizontal H = 6 at B the diagonal BD shortens and goes slack; the rest is then
+    determinate (method of joints, derived): joint B gives N_BC = -H and N_AB = 0;
+    joint C gives N_AC = H L / w = 7.5 (L = 5) and N_CD = -H h / w = -4.5.  Under gravity
+    P = 5 at B and C both rods shorten equally with the columns; once one is slack the
+    frame is determinate and the other carries nothing (joint C: BC = 0, so at B the
+    rod's is 0 too); the columns carry -P each."""
+    f = Frame.from_arrays([[0, 0], [0, 3], [4, 3], [4, 0]],
+                          [[0, 1], [1, 2], [2, 3], [0, 2], [1, 3]],
+                          joint_ids=list("ABCD"), member_ids=["AB", "BC", "CD", "AC", "BD"],
+                          supports={0: "pin", 3: "pin"},
+                          member_tags={"carries": ("", "", "", "tension", "tension")})
+    r = spaceframe.forces(f, loads=cases(("wind", {"B": [6.0, 0.0]}),
+                                         ("gravity", {"B": [0.0, -5.0], "C": [0.0, -5.0]})))
+    assert r.all_carried and r.slack[0] == ("BD",) and len(r.slack[1]) == 1
+    assert r.shown_forces(0) == pytest.approx([0.0, -6.0, -4.5, 7.5, 0.0], abs=1e-9)
+    assert r.methods[0] == "equilibrium"
+    assert r.shown_forces(1) == pytest.approx([-5.0, 0.0, -5.0, 0.0, 0.0], abs=1e-9)
+    assert r.to_dict()["cases"][0]["slack_members"] == ["BD"]
+    for i in range(2):
+        check_equilibrium(r, i)
