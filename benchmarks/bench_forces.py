@@ -97,7 +97,8 @@ def main(argv=None) -> int:
                                  / np.abs(r.loads[i]).sum()))
     print(f"audit: {a.mechanisms} mechanisms, {a.self_stress_states:,} states of self-stress; "
           f"forces: {int(r.carried.sum())} of {len(r.names)} cases carried, method "
-          f"{sorted(set(r.methods))}, largest equilibrium residual {np.nanmax(r.residual):.2g}, "
+          f"{sorted(set(r.methods))}, largest equilibrium residual "
+          f"{np.nanmax(r.residual) if r.carried.any() else float('nan'):.2g}, "
           f"reactions + loads {worst:.2g} of the load")
     print()
     print("| measurement | seconds | ratio to audit(frame) | target |")

@@ -15,6 +15,10 @@ __all__ = ["render_forces", "forces_csv", "bracing_members"]
 _BRACING = {"brace", "tie", "purlin", "ridge", "bracing"}
 
 
+def _count(n: int, word: str) -> str:
+    return f"{n} {word}{'' if n == 1 else 's'}"
+
+
 def _state(value: float) -> str:
     return "T" if value > 0 else "C" if value < 0 else "-"
 
@@ -52,9 +56,8 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
     else:
         ea = ("from the model's [properties.members.EA]" if r.ea_given
               else "taken as uniform because the model gives no [properties.members.EA]")
-        out.append(STIFFNESS_NOTE.format(ea=ea) +
-                   f" ({r.self_stress_states} redundant member{'s' if r.self_stress_states != 1 else ''}"
-                   f" or restraint{'s' if r.self_stress_states != 1 else ''}.)")
+        out.append(STIFFNESS_NOTE.format(ea=ea)
+                   + f" ({_count(r.self_stress_states, 'state')} of self-stress.)")
     width = max([len(m) for m in f.member_ids] + [6])
     for i, name in enumerate(r.names):
         total = ", ".join(f"{v:.4g}" for v in r.loads[i].sum(axis=0))
@@ -71,8 +74,8 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         t = r.shown_forces(i)
         order = np.argsort(-np.abs(t), kind="stable")
         nt, nc = int(np.sum(t > 0)), int(np.sum(t < 0))
-        out.append(f"  carried ({r.methods[i]}): {nt} members in tension, {nc} in compression, "
-                   f"{f.n_members - nt - nc} carry nothing")
+        out.append(f"  carried ({r.methods[i]}): {_count(nt, 'member')} in tension, {nc} in "
+                   f"compression, {f.n_members - nt - nc} carrying nothing")
         if r.slack[i]:
             out.append(f"  slack (tension-only, left out): {', '.join(r.slack[i])}")
         out.append(f"  {'member':<{width}}  {'force ' + u:>12}  T/C" + ("  role" if role else ""))
@@ -109,15 +112,17 @@ def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
     peak = np.maximum(env.tension, -env.compression)
     order = np.argsort(-peak, kind="stable")
     ever_t, ever_c = int(np.sum(env.tension > 0)), int(np.sum(env.compression < 0))
-    out = ["", f"Envelope over the {int(r.carried.sum())} carried cases: {ever_t} members are in "
-               f"tension and {ever_c} in compression in some case (compression members need "
-               f"restraint against buckling)",
-           f"  {'member':<{width}}  {'tension ' + u:>12}  {'case':<16}  {'compression ' + u:>14}  case"]
+    cw = max(len(n) for n in r.names)
+    out = ["", f"Envelope over the {_count(int(r.carried.sum()), 'carried case')}: "
+               f"{_count(ever_t, 'member')} in tension and {ever_c} in compression in some case "
+               f"(members in compression need restraint against buckling)",
+           f"  {'member':<{width}}  {'tension ' + u:>12}  {'case':<{cw}}  "
+           f"{'compression ' + u:>14}  case"]
 
     def row(k):
         tc = r.names[env.tension_case[k]] if env.tension_case[k] >= 0 else "-"
         cc = r.names[env.compression_case[k]] if env.compression_case[k] >= 0 else "-"
-        return (f"  {f.member_ids[k]:<{width}}  {env.tension[k]:>12.4g}  {tc:<16}  "
+        return (f"  {f.member_ids[k]:<{width}}  {env.tension[k]:>12.4g}  {tc:<{cw}}  "
                 f"{env.compression[k]:>14.4g}  {cc}")
 
     out += [row(k) for k in order[:max_rows]]
