@@ -38,6 +38,8 @@ PALETTE = {
     "tension": ("#c25a12", "orange"),
     "zero": ("#e3e3e3", "light grey"),
     "compression": ("#1d5fa6", "blue"),
+    "load": ("#cc79a7", "pink"),          # load arrows of a forces picture
+    "reaction": ("#009e73", "green"),      # reaction arrows (the supports' colour)
     "text": ("#202020", "black"),
     "background": ("#ffffff", "white"),
 }
@@ -260,8 +262,6 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         raise SpaceframeError(
             f"state of self-stress {state + 1} does not exist: {q} computed"
             + (f" of {result.self_stress_states}" if q < result.self_stress_states else ""))
-    from matplotlib.colors import LinearSegmentedColormap
-
     scene = scene_of(result)
     t = np.asarray(result.self_stress_forces[state], float)
     carrying = np.abs(t) > 1e-6
@@ -269,9 +269,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
             f"{result.frame.name or 'frame'}"
     caption = (f"{int(carrying.sum())} members carry forces with no load applied; colour says "
                f"how much and which way (largest force = 1).")
-    cmap = LinearSegmentedColormap.from_list(
-        "spaceframe_force", [PALETTE["compression"][0], PALETTE["zero"][0],
-                             PALETTE["tension"][0]])
+    cmap = force_colours()
     legend = [_entry("tension", "tension: the member pulls on its joints"),
               _entry("compression", "compression: the member pushes"),
               _entry("ghost", "thin: carries nothing here"),
@@ -293,6 +291,16 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         return stage.shot()
     finally:
         stage.close()
+
+
+def force_colours():
+    """The one diverging force scale on [-1, 1]: compression blue, zero light grey,
+    tension orange (a matplotlib colour map)."""
+    from matplotlib.colors import LinearSegmentedColormap
+
+    return LinearSegmentedColormap.from_list(
+        "spaceframe_force", [PALETTE["compression"][0], PALETTE["zero"][0],
+                             PALETTE["tension"][0]])
 
 
 def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float = 12.0):
