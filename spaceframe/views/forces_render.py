@@ -17,7 +17,7 @@ import numpy as np
 
 from ..errors import SpaceframeError
 from ..force_results import ForcesResult
-from .render import PALETTE, SIZE, _entry, _lines, _Stage, _tubes, force_colours
+from .render import PALETTE, SIZE, _entry, _Stage, force_colours
 from .scene import _embed, scene_of, view_direction
 
 __all__ = ["forces_picture"]
@@ -66,14 +66,7 @@ def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
     stage = _Stage(scene, size, title, caption, legend, cmap)
     try:
         pv, p, e = stage.pv, stage.plotter, stage.e
-        idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
-        if idle.n_points:
-            p.add_mesh(idle, color=PALETTE["ghost"][0])
-        if carrying.any():
-            lines = _lines(pv, scene.coords, scene.ends[carrying])
-            lines.point_data["force"] = np.repeat(t[carrying] / top, 2)
-            p.add_mesh(lines.tube(radius=0.011 * e, n_sides=12), scalars="force", cmap=cmap,
-                       clim=[-1.0, 1.0], smooth_shading=True, show_scalar_bar=False)
+        stage.forces(t / (top or 1.0), carrying, cmap)
         loads = _embed(np.asarray(result.loads[case], float), f.dimension)
         reactions = np.zeros_like(loads)
         reactions[result.reaction_joints] = _embed(result.shown_reactions(case), f.dimension)

@@ -136,6 +136,18 @@ class _Stage:
         if mesh.n_points:
             self.plotter.add_mesh(mesh, color=PALETTE["ghost"][0], line_width=3)
 
+    def forces(self, t, carrying, cmap):
+        """Members coloured by ``t`` (on [-1, 1]) where ``carrying``, the rest thin and grey."""
+        pv, p, e, scene = self.pv, self.plotter, self.e, self.scene
+        idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
+        if idle.n_points:
+            p.add_mesh(idle, color=PALETTE["ghost"][0])
+        if carrying.any():
+            lines = _lines(pv, scene.coords, scene.ends[carrying])
+            lines.point_data["force"] = np.repeat(t[carrying], 2)
+            p.add_mesh(lines.tube(radius=0.011 * e, n_sides=12), scalars="force", cmap=cmap,
+                       clim=[-1.0, 1.0], smooth_shading=True, show_scalar_bar=False)
+
     def supports(self, points):
         """Green stalks with end plates, one per held direction, following their joints."""
         return support_glyphs(self.pv, self.scene, points)
@@ -276,14 +288,8 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
               _entry("support", "stalk and plate: a direction held")]
     stage = _Stage(scene, size, title, caption, legend, cmap)
     try:
-        pv, p, e = stage.pv, stage.plotter, stage.e
-        idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
-        if idle.n_points:
-            p.add_mesh(idle, color=PALETTE["ghost"][0])
-        lines = _lines(pv, scene.coords, scene.ends[carrying])
-        lines.point_data["force"] = np.repeat(t[carrying], 2)
-        p.add_mesh(lines.tube(radius=0.011 * e, n_sides=12), scalars="force", cmap=cmap,
-                   clim=[-1.0, 1.0], smooth_shading=True, show_scalar_bar=False)
+        p = stage.plotter
+        stage.forces(t, carrying, cmap)
         sup = stage.supports(scene.coords)
         if sup is not None:
             p.add_mesh(sup, color=PALETTE["support"][0])
