@@ -297,8 +297,7 @@ def _units(doc: dict, at: _Where) -> str:
     hint = ""
     if isinstance(units, str):
         lower = {u.lower(): u for u in UNITS}
-        hint = (f" (did you mean {lower[units.lower()]!r}?)" if units.lower() in lower
-                else did_you_mean(units, UNITS))
+        hint = did_you_mean(lower.get(units.lower(), units), UNITS)
     raise at.error(f"unknown unit {units!r}{hint}; write units as one of "
                    f"{', '.join(UNITS)} (results do not depend on it), e.g. "
                    f"{at.setting('units', 'm')}", "key", "units")
