@@ -55,6 +55,8 @@ def read_toml(path, *, tol: Tolerances = DEFAULT) -> Frame:
     Returns
     -------
     frame : Frame
+        Checked by :func:`~spaceframe.validation.check_frame`, its messages
+        given the file and line (:func:`~spaceframe.io.sourcelines.checked`).
 
     Raises
     ------
@@ -93,16 +95,7 @@ def _parse_toml(text: str) -> dict:
 def read_json(path, *, tol: Tolerances = DEFAULT) -> Frame:
     """Read a JSON model file (the structure of the TOML format) into a :class:`Frame`.
 
-    Parameters
-    ----------
-    path : str or os.PathLike
-        The model file.
-    tol : Tolerances, optional
-        Passed to the support and geometry checks.
-
-    Returns
-    -------
-    frame : Frame
+    Parameters and result as for :func:`read_toml`.
 
     Raises
     ------

@@ -91,8 +91,10 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
     Raises
     ------
     ModelError
-        If ``path`` is the frame's source, exists and ``overwrite`` is False,
-        is a directory, or a coordinate is not finite.
+        If ``path`` is the frame's source, is a folder, or a coordinate is
+        not finite (:func:`check_model_output`).
+    OutputExistsError
+        If ``path`` exists and ``overwrite`` is False.
     """
     target = check_model_output(frame, path, overwrite)
     out = [f"name = {_quote(frame.name)}", f"units = {_quote(frame.units)}",
@@ -136,21 +138,7 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
 
     The output is deterministic: one item per line, in the frame's order,
     coordinates as the shortest decimal that reads back to the same double.
-
-    Parameters
-    ----------
-    frame : Frame
-    path : str or os.PathLike
-        The file to write.
-    overwrite : bool, optional
-        Replace an existing file.  Default False.  The file the frame was
-        read from is never replaced.
-
-    Raises
-    ------
-    ModelError
-        If ``path`` is the frame's source, exists and ``overwrite`` is False,
-        is a directory, or a coordinate is not finite.
+    Parameters and errors as for :func:`dump_toml`.
     """
     target = check_model_output(frame, path, overwrite)
     ids = frame.joint_ids
