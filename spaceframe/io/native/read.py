@@ -252,7 +252,8 @@ class _Where:
         if line is None and kind is not None:
             line = self.line(kind, item)
         return ModelError(message, path=self.source, line=line,
-                          item=None if kind == "key" else item)
+                          item=None if kind == "key" else item,
+                          kind=None if kind == "key" else kind)
 
     def warn(self, message: str, kind: str | None = None, item: str | None = None) -> None:
         line = self.line(kind, item) if kind is not None else None
