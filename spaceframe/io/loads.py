@@ -29,8 +29,6 @@ has no loads); :func:`toml_lines` and :func:`json_entries` write one back.
 
 from __future__ import annotations
 
-import json
-import re
 from typing import Callable
 
 import numpy as np
@@ -39,7 +37,7 @@ from ..errors import ModelError
 from ..loads import FORCE_UNITS, SELF_WEIGHT, Combination, LoadCase, LoadSet
 from ..suggest import did_you_mean
 
-__all__ = ["KEYS", "read_loads", "toml_lines", "json_entries", "path_line"]
+__all__ = ["KEYS", "read_loads", "toml_lines", "json_entries"]
 
 #: The top-level keys this module reads.
 KEYS = ("force_units", "loads", "combinations", "self_weight", "notional")
@@ -207,24 +205,14 @@ def _settings(doc: dict, key: str, allowed: dict, error) -> dict:
 
 # --------------------------------------------------------------------- writing
 
-def _quote(text: str) -> str:
-    return json.dumps(text, ensure_ascii=False).replace("\x7f", "\\u007f")
-
-
-def _key(text: str) -> str:
-    return text if re.fullmatch(r"[A-Za-z0-9_-]+", text) else _quote(text)
-
-
-def _row(values) -> str:
-    return "[" + ", ".join(repr(float(v)) for v in values) + "]"
-
-
 def toml_lines(loads: LoadSet | None) -> tuple[list[str], list[str]]:
     """``(top-level lines, section lines)`` writing ``loads`` in TOML (empty for None).
 
     The top-level lines (``force_units``) belong above the first section
     header; the section lines go at the end of the file.
     """
+    from .native.write import _numbers as _row, _quote, toml_id as _key
+
     if loads is None:
         return [], []
     out: list[str] = []
@@ -245,6 +233,8 @@ def toml_lines(loads: LoadSet | None) -> tuple[list[str], list[str]]:
 
 def json_entries(loads: LoadSet | None) -> list[str]:
     """Top-level JSON members (``'  "key": value'``) writing ``loads`` (empty for None)."""
+    from .native.write import _numbers as _row, _quote
+
     if loads is None:
         return []
 
@@ -269,55 +259,3 @@ def json_entries(loads: LoadSet | None) -> list[str]:
                  f', "cases": [{", ".join(map(_quote, loads.notional_cases))}]')
         out.append(f'  "notional": {{"fraction": {loads.notional!r}{cases}}}')
     return out
-
-
-# -------------------------------------------------------------------- locating
-
-_HEADER = re.compile(r"^\s*\[([^\[\]]+)\]\s*(?:#.*)?$")
-_PART = re.compile(r'"(?:[^"\\]|\\.)*"|\'[^\']*\'|[^.\s]+')
-_KEY = re.compile(r"""^\s*("(?:[^"\\]|\\.)*"|'[^']*'|[A-Za-z0-9_-]+)\s*=""")
-
-
-def _unquote(token: str) -> str:
-    if token.startswith('"'):
-        try:
-            return json.loads(token)
-        except ValueError:
-            return token[1:-1]
-    return token[1:-1] if token.startswith("'") else token
-
-
-def path_line(text: str | None, syntax: str, keys: tuple[str, ...]) -> int | None:
-    """The 1-based line of the key path ``keys`` in model text, or the nearest enclosing one.
-
-    In TOML, ``("loads", "snow", "U1")`` is the line ``U1 = ...`` under the
-    header ``[loads.snow]``; ``("force_units",)`` a top-level key.  In JSON
-    the keys are searched for in turn, each after the one before.  Used only
-    when a message is raised: a line scan, O(length of text).
-    """
-    if text is None or not keys:
-        return None
-    if syntax == "json":
-        start, found = 0, None
-        for key in keys:
-            m = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:").search(
-                text, start)
-            if m is None:
-                break
-            start, found = m.end(), text.count("\n", 0, m.start()) + 1
-        return found
-    keys = list(keys)
-    best, best_depth, header = None, 0, []
-    for number, line in enumerate(text.splitlines(), 1):
-        m = _HEADER.match(line)
-        if m:
-            header = [_unquote(p) for p in _PART.findall(m.group(1))]
-            depth = len(header) if header == keys[:len(header)] else 0
-            if depth > best_depth:
-                best, best_depth = number, depth
-            continue
-        k = _KEY.match(line)
-        if k and header == keys[:len(header)] and len(header) < len(keys) \
-                and _unquote(k.group(1)) == keys[len(header)] and len(header) + 1 > best_depth:
-            best, best_depth = number, len(header) + 1
-    return best
