@@ -113,7 +113,9 @@ def forces(frame: Frame, cases: Sequence[str] | None = None, *, loads: LoadSet |
     -----
     Cost: one audit (:func:`spaceframe.analysis.audit.audit` without the
     soft-mode search), one sparse factorisation (of ``C.T``, ``C C.T`` or
-    ``K``) and one block solve of all ``q`` cases, plus O(q (n + m)).
+    ``K``) and one block solve of all ``q`` cases, plus O(q (n + m)).  With
+    one-way members, each member that goes slack costs one more audit and
+    solve of the reduced frame, per case.
 
     References
     ----------
