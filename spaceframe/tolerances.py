@@ -1,14 +1,103 @@
 """Every tolerance spaceframe uses, in one place, with the inequality it tests.
 
 All tests are relative, so an audit gives the same answer whatever the unit
-of length (mm or m) and whatever the size of the frame.
+of length (mm or m) and whatever the size of the frame (the one exception,
+``parallel_lines``, says so).  ``size`` is always :meth:`spaceframe.model.Frame.size`,
+the diagonal of the joints' bounding box.
+
+Three small frozen dataclasses:
+
+- :class:`Tolerances`: the numerical decisions (rank, model checks, the
+  tests inside the analysis).  ``DEFAULT`` is the instance every function
+  takes unless given another (``tol=``).
+- :class:`Limits`: sizes that choose a method (dense or sparse engine, whether
+  redundancy shares are computed); ``Tolerances.limits``.
+- :class:`Display`: what the views and the readable accounts show (which
+  joints count as moving, what is left out as zero, rounding); ``DISPLAY``.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Tolerances", "DEFAULT"]
+__all__ = ["Tolerances", "Limits", "Display", "DEFAULT", "DISPLAY"]
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Sizes at which the analysis changes method.
+
+    None of them changes a count: each chooses how a result is computed, or
+    whether an optional one (redundancy shares) is.
+
+    Attributes
+    ----------
+    dense_engine : int
+        The rank engine is the dense SVD when ``members * free_coordinates
+        <= dense_engine``, the sparse one otherwise (``method="auto"``).
+        Default ``100_000``: up to there the SVD takes well under a second.
+    redundancy_auto : int
+        With ``redundancy=None`` the sparse engine computes every member's
+        redundancy share when ``free_coordinates <= redundancy_auto`` (one
+        solve per free coordinate).  Default ``3_000``.
+    redundancy_max : int
+        Redundancy shares asked for are computed when ``free_coordinates <=
+        redundancy_max`` and left out (None) above.  Default ``20_000``.
+    dense_soft : int
+        Soft modes come from a dense symmetric eigensolver when
+        ``free_coordinates <= dense_soft``, from block inverse iteration
+        above.  Default ``1_500``.
+    common_prestress : int
+        The search for one state of self-stress that stiffens every internal
+        mechanism at once runs when ``internal_mechanisms <= common_prestress``
+        (otherwise ``prestress_stable`` stays undetermined).  Default ``12``.
+    """
+
+    dense_engine: int = 100_000
+    redundancy_auto: int = 3_000
+    redundancy_max: int = 20_000
+    dense_soft: int = 1_500
+    common_prestress: int = 12
+
+
+@dataclass(frozen=True)
+class Display:
+    """Thresholds of what the readable accounts, the JSON and the pictures show.
+
+    Modes are scaled so that their largest joint movement is 1 and states of
+    self-stress so that their largest force is 1: these fractions are of that.
+
+    Attributes
+    ----------
+    moving : float
+        A joint moves in a mode when its movement exceeds ``moving`` times the
+        largest: ``|u_j| > moving * max_i |u_i|`` (the mode's joint list and
+        description, highlighted joints and members in pictures, the report
+        and the interactive view).  Default ``0.05``.
+    floor : float
+        An entry is left out as zero when ``|x| <= floor`` (of the largest, 1):
+        the joints of a mode's displacements and the members of a state's
+        forces in the JSON and text, the members drawn as carrying a state in
+        pictures and counted in the report.  Default ``1e-6``, the last digit
+        kept by ``decimals``.
+    decimals : int
+        Movements, forces, directions and redundancy shares in the JSON and
+        the report are rounded to this many decimals.  Default ``6``.
+    force_decimals : int
+        The report's per-member force colours are rounded to this many
+        decimals.  Default ``3``.
+    zero_coordinate : float
+        A point printed in a sentence (a rotation axis) shows a coordinate as
+        0 when ``|p| <= zero_coordinate * size``; a support glyph counts its
+        joint as level with the frame's centre along the held direction when
+        ``|side| < zero_coordinate * extent``.  Default ``1e-9``.
+    """
+
+    moving: float = 0.05
+    floor: float = 1e-6
+    decimals: int = 6
+    force_decimals: int = 3
+    zero_coordinate: float = 1e-9
 
 
 @dataclass(frozen=True)
@@ -70,6 +159,101 @@ class Tolerances:
         other, ``L`` the longer of the two diagonals, and cross inside both.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    s_max_estimate : float
+        Relative accuracy asked of the Lanczos estimate of the largest
+        eigenvalue ``lambda_max = s_max**2`` of ``K = C.T C`` in the sparse
+        engine (ARPACK stops when its Ritz value ``theta`` has
+        ``|lambda_max - theta| <= s_max_estimate * |theta|``).  Default
+        ``1e-2``: the threshold ``rank * s_max`` moves by half a percent at most.
+    refine : float
+        The sparse engine's projection onto the states of self-stress takes
+        one step of iterative refinement when the solve of ``K x = C.T y``
+        leaves ``||C.T y - K x|| > refine * ||C.T y||``.  Default ``1e-10``.
+    echelon_zero : float
+        In a canonical basis (each vector's largest entry 1), an entry with
+        ``|e| < echelon_zero`` is set to exactly 0, so that rounding noise
+        does not show as a tiny movement or force.  Default ``1e-12``.
+    independent : float
+        Choosing the internal mechanisms of the local basis, a candidate mode
+        ``v`` is taken when what is left of it after projection on the modes
+        already taken exceeds ``independent * ||v||``.  Default ``1e-8``.
+    translation_rank : float
+        The axis translations expressed in free coordinates span the
+        directions whose singular values exceed ``translation_rank * s_1``.
+        Default ``1e-12``.
+    principal_cosine : float
+        A permitted rigid-body motion is a pure translation when its principal
+        angle to the span of translations has ``cos >= 1 - principal_cosine``.
+        Default ``1e-9``.
+    in_span : float
+        A rotation ``v`` about an axis through the centroid is among the
+        permitted rigid-body motions ``R`` when ``||v - R R.T v|| <= in_span *
+        ||v||``, and is kept as a new one when what is left of it after the
+        rotations already kept exceeds ``in_span * ||v||``.  Default ``1e-9``.
+    direction_rank : float
+        The unit direction vectors of the members at a joint (singular values
+        ``s_1 >= s_2 >= s_3``) span exactly a plane when ``s_2 > direction_rank``
+        and ``s_3 < direction_rank * s_1``, and a line when ``s_2 <=
+        direction_rank``.  Default ``1e-6``.
+    pure_translation : float
+        A rigid-body mode fitted as ``u = t + omega x (x - c)`` is a slide
+        when ``|omega| * size < pure_translation * |t|``, a rotation
+        otherwise.  Default ``1e-6``.
+    on_axis : float
+        A joint lies on a rotation axis (or at the point a plane frame turns
+        about) when its distance from it is ``<= on_axis * size``.  Default
+        ``1e-6``.
+    rigid_inside : float
+        The permitted rigid-body motions ``G`` (``r`` orthonormal columns) lie
+        in the mechanism space ``M`` found when ``||G - M M.T G||_F <=
+        rigid_inside * sqrt(r)``; otherwise the engine has failed.  Default
+        ``1e-6``.
+    axis_restraint : float
+        A restraint direction ``h`` is an axis when it has one non-zero
+        component with ``abs(|h_a| - 1) <= axis_restraint``; a joint held only
+        along axes keeps the other axes as its free coordinates.  Default
+        ``1e-15``.
+    key : float
+        A member is key (carries no force in any state of self-stress) when
+        both seeded probes projected onto the self-stress space have
+        ``|t_e| <= key * max |t|`` on it.  Default ``1e-8``.
+    stiffening : float
+        The product-force test: a mode's product forces ``p`` have a
+        stiffening component when ``||P p|| > stiffening * ||p||`` (``P`` the
+        projection onto the states of self-stress); one state ``t`` stiffens
+        all modes when the smallest eigenvalue of their geometric stiffness
+        matrix exceeds ``stiffening`` times its largest entry.  Default ``1e-8``.
+    soft : float
+        A held mode is reported as soft when its stiffness (eigenvalue of
+        ``C.T diag(EA / L) C``) is below ``soft`` times the frame's typical
+        joint stiffness (the median diagonal entry).  Default ``1e-3``
+        (0.1 %: the bending of a whole truss sits near 0.2 % and is not a
+        weakness).
+    soft_shift : float
+        The soft-mode iteration factorises ``K + soft_shift * typical * I``.
+        Default ``1e-10``.
+    in_plane_direction : float
+        An extrusion direction ``v`` (unit) lies in the plane frame's own plane
+        when ``|v . n| < in_plane_direction``, ``n`` the plane's normal; it is
+        rejected.  Default ``1e-3``.
+    crossing_margin : float
+        Two straight lines cross (a drawing's line work; a bracing panel's
+        diagonals) when the crossing point's parameter along each lies in
+        ``(crossing_margin, 1 - crossing_margin)``: not at an end.
+        Default ``1e-9``.
+    parallel_lines : float
+        Two lines of a drawing ``r`` and ``s`` (plane vectors) are tested for a
+        crossing only when ``|r x s| > parallel_lines``.  Absolute, in the
+        drawing's units squared.  Default ``1e-12``.
+    parallel_diagonals : float
+        Bracing panels: two diagonals ``d1``, ``d2`` are parallel (three
+        corners in a line, no panel) when ``|d1 x d2| <= parallel_diagonals *
+        |d1| |d2|``.  Default ``1e-6``.
+    acts : float
+        Bracing: a candidate acts on a mode when the mode stretches it by more
+        than ``acts`` times the mode's largest joint movement.  Default ``0.01``.
+    limits : Limits
+        The sizes that choose a method.
     """
 
     rank: float = 1e-6
@@ -82,6 +266,29 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    s_max_estimate: float = 1e-2
+    refine: float = 1e-10
+    echelon_zero: float = 1e-12
+    independent: float = 1e-8
+    translation_rank: float = 1e-12
+    principal_cosine: float = 1e-9
+    in_span: float = 1e-9
+    direction_rank: float = 1e-6
+    pure_translation: float = 1e-6
+    on_axis: float = 1e-6
+    rigid_inside: float = 1e-6
+    axis_restraint: float = 1e-15
+    key: float = 1e-8
+    stiffening: float = 1e-8
+    soft: float = 1e-3
+    soft_shift: float = 1e-10
+    in_plane_direction: float = 1e-3
+    crossing_margin: float = 1e-9
+    parallel_lines: float = 1e-12
+    parallel_diagonals: float = 1e-6
+    acts: float = 0.01
+    limits: Limits = Limits()
 
 
 DEFAULT = Tolerances()
+DISPLAY = Display()
