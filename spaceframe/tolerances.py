@@ -82,10 +82,12 @@ class Display:
         kept by ``decimals``.
     decimals : int
         Movements, forces, directions and redundancy shares in the JSON and
-        the report are rounded to this many decimals.  Default ``6``.
+        the report are rounded, ``round(x, decimals)``: a difference with
+        ``|x - y| < 0.5 * 10**-decimals`` may not show.  Default ``6``.
     force_decimals : int
-        The report's per-member force colours are rounded to this many
-        decimals.  Default ``3``.
+        The report's per-member force colours are rounded,
+        ``round(t, force_decimals)``: a difference with ``|t - u| < 0.5 *
+        10**-force_decimals`` may not show.  Default ``3``.
     zero_coordinate : float
         A point printed in a sentence (a rotation axis) shows a coordinate as
         0 when ``|p| <= zero_coordinate * size``; a support glyph counts its
@@ -117,8 +119,9 @@ class Tolerances:
         extrapolated ``7e-6 * s_max`` at 1,000,000.  ``1e-6`` sits between.
     narrow_gap : float
         A warning is given when the smallest singular value judged non-zero
-        is less than ``narrow_gap`` times the largest judged zero (or, when
-        nothing is judged zero, than ``narrow_gap * rank * s_max``).
+        is less than ``narrow_gap`` times the largest judged zero,
+        ``s_nonzero < narrow_gap * s_zero`` (tested only when both exist:
+        with nothing judged zero, ``near_threshold`` alone applies).
         Default ``100``: the decision then rests on less than two decades.
     near_threshold : float
         A warning is also given when a singular value on either side of the
@@ -134,8 +137,9 @@ class Tolerances:
         ``<= short_member * size``.  Default ``1e-9``.
     restraint_dependence : float
         Restraint directions at one joint count as independent while the
-        smallest singular value of their unit vectors exceeds this.
-        Default ``1e-9``.
+        smallest singular value of their unit vectors exceeds this,
+        ``s_min > restraint_dependence``; a direction that would bring it
+        lower is dropped with a warning.  Default ``1e-9``.
     merge : float
         Imported geometry (meshes, line files, drawings) gives each vertex or
         line end on its own; two of them become one joint when their distance
@@ -146,9 +150,10 @@ class Tolerances:
         absolute distance instead.
     near_miss : float
         In a drawing, a line end that joins no other line but lies within
-        ``near_miss * size`` of another end or line (and farther than the merge
-        distance) is a gap the drafter most likely did not mean; it is
-        reported as an error.  Default ``0.01``.
+        ``near_miss * size`` of another line (``distance <= near_miss * size``;
+        farther than the merge distance, or it would have joined) is a gap the
+        drafter most likely did not mean; it is reported as an error.
+        Default ``0.01``.
     select : float
         A support selection rule ``z = min`` or ``x = 0`` picks the joints
         with ``|coordinate - value| <= select * size`` unless the rule gives
@@ -156,7 +161,10 @@ class Tolerances:
     panel_plane : float
         Four joints bound a planar panel (a bracing candidate) when the two
         lines through opposite corners pass within ``panel_plane * L`` of each
-        other, ``L`` the longer of the two diagonals, and cross inside both.
+        other (``gap <= panel_plane * L``), ``L`` the longer of the two
+        diagonals, and cross inside both.  A whole frame lies in one plane when
+        every joint has ``distance <= panel_plane * extent`` from its
+        least-squares plane.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
     s_max_estimate : float
@@ -176,10 +184,11 @@ class Tolerances:
     independent : float
         Choosing the internal mechanisms of the local basis, a candidate mode
         ``v`` is taken when what is left of it after projection on the modes
-        already taken exceeds ``independent * ||v||``.  Default ``1e-8``.
+        already taken, ``r``, has ``||r|| > independent * ||v||``.  Default
+        ``1e-8``.
     translation_rank : float
         The axis translations expressed in free coordinates span the
-        directions whose singular values exceed ``translation_rank * s_1``.
+        directions whose singular values have ``s > translation_rank * s_1``.
         Default ``1e-12``.
     principal_cosine : float
         A permitted rigid-body motion is a pure translation when its principal
@@ -224,22 +233,25 @@ class Tolerances:
         all modes when the smallest eigenvalue of their geometric stiffness
         matrix exceeds ``stiffening`` times its largest entry.  Default ``1e-8``.
     soft : float
-        A held mode is reported as soft when its stiffness (eigenvalue of
-        ``C.T diag(EA / L) C``) is below ``soft`` times the frame's typical
-        joint stiffness (the median diagonal entry).  Default ``1e-3``
+        A held mode is reported as soft when its stiffness ``lambda`` (an
+        eigenvalue of ``K = C.T diag(EA / L) C``) has ``lambda < soft * k``,
+        ``k`` the frame's typical joint stiffness (the median diagonal entry
+        of ``K``).  Default ``1e-3``
         (0.1 %: the bending of a whole truss sits near 0.2 % and is not a
         weakness).
     soft_shift : float
-        The soft-mode iteration factorises ``K + soft_shift * typical * I``.
-        Default ``1e-10``.
+        The soft-mode iteration factorises ``K + soft_shift * k * I`` (``k`` as
+        for ``soft``): positive definite although ``K`` is singular on the
+        mechanisms, and a shift ``soft_shift * k << soft * k``, far below the
+        stiffness of any mode worth reporting.  Default ``1e-10``.
     in_plane_direction : float
         An extrusion direction ``v`` (unit) lies in the plane frame's own plane
         when ``|v . n| < in_plane_direction``, ``n`` the plane's normal; it is
         rejected.  Default ``1e-3``.
     crossing_margin : float
         Two straight lines cross (a drawing's line work; a bracing panel's
-        diagonals) when the crossing point's parameter along each lies in
-        ``(crossing_margin, 1 - crossing_margin)``: not at an end.
+        diagonals) when the crossing point's parameter ``t`` along each has
+        ``crossing_margin < t < 1 - crossing_margin``: not at an end.
         Default ``1e-9``.
     parallel_lines : float
         Two lines of a drawing ``r`` and ``s`` (plane vectors) are tested for a
@@ -250,10 +262,11 @@ class Tolerances:
         corners in a line, no panel) when ``|d1 x d2| <= parallel_diagonals *
         |d1| |d2|``.  Default ``1e-6``.
     acts : float
-        Bracing: a candidate acts on a mode when the mode stretches it by more
-        than ``acts`` times the mode's largest joint movement.  Default ``0.01``.
+        Bracing: a candidate acts on a mode when the mode stretches it by
+        ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
+        (modes are scaled so that it is 1).  Default ``0.01``.
     limits : Limits
-        The sizes that choose a method.
+        The sizes that choose a method (each tested as ``size <= limit``).
     """
 
     rank: float = 1e-6
