@@ -93,6 +93,10 @@ class Display:
         0 when ``|p| <= zero_coordinate * size``; a support glyph counts its
         joint as level with the frame's centre along the held direction when
         ``|side| < zero_coordinate * extent``.  Default ``1e-9``.
+    axis_plane : float
+        A plane is named by an axis (``horizontal plane z = 2.4``, ``the
+        plane y = 0``) when its unit normal ``n`` has ``|n_a| > axis_plane``,
+        and called vertical when ``|n_z| < 1 - axis_plane``.  Default ``0.999``.
     """
 
     moving: float = 0.05
@@ -100,6 +104,7 @@ class Display:
     decimals: int = 6
     force_decimals: int = 3
     zero_coordinate: float = 1e-9
+    axis_plane: float = 0.999
 
 
 @dataclass(frozen=True)
@@ -265,6 +270,11 @@ class Tolerances:
         Bracing: a candidate acts on a mode when the mode stretches it by
         ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
         (modes are scaled so that it is 1).  Default ``0.01``.
+    hint_stretch : float
+        Bracing, for a mode no candidate acts on: a member from its most
+        moving joint ``j`` to a nearby joint ``q`` would act on it when
+        ``|w . (u_q - u_j)| > hint_stretch``, ``w`` the unit vector from ``j``
+        to ``q`` (the mode's largest movement 1).  Default ``0.1``.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -300,6 +310,7 @@ class Tolerances:
     parallel_lines: float = 1e-12
     parallel_diagonals: float = 1e-6
     acts: float = 0.01
+    hint_stretch: float = 0.1
     limits: Limits = Limits()
 
 
