@@ -15,7 +15,7 @@ are named in the audit's words.
   ``K = C.T diag(EA/L) C`` and ``t = diag(EA/L) C u`` (EA from
   ``[properties.members.EA]``, uniform when absent), so the forces depend on
   the members' relative stiffness.  Where mechanisms remain, the solve is on
-  their orthogonal complement: ``K + delta I`` is factorised, the mechanisms
+  their orthogonal complement: ``K + delta I`` (``tol.forces_shift``) is factorised, the mechanisms
   are projected out, and iterative refinement removes the shift's effect.
 
 One-way members (the member tag ``carries``: ``tension`` for rods, cables
@@ -56,13 +56,7 @@ from .equilibrium import FreeDofs, compatibility_matrix, free_dofs
 
 __all__ = ["forces"]
 
-#: Relative shift ``delta / typical stiffness`` of ``K + delta I`` when mechanisms remain.
-#: Not a tolerance: it decides nothing, and iterative refinement removes its effect.
-_SHIFT = 1e-8
-#: Iterative refinement stops once ``||f - K u|| <= _REFINED * ||f||``, once a step reduces
-#: the residual by less than a factor ``1 / _STALLED`` (round-off reached), or after _STEPS.
-_REFINED = 1e-13
-_STALLED = 0.25
+#: At most this many steps of iterative refinement (``tol.forces_refined`` stops them sooner).
 _STEPS = 12
 
 
@@ -226,13 +220,13 @@ def _solve(frame: Frame, F: np.ndarray, method: str, tol: Tolerances) -> _Solved
         else:
             mech = _to_free(found.mode_displacements, dofs) if k else np.zeros((C.shape[1], 0))
             t = _stiffness_solve(C, rhs, frame.lengths(), frame.member_properties.get("EA"),
-                                 mech, dofs)
+                                 mech, dofs, tol)
         T[use] = t.T
         residual[use] = np.linalg.norm(C.T @ t - rhs, axis=0) / safe[use]
     elif use.size:
         T[use] = np.zeros((use.size, m))
         residual[use] = np.linalg.norm(f[:, use], axis=0) / safe[use]
-    bad = use[residual[use] > max(10 * tol.mechanism_load, 1e-9)] if use.size else use
+    bad = use[residual[use] > tol.forces_fault] if use.size else use
     if bad.size:
         raise InternalError(f"the member forces of a load case do not satisfy equilibrium "
                             f"(relative residual {residual[bad[0]]:.2g}); report the model",
@@ -353,7 +347,7 @@ def _equilibrium_solve(C: sp.csr_matrix, f: np.ndarray) -> np.ndarray:
     return t
 
 
-def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs) -> np.ndarray:
+def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs, tol: Tolerances) -> np.ndarray:
     """Tensions by the stiffness method, on the complement of the mechanisms ``mech``."""
     from .nullspace import _ordering
 
@@ -372,7 +366,7 @@ def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs) -> np.ndarray:
     inv[perm] = np.arange(N)
     Kp = K[perm][:, perm].tocsc()
     if M.shape[1]:
-        Kp = (Kp + _SHIFT * typical * sp.identity(N, format="csc")).tocsc()
+        Kp = (Kp + tol.forces_shift * typical * sp.identity(N, format="csc")).tocsc()
     lu = spla.splu(Kp, permc_spec="NATURAL", diag_pivot_thresh=0.0,
                    options=dict(SymmetricMode=True))
     target = project(f)
@@ -383,7 +377,7 @@ def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs) -> np.ndarray:
         u += project(lu.solve(np.asfortranarray(r[perm]))[inv])
         r = target - K @ u
         worst = float(np.max(np.linalg.norm(r, axis=0) / scale))
-        if worst <= _REFINED or worst > _STALLED * last:
+        if worst <= tol.forces_refined or worst > tol.forces_stalled * last:
             break                       # refined, or round-off reached: no step gains
         last = worst
     return w[:, None] * (C @ u)
