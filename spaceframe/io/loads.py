@@ -1,4 +1,4 @@
-"""Loads in the native model format: ``[loads]``, ``[combinations]``, ``[self_weight]``, ``[notional]``.
+"""Loads in the native model format: force units, load cases, combinations, self-weight, notional.
 
 In TOML::
 

@@ -47,7 +47,8 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
     f = r.frame
     u = r.force_units
     role = f.member_tags.get("role") or f.member_tags.get("group")
-    out = [f"Member forces: {f.name or '(unnamed frame)'}" + (f"  [{f.source}]" if f.source else ""),
+    where = f"  [{f.source}]" if f.source else ""
+    out = [f"Member forces: {f.name or '(unnamed frame)'}{where}",
            f"{len(r.names)} case{'s' if len(r.names) != 1 else ''}; forces in {u}, + tension, "
            f"- compression; {f.n_members} members, {len(r.reaction_joints)} supported joints"]
     if r.statically_determinate:

@@ -165,7 +165,8 @@ def forces_document(forces) -> dict:
                  "method": forces.methods[i], "scaled": None, "largest": 0.0,
                  "tension": None, "compression": None, "slack": list(forces.slack[i]),
                  "excited": [{"mode": e.mode, "description": e.description,
-                              "fraction": round(e.fraction, DISPLAY.decimals)} for e in forces.excited[i]]}
+                              "fraction": round(e.fraction, DISPLAY.decimals)}
+                             for e in forces.excited[i]]}
         if forces.carried[i]:
             t = forces.shown_forces(i)
             top = float(np.max(np.abs(t))) if t.size else 0.0
