@@ -61,7 +61,6 @@ name in ``[ties]`` (purlin, ridge, ...), ``brace`` or ``post`` (feet:
 
 from __future__ import annotations
 
-import difflib
 import os
 import re
 import warnings
@@ -72,6 +71,7 @@ import numpy as np
 from .errors import ModelError, SpaceframeWarning, where
 from .model import Frame
 from .selection import parse_selector, select
+from .suggest import closest, did_you_mean
 from .supports import restraint_rows
 from .tolerances import DEFAULT, Tolerances
 
@@ -181,8 +181,8 @@ def spec_from_document(doc: dict, *, path=None, text: str | None = None) -> Spec
     probe = Spec(frames=1, bays=np.zeros(0), source=source, text=text)
     for key in doc:
         if key not in SPEC_KEYS:
-            close = difflib.get_close_matches(key, SPEC_KEYS, n=1)
-            hint = f"did you mean {close[0]!r}? " if close else ""
+            near = closest(key, SPEC_KEYS)
+            hint = f"did you mean {near!r}? " if near is not None else ""
             warnings.warn(f"{where(source, probe.line(None, key))}unknown spec key {key!r} is "
                           f"ignored; {hint}the keys are {', '.join(SPEC_KEYS)}",
                           SpaceframeWarning, stacklevel=3)
@@ -366,9 +366,8 @@ def _bracing(entry: dict, nth: int, frames: int, planes: dict, probe: Spec) -> d
                       what="plane names from [planes]")
     for name in names:
         if name not in planes:
-            close = difflib.get_close_matches(name, list(planes), n=1)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
-            raise probe.error(f"bracing names plane {name!r}, which is not in [planes]{hint}; "
+            raise probe.error(f"bracing names plane {name!r}, which is not in [planes]"
+                              f"{did_you_mean(name, planes)}; "
                               f"add it there as {name} = [planar joint ids]",
                               "bracing", "planes", nth)
     pattern = entry.get("pattern", "cross")
@@ -512,10 +511,9 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT) -> Frame:
 
     def planar_index(jidx: str, section: str, key: str, nth: int = 1) -> int:
         if jidx not in index:
-            close = difflib.get_close_matches(jidx, list(index), n=1)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
             raise spec.error(f"{section} names planar joint {jidx!r}, which is not in the planar "
-                             f"frame{_from(planar)}{hint}; correct the id", section, key, nth,
+                             f"frame{_from(planar)}{did_you_mean(jidx, index)}; correct the id",
+                             section, key, nth,
                              item=jidx)
         return index[jidx]
 

@@ -38,7 +38,6 @@ repeatable) and, for imported geometry, from a sidecar file beside the model,
 from __future__ import annotations
 
 import dataclasses
-import difflib
 import os
 import re
 import tomllib
@@ -50,6 +49,7 @@ import numpy as np
 
 from .errors import ModelError
 from .model import Frame
+from .suggest import did_you_mean
 from .supports import AXES, restraint_rows
 from .tolerances import DEFAULT, Tolerances
 
@@ -157,10 +157,9 @@ def select(selector: Selector, frame: Frame, *, tol: Tolerances = DEFAULT,
         index = {j: i for i, j in enumerate(frame.joint_ids)}
         for jid in selector.ids:
             if jid not in index:
-                close = difflib.get_close_matches(jid, list(index), n=1)
-                hint = f" (did you mean {close[0]!r}?)" if close else ""
                 raise ModelError(f"selection {selector.text!r} names joint {jid!r}, which is not "
-                                 f"in the model{hint}; correct the id", item=jid, **at)
+                                 f"in the model{did_you_mean(jid, index)}; correct the id",
+                                 item=jid, **at)
         return np.array(sorted({index[j] for j in selector.ids}), dtype=np.int64)
     if frame.n_joints == 0:
         raise ModelError(f"selection {selector.text!r}: the model has no joints", **at)
