@@ -159,7 +159,7 @@ def select(selector: Selector, frame: Frame, *, tol: Tolerances = DEFAULT,
             if jid not in index:
                 raise ModelError(f"selection {selector.text!r} names joint {jid!r}, which is not "
                                  f"in the model{did_you_mean(jid, index)}; correct the id",
-                                 item=jid, **at)
+                                 item=jid, kind="joint", **at)
         return np.array(sorted({index[j] for j in selector.ids}), dtype=np.int64)
     if frame.n_joints == 0:
         raise ModelError(f"selection {selector.text!r}: the model has no joints", **at)
@@ -281,9 +281,11 @@ def read_sidecar(path) -> tuple[list[str], list[int | None]]:
     if not (isinstance(rules, list) and all(isinstance(r, str) for r in rules)):
         raise ModelError('a supports file holds one list of rules, e.g. supports = '
                          '["pin at z = min"]; ' + _GRAMMAR, path=source)
-    lines = text.splitlines()
-    found = [next((k for k, s in enumerate(lines, 1) if rule in s), None) for rule in rules]
-    return rules, found
+    from .io.sourcelines import SourceLines
+
+    where = SourceLines(text)
+    start = where.line((), "supports") or 1
+    return rules, [where.containing(rule, start) for rule in rules]
 
 
 def supports_for(frame: Frame, model, rules: Sequence[str] = (), *,

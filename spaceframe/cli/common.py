@@ -4,9 +4,11 @@
   statuses and messages: a :class:`~spaceframe.errors.SpaceframeError` (bad
   input, a missing extra) exits 2, an
   :class:`~spaceframe.errors.InternalError` or any other exception exits 3.
-  Library messages speak of the library's arguments; the option that answers
-  an :class:`~spaceframe.errors.OutputExistsError` (``--force``, or for a
-  batch ``--resume``/``--force``) is added here.
+  Library messages speak of the library's arguments; an
+  :class:`~spaceframe.errors.OutputExistsError` is given in the library's
+  neutral words ("allow replacing it", whatever argument the caller named)
+  followed by the command's own option (``--force``, or for a batch
+  ``--resume``/``--force``).
 - The options and arguments several subcommands take are defined once below,
   each as a click decorator; a new shared option is one more decorator here,
   applied to the commands that take it.
@@ -88,8 +90,11 @@ def run_guarded(job, *, debug: bool = False, replace_hint: str = REPLACE_HINT):
     except SpaceframeError as exc:
         if debug:
             raise
-        hint = f"; {replace_hint}" if isinstance(exc, OutputExistsError) else ""
-        click.echo(f"spaceframe: error: {exc}{hint}", err=True)
+        if isinstance(exc, OutputExistsError):  # in the library's own words, then the option
+            message = f"{OutputExistsError(exc.path)}; {replace_hint}"
+        else:
+            message = str(exc)
+        click.echo(f"spaceframe: error: {message}", err=True)
         sys.exit(EXIT_BAD_INPUT)
     except (KeyboardInterrupt, click.exceptions.Exit, click.ClickException, SystemExit):
         raise

@@ -27,7 +27,7 @@ def convert_command(model, output, supports, force, debug):
         from ..selection import supports_for
 
         check_output(output, inputs=(model,), overwrite=force, suffixes=WRITERS,
-                     what="a model file")
+                     what="a model")
         frame = supports_for(load(model), model, supports)
         save(frame, output, overwrite=force, inputs=(model,))
         click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "

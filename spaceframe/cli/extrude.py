@@ -29,7 +29,7 @@ def extrude_command(planar, spec, output, force, debug):
         from ..io.output import check_output
 
         check_output(output, inputs=(planar, spec), overwrite=force, suffixes=WRITERS,
-                     what="a model file")
+                     what="a model")
         frame = extrude(planar, spec)
         save(frame, output, overwrite=force, inputs=(planar, spec))
         click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "

@@ -81,9 +81,9 @@ def read_candidate_list(path, frame: Frame, *, tol: Tolerances = DEFAULT):
         for col in (cs, ce):
             jid = cells[col]
             if jid not in index:
-                raise ModelError(f"joint {jid!r} is not in {model}{did_you_mean(jid, index)}; "
-                                 f"use the id of a joint of the model", path=source, line=line,
-                                 item=jid)
+                raise ModelError(f"joint {jid!r} is not in {model}"
+                                 f"{did_you_mean(jid, frame.joint_ids)}; use the id of a "
+                                 f"joint of the model", path=source, line=line, item=jid)
             pair.append(index[jid])
         a, b = pair
         if a == b or np.linalg.norm(frame.coords[a] - frame.coords[b]) <= tol.short_member * size:

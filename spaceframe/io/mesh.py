@@ -31,7 +31,7 @@ from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 
 __all__ = ["read_mesh", "frame_from_edges", "MESH_SUFFIXES"]
 
@@ -172,7 +172,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
                   restraint_joint=np.zeros(0, dtype=np.int64),
                   restraint_dir=np.zeros((0, dimension)), dimension=dimension,
                   name=stem if name is None else name, source=source)
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)
 
 
 def _point(x) -> str:
