@@ -29,7 +29,7 @@ import numpy as np
 
 from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame
+from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 
@@ -131,8 +131,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
     points = np.asarray(points, dtype=float).reshape(-1, dimension)
     edges = np.asarray(edges, dtype=np.int64).reshape(-1, 2)
     used = np.unique(edges)
-    size = float(np.linalg.norm(points[used].max(axis=0) - points[used].min(axis=0))) \
-        if used.size else 0.0
+    size = bounding_diagonal(points[used])
     limit = tol.merge * size if merge is None else float(merge)
     pairs = cKDTree(points).query_pairs(limit, output_type="ndarray") if len(points) > 1 \
         else np.zeros((0, 2), dtype=np.int64)
