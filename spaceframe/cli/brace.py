@@ -60,8 +60,7 @@ def _check_output(path: str, force: bool, inputs) -> None:
                          "--force to replace it", path=path)
 
 
-def _csv_text(result) -> str:
-    doc = result.to_dict()
+def _csv_text(doc: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["item", "id", "start", "end", "joint", "direction", "length", "location",
@@ -136,6 +135,7 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
         from ..io import save
         from ..io.candidates import read_candidate_list
         from ..selection import supports_for
+        from ..views.bracing_document import bracing_document
         from ..views.bracing_text import render_bracing
 
         frame = supports_for(load(model), model, supports)
@@ -155,11 +155,12 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
             alternatives=alternatives)
         if write_path:
             save(result.braced, write_path, overwrite=force, inputs=inputs)
+        doc = bracing_document(result) if (csv_path or as_json) else None
         if csv_path:
             with open(csv_path, "w", encoding="utf-8", newline="") as fh:
-                fh.write(_csv_text(result))
+                fh.write(_csv_text(doc))
         if as_json:
-            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+            click.echo(json.dumps(doc, indent=1, allow_nan=False))
         else:
             click.echo(render_bracing(result), nl=False)
             for path, what in ((write_path, "braced model"), (csv_path, "list")):

@@ -22,6 +22,7 @@ from click.testing import CliRunner
 import spaceframe
 from spaceframe import Frame
 from spaceframe.analysis.bracing import panel_diagonals, recommend_bracing
+from spaceframe.views.bracing_document import bracing_document, bracing_notes, location, remedy_text
 
 from common.matrices import dense_compatibility
 
@@ -123,8 +124,8 @@ def test_hall_roof_stable_with_ties_and_braces_in_panels_that_exist():
         a, b = (frame.joint_ids[j] for j in cand.ends[i])
         assert a.split(".")[1] == b.split(".")[1] and a.split(".")[1] in {"L1", "L2", "L3",
                                                                          "L4", "L5"}
-        assert r.item(i)["location"].startswith("bottom-chord tie at L")
-    assert "bottom-chord tie at L2, bay 3" in {r.item(i)["location"] for i in ties}
+        assert location(frame, cand, i).startswith("bottom-chord tie at L")
+    assert "bottom-chord tie at L2, bay 3" in {location(frame, cand, i) for i in ties}
     assert r.total_length == pytest.approx(sum(cand.length[i] for i in r.members_added))
     roles = r.braced.member_tags["role"][frame.n_members:]
     assert roles.count("tie") == 25 and roles.count("brace") == 11
@@ -143,7 +144,8 @@ def test_hall_roof_without_ties_keeps_to_existing_panels():
     assert len(r.members_added) == 6 and len(r.restraints_added) == 1
     assert r.after.mechanisms == 30 == spaceframe.audit(r.braced).mechanisms
     assert set(r.after.mode_kinds) == {"out-of-plane"}
-    assert all("--within" in h for h in r.remaining)
+    assert {h.kind for h in r.remaining} == {"member"}
+    assert all("--within" in remedy_text(r, h) for h in r.remaining)
     assert r.braced.member_tags["role"][frame.n_members:] == ("brace",) * 6
 
 
@@ -195,7 +197,8 @@ def test_lone_planar_truss_names_the_joints_to_restrain():
     # off the bearings each move along y alone; one restraint along y at each holds them.
     frame = spaceframe.load(MODELS / "footbridge_truss.toml")
     r = recommend_bracing(frame, alternatives=0)
-    note = next(n for n in r.notes if "lateral restraint" in n)
+    assert r.lateral is not None and len(r.lateral.joints) == 12
+    note = next(n for n in bracing_notes(r) if "lateral restraint" in n)
     free = ["B1", "B2", "B3", "B4", "B5", "T0", "T1", "T2", "T3", "T4", "T5", "T6"]
     assert "plane y = 0" in note and "--attach " + ",".join(free) in note
     index = {j: i for i, j in enumerate(frame.joint_ids)}
@@ -203,7 +206,8 @@ def test_lone_planar_truss_names_the_joints_to_restrain():
     assert held.after.stable and len(held.restraints_added) == 12
     assert all(np.allclose(np.abs(held.candidates.direction[i]), [0, 1, 0])
                for i in held.restraints_added)
-    assert not any("lateral restraint" in n for n in held.notes)
+    assert held.lateral is None
+    assert not any("lateral restraint" in n for n in bracing_notes(held))
 
 
 def test_hall_roof_stable_with_pairs_within_reach(tmp_path):
@@ -245,7 +249,7 @@ def test_tension_only_takes_both_diagonals():
     single = recommend_bracing(frame, alternatives=0)
     assert len(r.chosen) == 2 * len(single.chosen)
     assert r.after.stable
-    assert any("both diagonals" in n for n in r.notes)
+    assert any("both diagonals" in n for n in bracing_notes(r))
 
 
 def test_free_tetrahedron_gets_six_restraints():
@@ -258,13 +262,13 @@ def test_free_tetrahedron_gets_six_restraints():
     assert r.before.rigid_body_modes == 6 and r.before.internal_mechanisms == 0
     assert len(r.restraints_added) == 6 and r.members_added == []
     assert r.after.stable and r.after.rigid_body_modes == 0
-    doc = r.to_dict()
+    doc = bracing_document(r)
     assert doc["added"] == [] and len(doc["restraints_added"]) == 6
 
 
 def test_no_restraints_when_no_rigid_body_mode():
     frame = spaceframe.load(MODELS / "canopy_sway.toml")
-    assert recommend_bracing(frame).to_dict()["restraints_added"] == []
+    assert bracing_document(recommend_bracing(frame))["restraints_added"] == []
 
 
 def test_panel_detection_rejects_warped_and_concave_quads():
