@@ -24,6 +24,7 @@ from spaceframe import Frame
 from spaceframe.analysis.bracing import panel_diagonals, recommend_bracing
 from spaceframe.views.bracing_document import bracing_document, bracing_notes, location, remedy_text
 
+from common.frames import assert_same_frame
 from common.matrices import dense_compatibility
 
 MODELS = Path(__file__).resolve().parents[2] / "models"
@@ -363,3 +364,92 @@ def test_cli_listed_candidate_with_weight_is_used(tmp_path):
     res = run("brace", MODELS / "canopy_sway.toml", "--candidates", lst, "--json")
     assert res.exit_code == 0
     assert json.loads(res.stdout)["added"][0]["ends"] == ["R3a", "R4b"]
+
+
+# ------------------------------------------------------------- what survives bracing
+
+def _canopy_with_ea_and_tags(folder, weak="C4a"):
+    """The canopy model with member and joint tags and an EA table (member ``weak`` at 1e-5
+    of the default), written beside the test."""
+    text = (MODELS / "canopy_sway.toml").read_text()
+    text += ('\n[tags.members.role]\ncolumn = ["C1a", "C1b", "C2a", "C2b", "C3a", "C3b", "C4a",'
+             ' "C4b", "C5a", "C5b"]\nbrace = ["RD1", "RD2", "RD4"]\n'
+             '[tags.members.group]\nframe = ["C1a", "C1b"]\n'
+             '[tags.joints.side]\nfront = ["R1a", "R2a", "R3a", "R4a", "R5a"]\n'
+             f'\n[properties.members.EA]\ndefault = 2.0e5\n"role=brace" = 5.0e4\n'
+             f'{weak} = 2.0\n')
+    path = folder / "canopy_ea.toml"
+    path.write_text(text)
+    return path
+
+
+def _expected_braced(frame, r):
+    """The braced frame written out by hand: the frame's own fields, then the added members
+    (tags "brace" in role and group, "" elsewhere; EA the median of the frame's) and restraints."""
+    mem, res = r.members_added, r.restraints_added
+    ea = frame.member_properties["EA"]
+    tags = {key: labels + tuple("brace" if key in ("role", "group") else "" for _ in mem)
+            for key, labels in frame.member_tags.items()}
+    return Frame(joint_ids=frame.joint_ids, coords=frame.coords,
+                 member_ids=frame.member_ids + r.added_ids,
+                 ends=np.vstack([frame.ends, r.candidates.ends[mem]]),
+                 restraint_joint=np.r_[frame.restraint_joint, r.candidates.joint[res]],
+                 restraint_dir=np.vstack([frame.restraint_dir, r.candidates.direction[res]]),
+                 dimension=3, name=frame.name, units=frame.units,
+                 joint_tags=dict(frame.joint_tags), member_tags=tags,
+                 member_properties={"EA": np.r_[ea, np.full(len(mem), np.median(ea))]})
+
+
+def test_braced_frame_keeps_ea_tags_and_supports(tmp_path):
+    # source: derived (the expected frame is written out from the model's own fields and
+    # spaceframe/edit.py's rule).  The re-audit sees the model's EA: C4a at 1e-5 of the other
+    # columns leaves a soft mode (the stiffness of a pattern that stretches C4a scales with
+    # its EA, K = C^T diag(EA/L) C), which the same braced frame with uniform EA does not have.
+    import dataclasses
+
+    frame = spaceframe.load(_canopy_with_ea_and_tags(tmp_path))
+    r = recommend_bracing(frame)
+    assert r.after.stable and len(r.members_added) == 1
+    want = _expected_braced(frame, r)
+    assert_same_frame(r.braced, want)
+    assert_same_frame(r.after.frame, want)
+    assert len(r.after.soft_ratios) >= 1
+    uniform = spaceframe.audit(dataclasses.replace(r.braced, member_properties={}))
+    assert len(uniform.soft_ratios) == 0
+
+
+def test_brace_write_output_reads_back_field_by_field(tmp_path):
+    # source: derived, as above; the written model read again is the braced frame, EA table
+    # included (it was lost before the edits went through spaceframe/edit.py).
+    model = _canopy_with_ea_and_tags(tmp_path)
+    out = tmp_path / "braced.toml"
+    res = run("brace", model, "--write", out)
+    assert res.exit_code == 0, res.output
+    assert "[properties.members.EA]" in out.read_text()
+    frame = spaceframe.load(model)
+    r = recommend_bracing(frame)
+    assert_same_frame(spaceframe.load(out), _expected_braced(frame, r))
+
+
+def test_braced_extruded_frame_keeps_every_tag_table():
+    # source: derived.  Ties are tagged role = group = "tie", frame "", bay the bay between
+    # their frames; braces "brace" and the bay of their panel; all other tag tables and the
+    # joints' are carried over unchanged.
+    frame = spaceframe.load(MODELS / "hall_roof_unbraced.toml")
+    r = recommend_bracing(frame, alternatives=0)
+    m = frame.n_members
+    assert set(r.braced.member_tags) == set(frame.member_tags) | {"role"}
+    for key, labels in frame.member_tags.items():
+        assert r.braced.member_tags[key][:m] == labels
+    assert dict(r.braced.joint_tags) == dict(frame.joint_tags)
+    jframe = frame.joint_tags["frame"]
+    for mid, i in zip(r.added_ids, r.members_added):
+        k = r.braced.member_ids.index(mid)
+        a, b = r.candidates.ends[i]
+        tie = r.candidates.origin[i] == "tie"
+        tags = {key: r.braced.member_tags[key][k] for key in r.braced.member_tags}
+        assert tags["role"] == tags["group"] == ("tie" if tie else "brace")
+        if tie:
+            assert tags["bay"] == str(min(int(jframe[a]), int(jframe[b]))) and tags["frame"] == ""
+        else:
+            assert tags["bay"] != ""
