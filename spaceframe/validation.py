@@ -10,13 +10,12 @@ the same messages.
 
 from __future__ import annotations
 
-import dataclasses
 import warnings
-from itertools import compress
 from typing import Callable
 
 import numpy as np
 
+from .edit import remove_members
 from .errors import ModelError, SpaceframeError, SpaceframeWarning, where
 from .model import Frame
 from .tolerances import DEFAULT, Tolerances
@@ -229,11 +228,4 @@ def _drop_repeated_members(frame: Frame, line) -> Frame:
     warnings.warn(f"{where(frame.source, first_line)}{'; '.join(notes)}; two bars between the same "
                   f"pins act as one bar, so each repeat is counted once: delete the repeats",
                   SpaceframeWarning, stacklevel=3)
-    keep = np.ones(m, dtype=bool)
-    keep[dropped] = False
-    return dataclasses.replace(frame, member_ids=tuple(compress(ids, keep)),
-                               ends=frame.ends[keep],
-                               member_tags={k: tuple(compress(v, keep))
-                                            for k, v in frame.member_tags.items()},
-                               member_properties={k: v[keep] for k, v in
-                                                  frame.member_properties.items()})
+    return remove_members(frame, dropped)

@@ -1,4 +1,4 @@
-"""Frame edits (spaceframe/edit.py) and every path that edits a frame: what survives, field by field.
+"""Frame edits (spaceframe/edit.py) and every path that edits a frame: what survives, by field.
 
 Sources, named per test:
 - "derived": what an edit must give, written out by hand from the frame's own fields and the

@@ -1,4 +1,4 @@
-"""The outcome of a bracing recommendation, as data: what was chosen, the braced frame, what is left.
+"""The outcome of a bracing recommendation, as data: the choice, the braced frame, what is left.
 
 Wording (where a brace is, what would remove a mode that is left, the notes)
 is the views' job: :mod:`spaceframe.views.bracing_document` turns a
