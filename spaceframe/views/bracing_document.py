@@ -16,13 +16,14 @@ from ..analysis.bracing import BRACING_CAUTION
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
 from ..results import CAUTION
 from ..supports import AXES
+from ..tolerances import DISPLAY
 
 __all__ = ["bracing_document", "candidate_entry", "location", "remedy_text", "bracing_notes"]
 
 #: A panel is horizontal (vertical) when the vertical component of its unit normal is above
-#: (below) these; otherwise its pitch is given.  A vertical plane is named by its axis when
-#: that component of the normal is above the first.
-_LEVEL, _PLUMB = 0.999, 0.001
+#: ``axis_plane`` (below ``1 - axis_plane``); otherwise its pitch is given.  A plane is named
+#: by an axis when that component of its normal is above ``axis_plane`` (Display.axis_plane).
+_LEVEL, _PLUMB = DISPLAY.axis_plane, 1 - DISPLAY.axis_plane
 
 
 def _tie_name(frame, a: int, b: int) -> str:

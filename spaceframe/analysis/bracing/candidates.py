@@ -218,15 +218,23 @@ def _pad3(frame: Frame) -> np.ndarray:
 
 
 def _crossing(P, a, b, c, e, tol: Tolerances) -> bool:
-    """Do the diagonals ``a-c`` and ``b-e`` of the cycle ``a, b, c, e`` cross inside both?"""
+    """Do the diagonals ``a-c`` and ``b-e`` of the cycle ``a, b, c, e`` cross inside both?
+
+    Not when they are parallel (``tol.parallel_diagonals``: three corners in
+    a line, no panel); yes when they pass within ``tol.panel_plane * L`` of
+    each other (``L`` the longer) at parameters strictly inside both
+    (``tol.crossing_margin``).
+    """
     d1, d2 = P[c] - P[a], P[e] - P[b]
     L = max(np.linalg.norm(d1), np.linalg.norm(d2))
-    if np.linalg.norm(np.cross(d1, d2)) <= 1e-6 * np.linalg.norm(d1) * np.linalg.norm(d2):
-        return False  # parallel diagonals: three corners in a line, no panel
+    if (np.linalg.norm(np.cross(d1, d2))
+            <= tol.parallel_diagonals * np.linalg.norm(d1) * np.linalg.norm(d2)):
+        return False
     A = np.c_[d1, -d2]
     st, *_ = np.linalg.lstsq(A, P[b] - P[a], rcond=None)
     gap = np.linalg.norm(P[a] + st[0] * d1 - P[b] - st[1] * d2)
-    return gap <= tol.panel_plane * L and 1e-9 < st[0] < 1 - 1e-9 and 1e-9 < st[1] < 1 - 1e-9
+    t = tol.crossing_margin
+    return gap <= tol.panel_plane * L and t < st[0] < 1 - t and t < st[1] < 1 - t
 
 
 def _neighbours(frame: Frame) -> list[set]:

@@ -14,6 +14,7 @@ import numpy as np
 from ... import edit
 from ...model import Frame
 from ...results import AuditResult
+from ...tolerances import DEFAULT
 from .candidates import CandidateSet
 from .frames import bay_between, panel_bay, planar_id
 
@@ -21,8 +22,8 @@ __all__ = ["BracingResult", "Remedy", "LateralRestraint", "braced_frame", "ACTS"
            "BRACING_CAUTION"]
 
 #: A candidate "acts on" a mode when the mode stretches it by more than this fraction of
-#: the mode's largest joint movement (modes are scaled so that it is 1).
-ACTS = 0.01
+#: the mode's largest joint movement (modes are scaled so that it is 1): ``Tolerances.acts``.
+ACTS = DEFAULT.acts
 #: The caution every bracing recommendation carries, after the audit's own.
 BRACING_CAUTION = ("Bracing advice is a starting point for a competent engineer, who must check "
                    "member sizes, connections, load paths and the local codes before anything "
@@ -102,7 +103,7 @@ class BracingResult:
         chosen panel).
     acts_on : tuple of tuple of int
         For each chosen item, the 1-based numbers of the modes of ``before``
-        it acts on (see :data:`ACTS`).
+        it acts on (``tol.acts``, :data:`ACTS` by default).
     braced : Frame
         The frame with them (:func:`braced_frame`).
     after : AuditResult

@@ -61,7 +61,7 @@ from ...tolerances import DEFAULT, Tolerances
 from ..audit import audit
 from ..equilibrium import compatibility_matrix
 from .candidates import CandidateSet, find_candidates
-from .result import ACTS, BracingResult, LateralRestraint, Remedy, braced_frame
+from .result import BracingResult, LateralRestraint, Remedy, braced_frame
 
 __all__ = ["recommend_bracing", "reach_rows", "greedy_basis", "matroid_elements",
            "expand_elements", "remedies", "lateral_restraint", "planar_plane", "PER_MODE"]
@@ -209,17 +209,21 @@ def _alternatives(elements, order, cost, basis, threshold, most, cand, tension_o
     return sorted(found, key=lambda t: t[1])
 
 
-def _s_max(frame: Frame) -> float:
-    """Largest singular value of the compatibility matrix (about two digits for big frames)."""
+def _s_max(frame: Frame, tol: Tolerances = DEFAULT) -> float:
+    """Largest singular value of the compatibility matrix.
+
+    Dense 2-norm up to ``tol.limits.dense_engine`` entries, else a Lanczos
+    estimate of ``lambda_max(C.T C)`` to ``tol.s_max_estimate``.
+    """
     C = compatibility_matrix(frame)
     if min(C.shape) == 0 or C.nnz == 0:
         return 1.0
-    if C.shape[0] * C.shape[1] <= 100_000:
+    if C.shape[0] * C.shape[1] <= tol.limits.dense_engine:
         return float(np.linalg.norm(C.toarray(), 2))
     K = (C.T @ C).tocsc()
     v0 = np.random.default_rng(20261201).standard_normal(K.shape[0])
-    lam = spla.eigsh(K, k=1, which="LA", tol=1e-2, ncv=min(K.shape[0], 10), v0=v0,
-                     return_eigenvectors=False)[0]
+    lam = spla.eigsh(K, k=1, which="LA", tol=tol.s_max_estimate, ncv=min(K.shape[0], 10),
+                     v0=v0, return_eigenvectors=False)[0]
     return float(np.sqrt(lam))
 
 
@@ -251,26 +255,27 @@ def lateral_restraint(frame: Frame, after: AuditResult, *,
     """For a lone planar frame in space: the joints that move out of its plane in ``after``.
 
     None when the frame is not planar, nothing is left, or no mode left
-    moves a joint out of the plane by more than :data:`ACTS`.
+    moves a joint out of the plane by more than ``tol.acts``.
     """
     plane = planar_plane(frame, tol=tol)
     if plane is None or not after.mechanisms:
         return None
     normal, centre = plane
     u = after.mode_displacements            # (k, n, 3), each mode's largest movement 1
-    out = np.abs(u @ normal).max(axis=0) > ACTS
+    out = np.abs(u @ normal).max(axis=0) > tol.acts
     if not out.any():
         return None
     return LateralRestraint(tuple(int(j) for j in np.flatnonzero(out)), normal, centre)
 
 
-def remedies(frame: Frame, after: AuditResult) -> tuple[Remedy, ...]:
+def remedies(frame: Frame, after: AuditResult, *,
+             tol: Tolerances = DEFAULT) -> tuple[Remedy, ...]:
     """For each mode of ``after`` (the braced frame's audit): a kind of candidate that would act.
 
     A rigid-body mode needs a restraint.  Otherwise, take the joint ``j``
     that moves most; among its 40 nearest joints not joined to it, the first
     ``q`` whose member ``j-q`` would stretch in the mode (the relative
-    movement along ``j-q`` above 0.1 of the largest movement) gives a
+    movement along ``j-q`` above ``tol.hint_stretch`` of the largest) gives a
     ``"member"`` remedy; failing that, ``j`` needs holding along its own
     movement (``"direction"``).
 
@@ -304,7 +309,7 @@ def remedies(frame: Frame, after: AuditResult) -> tuple[Remedy, ...]:
                 continue
             w = X[q] - X[j]
             L = float(np.linalg.norm(w))
-            if L > 0 and abs(np.dot(w / L, u[q] - u[j])) > 0.1:
+            if L > 0 and abs(np.dot(w / L, u[q] - u[j])) > tol.hint_stretch:
                 remedy = Remedy(m, "member", joint=j, other=int(q), length=L)
                 break
         out.append(remedy)
@@ -395,7 +400,7 @@ tension_only : keyword-only
     if k and len(cand):
         Q, _ = np.linalg.qr(U)
         reach = np.asarray(A @ Q)
-        threshold = tol.rank * _s_max(frame)
+        threshold = tol.rank * _s_max(frame, tol)
         order, elements, cost = matroid_elements(cand, reach, tension_only)
         basis = greedy_basis(elements, order, threshold)
         chosen = expand_elements(basis, cand, tension_only)
@@ -403,16 +408,18 @@ tension_only : keyword-only
                              tension_only)
     braced = braced_frame(frame, cand, chosen)
     after = audit(braced, tol=tol, **opts)
-    acts_on = tuple(tuple(int(m) + 1 for m in np.flatnonzero(acts_all[i] > ACTS)) for i in chosen)
+    acts_on = tuple(tuple(int(m) + 1 for m in np.flatnonzero(acts_all[i] > tol.acts))
+                    for i in chosen)
     opts_per_mode = []
     rank_order = np.argsort(np.argsort(cand.order())) if len(cand) else np.zeros(0, int)
     for m in range(k):
-        touching = np.flatnonzero(acts_all[:, m] > ACTS)
+        touching = np.flatnonzero(acts_all[:, m] > tol.acts)
         opts_per_mode.append(tuple(int(i) for i in touching[np.argsort(rank_order[touching])]
                                    [:PER_MODE]))
     return BracingResult(frame=frame, before=before, candidates=cand, chosen=tuple(chosen),
                          acts_on=acts_on, braced=braced, after=after, alternatives=tuple(alts),
-                         mode_options=tuple(opts_per_mode), remaining=remedies(braced, after),
+                         mode_options=tuple(opts_per_mode),
+                         remaining=remedies(braced, after, tol=tol),
                          tension_only=tension_only, restraints_used=use_restraints,
                          expected_after=k - len(basis),
                          lateral=lateral_restraint(braced, after, tol=tol))
