@@ -39,7 +39,6 @@ References
 
 from __future__ import annotations
 
-import dataclasses
 from dataclasses import dataclass
 from typing import Sequence
 
@@ -47,6 +46,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from ..edit import remove_members
 from ..errors import InternalError, ModelError
 from ..force_results import ExcitedMechanism, ForcesResult
 from ..loads import LoadSet
@@ -274,21 +274,12 @@ def _settle(frame: Frame, F: np.ndarray, t: np.ndarray, tension_only: np.ndarray
             break
         active[j] = False
         gone.append(j)
-        sub = _solve(_members_only(frame, active), F[None], method, tol)
+        sub = _solve(remove_members(frame, gone), F[None], method, tol)
         if not sub.carried[0]:
             return None, gone, sub
         t = np.zeros(frame.n_members)
         t[active] = sub.T[0]
     return t, gone, sub
-
-
-def _members_only(frame: Frame, keep: np.ndarray) -> Frame:
-    """The frame with only the members where ``keep`` is True (tags and properties kept)."""
-    idx = np.flatnonzero(keep)
-    return dataclasses.replace(
-        frame, member_ids=tuple(frame.member_ids[i] for i in idx), ends=frame.ends[idx],
-        member_tags={k: tuple(v[i] for i in idx) for k, v in frame.member_tags.items()},
-        member_properties={k: v[idx] for k, v in frame.member_properties.items()}, loads=None)
 
 
 def _excited(found, each: np.ndarray, tol: Tolerances) -> tuple:

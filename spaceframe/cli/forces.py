@@ -7,7 +7,8 @@ import sys
 
 import click
 
-from .common import debug_option, force_option, run_guarded, supports_option
+from .common import (debug_option, force_option, json_option, model_argument, run_guarded,
+                     supports_option)
 
 __all__ = ["forces_command"]
 
@@ -16,11 +17,10 @@ EXIT_NOT_CARRIED = 1
 
 
 @click.command("forces")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("--case", "cases", multiple=True, metavar="NAME",
               help="Solve only this case or combination (repeatable; default every case).")
-@click.option("--json", "as_json", is_flag=True,
-              help="Print one JSON document on stdout (warnings go to stderr).")
+@json_option
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False, path_type=str), metavar="FILE",
               help="Also write case,member,force,state rows (carried cases) to FILE.")
 @click.option("--all", "show_all", is_flag=True, help="List every member and support in the text.")
