@@ -63,6 +63,7 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
     def job():
         from .. import audit, load
         from ..errors import SpaceframeError
+        from ..naming import count as counted
         from ..selection import supports_for
         from ..views.progress import progress
         from ..views.render import mode_frames, state_picture, write_frames
@@ -82,7 +83,8 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
             return
         count = result.mechanisms
         if mode is not None and not 1 <= mode <= max(count, 1):
-            raise SpaceframeError(f"--mode {mode}: the audit found {count} mechanism(s); "
+            raise SpaceframeError(f"--mode {mode}: the audit found "
+                                  f"{counted(count, 'mechanism')}; "
                                   f"give a number from 1 to {count}" if count else
                                   f"--mode {mode}: the frame has no mechanism")
         if count == 0:

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..results import AuditResult
 from .render import PALETTE, _lines, _pyvista, support_glyphs
-from .scene import AMPLITUDE, phases, scene_of, view_direction
+from .scene import AMPLITUDE, phases, scene_of
 
 __all__ = ["DeskViewer"]
 
@@ -62,7 +62,7 @@ class DeskViewer:
         self._words = p.add_text(self._caption(), position="upper_left", font_size=10,
                                  color=PALETTE["text"][0])
         self._widgets()
-        direction = view_direction(self.scene.coords)
+        direction = self.scene.view()
         c = 0.5 * (self.scene.coords.min(axis=0) + self.scene.coords.max(axis=0))
         up = (0, 0, 1) if abs(direction[2]) < 0.95 else (0, 1, 0)
         p.camera_position = [tuple(c + 3 * self.scene.extent * direction), tuple(c), up]

@@ -20,7 +20,7 @@ import numpy as np
 from .. import __version__
 from ..errors import SpaceframeError
 from ..results import AuditResult
-from .scene import AMPLITUDE, GLYPH, scene_of, view_direction
+from .scene import AMPLITUDE, GLYPH, scene_of
 from .text import verdict
 
 __all__ = ["render_report", "report_document", "asset"]
@@ -98,13 +98,13 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "ends": s.ends.tolist(),
             "extent": s.extent,
             "amplitude": AMPLITUDE,
-            "glyph": GLYPH,
+            "glyph": GLYPH * s.unit / s.extent,   # the stalk's length over the extent
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
             "moving": moving,
             "forces": [np.round(np.asarray(t, float), 3).tolist() for t in result.self_stress_forces],
-            "views": [r6(view_direction(s.coords, u)) for u in s.modes],
-            "rest_view": r6(view_direction(s.coords)),
+            "views": [r6(s.view(i)) for i in range(len(s.modes))],
+            "rest_view": r6(s.view()),
         },
         "bracing": None if bracing is None else _bracing_document(bracing),
     }
