@@ -32,12 +32,12 @@ def check_output(out: str, model: str, force: bool, suffixes) -> Path:
 @click.command("animate")
 @click.argument("model", type=click.Path(dir_okay=True, path_type=str))
 @click.option("-o", "--output", "out", required=True, metavar="OUT",
-              help="Picture to write: .gif (looping), .mp4, or .png (a strip of poses; one row "
-                   "per mode).")
+              help="Picture to write: .gif (looping), .mp4, or .png (a sheet of poses, "
+                   "each mode's in rows at most 1,600 px wide).")
 @click.option("--mode", "mode", type=int, default=None, metavar="K",
               help="The mechanism to show, numbered from 1 in the order the audit lists them "
                    "(default 1).")
-@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (one row each in a PNG).")
+@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (each its own rows in a PNG).")
 @click.option("--state", "state", type=int, default=None, metavar="K",
               help="Draw state of self-stress K instead (a still .png): members coloured by force.")
 @click.option("--frames", "n", type=click.IntRange(2, 240), default=None,
