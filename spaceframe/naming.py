@@ -10,7 +10,7 @@ from __future__ import annotations
 import re
 from typing import Iterable
 
-__all__ = ["natural_key", "natural_sorted", "count", "join_words"]
+__all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz"]
 
 _DIGITS = re.compile(r"(\d+)")
 
@@ -67,3 +67,32 @@ def join_words(items: list[str], most: int | None = None) -> str:
     if most is not None and len(items) > most:
         return ", ".join(items[:most]) + f" and {len(items) - most} more"
     return ", ".join(items[:-1]) + (" and " if len(items) > 1 else "") + items[-1]
+
+
+def numbered_only(ids, tagged: bool = False) -> bool:
+    """Do ``ids`` only number the items (``J1, J2, ...`` as a mesh import names joints)?
+
+    True when every id is one common prefix followed by digits and the items
+    carry no tags (``tagged`` False): such ids say nothing of where an item is.
+
+    Examples
+    --------
+    >>> numbered_only(["J1", "J2", "J59"]), numbered_only(["L0", "U1"]), numbered_only(["A"])
+    (True, False, False)
+    """
+    ids = [str(i) for i in ids]
+    if tagged or not ids:
+        return False
+    prefixes = {i.rstrip("0123456789") for i in ids}
+    return len(prefixes) == 1 and all(i[len(next(iter(prefixes))):].isdigit() for i in ids)
+
+
+def placed(ident: str, point, size: float = 1.0) -> str:
+    """``ident`` with its coordinates: ``J59 (2.5, 0, 1.5)`` (3 significant figures; values
+    below ``1e-9 * size`` written as 0)."""
+    return f"{ident} ({xyz(point, size)})"
+
+
+def xyz(point, size: float = 1.0) -> str:
+    """Coordinates as ``2.5, 0, 1.5`` (3 significant figures; tiny values as 0)."""
+    return ", ".join(f"{0.0 if abs(c) <= 1e-9 * size else c:.3g}" for c in point)

@@ -32,7 +32,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..model import Frame
-from ..naming import count, join_words, natural_key
+from ..naming import count, join_words, natural_key, numbered_only, placed, xyz
 from .nullspace import canonical_basis
 
 __all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "MOVING", "KINDS"]
@@ -253,9 +253,7 @@ class _Context:
         self.line_role = self._line_roles()
         # ids that only number the joints (an imported mesh's J1, J2...) say nothing of
         # where a joint is: its coordinates go beside them
-        prefixes = {i.rstrip("0123456789") for i in ids}
-        self.bare = not frame.joint_tags and len(prefixes) == 1 and \
-            all(i[len(next(iter(prefixes))):].isdigit() for i in ids)
+        self.bare = numbered_only(ids, tagged=bool(frame.joint_tags))
 
     def _lines(self) -> list:
         """The line along the building of each framed joint (None for the others).
@@ -303,7 +301,7 @@ class _Context:
     def label(self, j) -> str:
         """Joint ``j``'s id, with its coordinates when the id is bare numbering."""
         jid = self.frame.joint_ids[j]
-        return f"{jid} ({_xyz(self.frame.coords[j], self.size)})" if self.bare else jid
+        return placed(jid, self.frame.coords[j], self.size) if self.bare else jid
 
     def labels(self, joints) -> list[str]:
         """Labels of ``joints`` in natural order of their ids."""
@@ -420,7 +418,7 @@ class _Context:
         if d == 2:
             p = c + np.array([-t[1], t[0]]) / om[0]
             near = self._joints_near_point(p)
-            where = f"joint {near}" if near else f"the point ({_xyz(p)})"
+            where = f"joint {near}" if near else f"the point ({xyz(p)})"
             return (f"The whole frame can turn in its plane about {where}: the supports do not "
                     f"stop the rotation.", np.array([0.0, 1.0]))
         axis = om / np.linalg.norm(om)
@@ -430,7 +428,7 @@ class _Context:
         if len(on_axis) >= 2:
             where = f"the line through joints {on_axis[0]} and {on_axis[-1]}"
         else:
-            where = f"an axis {_dir_words(axis, along=True)} through ({_xyz(p, self.size)})"
+            where = f"an axis {_dir_words(axis, along=True)} through ({xyz(p, self.size)})"
         return (f"The whole frame can turn about {where}: the supports do not stop the "
                 f"rotation.", axis)
 
@@ -561,14 +559,16 @@ class _Context:
         if np.all(side > 0) or np.all(side < 0):
             if pivots:
                 down = join_words(self.labels(pivots), most=4)
+                up = self.frame.coords[:, self.up]
+                to = "down to" if up[pivots].max() < up[moving].min() else "to"
                 if len(mov) + len(self.held) >= f.n_joints:   # everything not held moves
                     return "sway", (f"The frame can sway {_dir_words(direction)} on its "
                                     f"supports: joints {names} move together while the "
-                                    f"members down to {down} turn about them, and nothing "
+                                    f"members {to} {down} turn about them, and nothing "
                                     f"braces it that way."), {"pivots": pivot_ids}
                 return "sway", (f"Joints {names} can sway {_dir_words(direction)} on the "
                                 f"supports at {down} while the rest of the frame stays put: "
-                                f"the members down to the supports turn about them, and "
+                                f"the members {to} the supports turn about them, and "
                                 f"nothing braces them that way."), {"pivots": pivot_ids}
             return "sway", (f"Joints {names} can move together {_dir_words(direction)} while "
                             f"the rest of the frame stays put: the panels between them and "
@@ -595,8 +595,3 @@ def _dir_words(v, *, along=False):
         return f"along {'+' if v[a] > 0 else '-'}{_AXES[a]}" if not along else \
             f"along {_AXES[a]}"
     return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
-
-
-def _xyz(p, size=1.0):
-    p = np.where(np.abs(p) <= 1e-9 * size, 0.0, p)
-    return ", ".join(f"{c:.3g}" for c in p)

@@ -6,6 +6,7 @@ import numpy as np
 
 from ..analysis.prestress import NOT_STIFFENED, STIFFENED
 from ..naming import count as counted
+from ..naming import join_words, natural_sorted, numbered_only, placed
 from ..results import CAUTION, AuditResult
 
 __all__ = ["render_audit", "verdict"]
@@ -176,16 +177,19 @@ def _frame_grouped(r: AuditResult, joints: list[str]) -> str:
     """``L1, L2 of frames 1-6 (12 joints)`` when the same joints of several frames are listed."""
     f = r.frame
     frames = f.tag("joint", "frame")
+    index = {jid: i for i, jid in enumerate(f.joint_ids)}
+    if numbered_only(f.joint_ids, tagged=bool(f.joint_tags)):   # ids that say nothing of where
+        size = f.size() or 1.0
+        return join_words([placed(j, f.coords[index[j]], size) for j in joints], most=8)
     if not frames or len(joints) < 4:
         return ", ".join(joints)
-    index = {jid: i for i, jid in enumerate(f.joint_ids)}
     by_frame: dict[str, list[str]] = {}
     for jid in joints:
         fr = frames[index[jid]]
         if not fr or "." not in jid:
             return ", ".join(joints)
         by_frame.setdefault(fr, []).append(jid.split(".", 1)[1])
-    locals_ = {tuple(sorted(v)) for v in by_frame.values()}
+    locals_ = {tuple(natural_sorted(v)) for v in by_frame.values()}
     order = [fr for fr in dict.fromkeys(frames) if fr in by_frame]
     span = f"frames {order[0]}-{order[-1]}" if len(order) > 2 else \
         " and ".join(f"frame {fr}" for fr in order)

@@ -15,6 +15,8 @@ from spaceframe import Frame, audit, load
 from spaceframe.extrude import extrude, spec_from_document
 from spaceframe.naming import natural_sorted
 
+from common.reference_cases import flat_truss
+
 MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
@@ -124,3 +126,14 @@ def test_numbered_ids_carry_coordinates():
         assert info.description.startswith("Joint J5 (2.5, 0, 1.5) has no members")
     named = audit(Frame.from_arrays(X, E, supports=sup, joint_ids=list("ABCDE")))
     assert named.mode_info[0].description.startswith("Joint E has no members")
+
+
+def test_text_runs_give_numbered_joints_their_place():
+    """The text report's one line for many single-joint modes gives numbered joints their
+    coordinates too.  Derived: a flat truss in z = 0 (6 panels, pinned in-plane) has 9
+    joints free out of its plane (common practice; see tests/common/reference_cases)."""
+    from spaceframe.views.text import render_audit
+
+    text = render_audit(audit(flat_truss(6)))
+    assert "Joints J1 (0, 0, 0), J2 (2, 0, 0), J3 (4, 0, 0)" in text
+    assert "J8 (2, 1.5, 0), J9 (4, 1.5, 0) and 1 more are each free out of the plane" in text
