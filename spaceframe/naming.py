@@ -10,6 +10,8 @@ from __future__ import annotations
 import re
 from typing import Iterable
 
+from .tolerances import DISPLAY
+
 __all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz"]
 
 _DIGITS = re.compile(r"(\d+)")
@@ -89,10 +91,11 @@ def numbered_only(ids, tagged: bool = False) -> bool:
 
 def placed(ident: str, point, size: float = 1.0) -> str:
     """``ident`` with its coordinates: ``J59 (2.5, 0, 1.5)`` (3 significant figures; values
-    below ``1e-9 * size`` written as 0)."""
+    with ``|x| <= Display.zero_coordinate * size`` written as 0)."""
     return f"{ident} ({xyz(point, size)})"
 
 
 def xyz(point, size: float = 1.0) -> str:
     """Coordinates as ``2.5, 0, 1.5`` (3 significant figures; tiny values as 0)."""
-    return ", ".join(f"{0.0 if abs(c) <= 1e-9 * size else c:.3g}" for c in point)
+    return ", ".join(f"{0.0 if abs(c) <= DISPLAY.zero_coordinate * size else c:.3g}"
+                     for c in point)

@@ -91,7 +91,7 @@ def read_drawing(path, *, tol: Tolerances = DEFAULT, layers=None, merge=None, **
     frame = frame_from_edges(points, edges, source=source, tol=tol, dimension=2, merge=merge,
                              what="line")
     _check_near_misses(frame, tol)
-    _warn_crossings(frame)
+    _warn_crossings(frame, tol)
     return frame
 
 
@@ -209,7 +209,7 @@ def _check_near_misses(frame: Frame, tol: Tolerances) -> None:
                      f"([drawing] merge = ...)", path=frame.source)
 
 
-def _warn_crossings(frame: Frame) -> None:
+def _warn_crossings(frame: Frame, tol: Tolerances) -> None:
     a, b = frame.coords[frame.ends[:, 0]], frame.coords[frame.ends[:, 1]]
     m = len(a)
     crossings = []
@@ -223,8 +223,8 @@ def _warn_crossings(frame: Frame) -> None:
         with np.errstate(divide="ignore", invalid="ignore"):
             t = (q[:, 0] * s[:, 1] - q[:, 1] * s[:, 0]) / denom
             u = (q[:, 0] * r[1] - q[:, 1] * r[0]) / denom
-        eps = 1e-9
-        hit = (~shared) & (np.abs(denom) > 1e-12) & (t > eps) & (t < 1 - eps) & (u > eps) & \
+        eps = tol.crossing_margin
+        hit = (~shared) & (np.abs(denom) > tol.parallel_lines) & (t > eps) & (t < 1 - eps) & (u > eps) & \
               (u < 1 - eps)
         for k in np.flatnonzero(hit):
             crossings.append((frame.member_ids[i], frame.member_ids[j[k]], a[i] + t[k] * r))

@@ -28,9 +28,9 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame
+from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 
 __all__ = ["read_mesh", "frame_from_edges", "MESH_SUFFIXES"]
 
@@ -138,8 +138,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
     points = np.asarray(points, dtype=float).reshape(-1, dimension)
     edges = np.asarray(edges, dtype=np.int64).reshape(-1, 2)
     used = np.unique(edges)
-    size = float(np.linalg.norm(points[used].max(axis=0) - points[used].min(axis=0))) \
-        if used.size else 0.0
+    size = bounding_diagonal(points[used])
     limit = tol.merge * size if merge is None else float(merge)
     pairs = cKDTree(points).query_pairs(limit, output_type="ndarray") if len(points) > 1 \
         else np.zeros((0, 2), dtype=np.int64)
@@ -179,7 +178,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
                   restraint_joint=np.zeros(0, dtype=np.int64),
                   restraint_dir=np.zeros((0, dimension)), dimension=dimension,
                   name=stem if name is None else name, source=source)
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)
 
 
 def _point(x) -> str:

@@ -13,8 +13,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..results import AuditResult
+from ..tolerances import DEFAULT, DISPLAY
 
-__all__ = ["Scene", "scene_of", "phases", "view_direction", "AMPLITUDE"]
+__all__ = ["Scene", "scene_of", "phases", "view_direction", "moving_joints", "carrying_members",
+           "AMPLITUDE"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
 AMPLITUDE = 0.12
@@ -92,7 +94,7 @@ class Scene:
         for j, d in self.supports:
             p = self.coords[j]
             side = np.dot(p - centre, d)
-            if abs(side) < 1e-9 * self.extent:
+            if abs(side) < DISPLAY.zero_coordinate * self.extent:
                 side = -1.0 if d[2] > 0.5 else 1.0  # vertical: below; otherwise outward
             sign = 1.0 if side > 0 else -1.0
             end = p + sign * GLYPH * self.unit * d
@@ -131,9 +133,27 @@ def _frames_normal(frames, coords: np.ndarray, ends: np.ndarray) -> np.ndarray |
         return None
     w = coords[ends[:, 1]] - coords[ends[:, 0]]
     _, s, vt = np.linalg.svd(w, full_matrices=False)
-    if len(s) == 3 and s[2] <= 1e-6 * s[0] and s[1] > 1e-6 * s[0]:
+    eps = DEFAULT.direction_rank            # as for the plane of a joint's members
+    if len(s) == 3 and s[2] <= eps * s[0] and s[1] > eps * s[0]:
         return vt[2]
     return None
+
+
+def moving_joints(motion: np.ndarray) -> np.ndarray:
+    """Joints that move in ``motion`` ``(n, d)``, ``(n,) bool``.
+
+    ``|u_j| > moving * max |u|``, ``moving`` from :class:`~spaceframe.tolerances.Display`.
+    """
+    size = np.linalg.norm(motion, axis=1)
+    return size > DISPLAY.moving * size.max() if size.size else np.zeros(0, bool)
+
+
+def carrying_members(forces: np.ndarray) -> np.ndarray:
+    """Members that carry a state of self-stress ``forces`` ``(m,)``, ``(m,) bool``.
+
+    ``|t_e| > floor``, ``floor`` from :class:`~spaceframe.tolerances.Display`.
+    """
+    return np.abs(forces) > DISPLAY.floor
 
 
 def phases(n: int) -> np.ndarray:
