@@ -52,7 +52,6 @@ Rows are in the order tasks complete, not the order of the variants.
 from __future__ import annotations
 
 import csv
-import difflib
 import io
 import json
 import os
@@ -64,9 +63,11 @@ from pathlib import Path
 
 import numpy as np
 
+from ._optional import require
 from .errors import ModelError, SpaceframeError, SpaceframeWarning
+from .io.output import check_output
 from .model import Frame
-from .suggest import closest
+from .suggest import closest, did_you_mean
 
 __all__ = ["Variant", "VariantSet", "Task", "COLUMNS", "BASE", "read_variants", "expand",
            "apply_variant", "audit_task", "error_row", "ResultsFile", "run_batch",
@@ -405,7 +406,7 @@ def apply_variant(frame: Frame, variant: Variant) -> Frame:
     def joint(jid, key):
         if jid not in jindex:
             raise fail(f"{key} names joint {jid!r}, which is not in {model}; correct the id"
-                       f"{_nearest(jid, jindex)}", jid)
+                       f"{did_you_mean(jid, jindex)}", jid)
         return jindex[jid]
 
     d = frame.dimension
@@ -420,7 +421,7 @@ def apply_variant(frame: Frame, variant: Variant) -> Frame:
     for mid in variant.remove_members:
         if mid not in mindex:
             raise fail(f"remove_members names member {mid!r}, which is not in {model}; "
-                       f"correct the id{_nearest(mid, mindex)}", mid)
+                       f"correct the id{did_you_mean(mid, mindex)}", mid)
         keep[mindex[mid]] = False
     member_ids = [m for m, k in zip(frame.member_ids, keep) if k]
     ends = [list(e) for e in frame.ends[keep].tolist()]
@@ -465,11 +466,6 @@ def apply_variant(frame: Frame, variant: Variant) -> Frame:
         return check_frame(changed)
     except ModelError as exc:
         raise fail(f"the changed frame is not valid: {exc}") from None
-
-
-def _nearest(word: str, choices) -> str:
-    close = difflib.get_close_matches(word, list(choices), n=1)
-    return f" (did you mean {close[0]!r}?)" if close else ""
 
 
 # ---------------------------------------------------------------- on a worker
@@ -544,28 +540,23 @@ class ResultsFile:
         cut off; a file with other columns is refused.
     force : bool
         Replace an existing file.
+    inputs : iterable of path-like, optional
+        The files the batch reads (models, the variants file): never written.
 
     Raises
     ------
-    SpaceframeError
-        For another suffix, an existing file without ``resume`` or ``force``,
-        or a file to resume that is not a results file of this format.
+    ModelError
+        For another suffix, a path that is an input or a folder, or a file to
+        resume that is not a results file of this format.
+    OutputExistsError
+        For an existing file without ``resume`` or ``force``.
     """
 
-    def __init__(self, path, *, resume: bool = False, force: bool = False):
-        self.path = os.fspath(path)
-        self.format = FORMATS.get(Path(self.path).suffix.lower())
-        if self.format is None:
-            raise ModelError("results are written as .csv or .jsonl (JSON lines); give the "
-                             "output one of those suffixes", path=self.path)
+    def __init__(self, path, *, resume: bool = False, force: bool = False, inputs=()):
+        self.path = self.check(path, resume=resume, force=force, inputs=inputs)
+        self.format = FORMATS[Path(self.path).suffix.lower()]
         self.done: set[tuple[str, str]] = set()
         exists = os.path.exists(self.path)
-        if exists and os.path.isdir(self.path):
-            raise ModelError("is a directory; give a file name for the results", path=self.path)
-        if exists and not (resume or force):
-            raise ModelError("already exists and is not overwritten; pass --resume to continue "
-                             "the batch it holds, --force to replace it, or choose another "
-                             "name", path=self.path)
         if exists and resume:
             self._read_done()
             self._file = open(self.path, "a", encoding="utf-8", newline="")
@@ -573,6 +564,15 @@ class ResultsFile:
             self._file = open(self.path, "w", encoding="utf-8", newline="")
             if self.format == "csv":
                 self._write(",".join(COLUMNS) + "\n")
+
+    @staticmethod
+    def check(path, *, resume: bool = False, force: bool = False, inputs=()) -> str:
+        """Check, before any work, that the results may go to ``path`` (see the class).
+
+        Returns the path as a string; raises as the class does.
+        """
+        return check_output(path, inputs=inputs, overwrite=resume or force, suffixes=FORMATS,
+                            what="a results file (CSV or JSON lines)")
 
     def _read_done(self) -> None:
         with open(self.path, "rb") as f:
@@ -638,7 +638,7 @@ class ResultsFile:
 
 def local_cluster(workers: int):
     """A local Dask cluster of ``workers`` single-threaded processes, on 127.0.0.1 only."""
-    from dask.distributed import LocalCluster
+    LocalCluster = require("dask.distributed").LocalCluster
 
     return LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                         host="127.0.0.1", dashboard_address=None)
@@ -671,7 +671,8 @@ def run_batch(tasks, results: ResultsFile, *, scheduler: str | None = None,
     SpaceframeError
         When the scheduler cannot be reached.
     """
-    from dask.distributed import Client, as_completed
+    distributed = require("dask.distributed")
+    Client, as_completed = distributed.Client, distributed.as_completed
 
     tasks = list(tasks)
     if not tasks:
@@ -685,8 +686,8 @@ def run_batch(tasks, results: ResultsFile, *, scheduler: str | None = None,
             try:
                 client = Client(scheduler, timeout="10s")
             except (OSError, TimeoutError, ValueError) as exc:
-                raise SpaceframeError(f"--scheduler {scheduler}: cannot reach a Dask scheduler "
-                                      f"there ({exc}); check the address "
+                raise SpaceframeError(f"cannot reach a Dask scheduler at {scheduler} "
+                                      f"({exc}); check the address "
                                       f"(tcp://HOST:PORT) and that the scheduler is "
                                       f"running") from None
         try:

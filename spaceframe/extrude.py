@@ -61,7 +61,6 @@ name in ``[ties]`` (purlin, ridge, ...), ``brace`` or ``post`` (feet:
 
 from __future__ import annotations
 
-import difflib
 import os
 import warnings
 from dataclasses import dataclass, field
@@ -497,10 +496,9 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT) -> Frame:
 
     def planar_index(jidx: str, section: str, key: str, nth: int = 1) -> int:
         if jidx not in index:
-            close = difflib.get_close_matches(jidx, list(index), n=1)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
             raise spec.error(f"{section} names planar joint {jidx!r}, which is not in the planar "
-                             f"frame{_from(planar)}{hint}; correct the id", section, key, nth,
+                             f"frame{_from(planar)}{did_you_mean(jidx, index)}; correct the id",
+                             section, key, nth,
                              item=jidx)
         return index[jidx]
 

@@ -36,6 +36,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
@@ -97,11 +98,9 @@ def read_drawing(path, *, tol: Tolerances = DEFAULT, layers=None, merge=None, **
 
 def _segments(source: str, suffix: str, layers) -> np.ndarray:
     """Straight segments ``(s, 2, 2)`` of the drawing, in drawing order."""
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading drawings needs the trimesh package: pip install trimesh",
-                         path=source) from None
+    trimesh = require("trimesh")
+    for helper in ("svg.path", "lxml.etree") if suffix == ".svg" else ():
+        require(helper)  # trimesh's SVG loader imports them when it runs
     try:
         if suffix == ".svg":
             data = _svg_selected(source, layers)
@@ -110,9 +109,6 @@ def _segments(source: str, suffix: str, layers) -> np.ndarray:
             path = trimesh.load_path(source)
     except ModelError:
         raise
-    except ImportError as exc:
-        raise ModelError(f"reading {suffix} drawings needs the package {exc.name}: pip install "
-                         f"{'svg.path' if exc.name == 'svg' else exc.name}", path=source) from None
     except Exception as exc:         # the loaders' own errors are many and unrelated
         raise ModelError(f"cannot be read as a {suffix[1:].upper()} drawing ({type(exc).__name__}:"
                          f" {exc}); check the file", path=source) from None

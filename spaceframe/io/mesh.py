@@ -27,6 +27,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
@@ -36,14 +37,6 @@ __all__ = ["read_mesh", "frame_from_edges", "MESH_SUFFIXES"]
 
 #: Suffixes read by :func:`read_mesh`.
 MESH_SUFFIXES = (".stl", ".obj", ".ply", ".off", ".glb", ".gltf")
-
-
-def _trimesh():
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading meshes needs the trimesh package: pip install trimesh") from None
-    return trimesh
 
 
 def read_mesh(path, *, tol: Tolerances = DEFAULT) -> Frame:
@@ -216,7 +209,7 @@ def _check_manifold(edges: np.ndarray, points: np.ndarray, source: str) -> None:
 
 def _loaded_polygons(source: str, file_type: str) -> tuple[np.ndarray, list]:
     """Vertices and polygons as trimesh's loader gives them, scene transforms applied."""
-    trimesh = _trimesh()
+    trimesh = require("trimesh")
     if file_type in ("glb", "gltf"):
         try:
             scene = trimesh.load(source, process=False, force="scene")
