@@ -494,9 +494,7 @@ def _legend_height(legend, w: int, scale: bool = False) -> int:
 def _caption_lines(caption: str, w: int, most: int) -> list[str]:
     """The caption wrapped to width ``w``: every line, or ``most`` (at least 2) with the
     last one cut with an ellipsis."""
-    from PIL import ImageFont
-
-    font = ImageFont.load_default(size=12)
+    font = require("PIL.ImageFont").load_default(size=12)
     lines = _wrap(caption, font, w - 20)
     most = max(int(most), 2)
     if len(lines) <= most:
