@@ -52,6 +52,7 @@ Rows are in the order tasks complete, not the order of the variants.
 from __future__ import annotations
 
 import csv
+import dataclasses
 import io
 import json
 import os
@@ -61,8 +62,7 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 
-import numpy as np
-
+from . import edit
 from ._optional import require
 from .errors import ModelError, SpaceframeError, SpaceframeWarning
 from .io.output import check_output
@@ -410,58 +410,44 @@ def apply_variant(frame: Frame, variant: Variant) -> Frame:
         return jindex[jid]
 
     d = frame.dimension
-    coords = np.array(frame.coords)
     for jid, xyz in variant.move_joints:
         if len(xyz) != d:
             raise fail(f"move_joints gives joint {jid!r} {len(xyz)} coordinates; the model "
                        f"is {d}-dimensional, so give {d}", jid)
-        coords[joint(jid, "move_joints")] = xyz
+    moved = [joint(jid, "move_joints") for jid, _ in variant.move_joints]
+    changed = edit.move_joints(frame, moved, [xyz for _, xyz in variant.move_joints])
 
-    keep = np.ones(frame.n_members, dtype=bool)
+    removed = []
     for mid in variant.remove_members:
         if mid not in mindex:
             raise fail(f"remove_members names member {mid!r}, which is not in {model}; "
                        f"correct the id{did_you_mean(mid, mindex)}", mid)
-        keep[mindex[mid]] = False
-    member_ids = [m for m, k in zip(frame.member_ids, keep) if k]
-    ends = [list(e) for e in frame.ends[keep].tolist()]
+        removed.append(mindex[mid])
     for mid, a, b in variant.add_members:
         if mid in mindex:
             raise fail(f"add_members: member id {mid!r} is already in {model}; give the new "
                        f"member another id", mid)
-        member_ids.append(mid)
-        ends.append([joint(a, "add_members"), joint(b, "add_members")])
-    added = len(variant.add_members)
+    # added before the removal, with the same result (added members come after the kept
+    # ones either way), so that their EA is the median of the model as given
+    changed = edit.add_members(changed, [mid for mid, _, _ in variant.add_members],
+                               [[joint(a, "add_members"), joint(b, "add_members")]
+                                for _, a, b in variant.add_members])
+    changed = edit.remove_members(changed, removed)
 
-    rj, rd = frame.restraint_joint, frame.restraint_dir
-    held = set(rj.tolist())
-    drop = set()
+    held = set(frame.restraint_joint.tolist())
+    freed = []
     for jid in variant.free_supports:
         j = joint(jid, "free_supports")
         if j not in held:
             raise fail(f"free_supports names joint {jid!r}, which has no support in {model}; "
                        f"name a supported joint", jid)
-        drop.add(j)
-    new_j, new_d = [], []
-    for jid, spec in variant.supports:
-        j = joint(jid, "supports")
-        drop.add(j)
-        rows = restraint_rows(spec, d, joint=jid, path=variant.source, line=variant.line)
-        new_j.extend([j] * len(rows))
-        new_d.extend(rows)
-    mask = np.array([j not in drop for j in rj.tolist()], dtype=bool)
-    rj = np.concatenate([rj[mask], np.array(new_j, dtype=np.int64)])
-    rd = np.concatenate([rd[mask], np.array(new_d, dtype=float).reshape(-1, d)])
-
-    member_tags = {k: tuple(v for v, kk in zip(labels, keep) if kk) + ("",) * added
-                   for k, labels in frame.member_tags.items()}
-    props = {k: np.concatenate([v[keep], np.full(added, float(np.median(v)))])
-             for k, v in frame.member_properties.items()}
-    changed = Frame(joint_ids=frame.joint_ids, coords=coords, member_ids=tuple(member_ids),
-                    ends=np.array(ends, dtype=np.int64).reshape(-1, 2), restraint_joint=rj,
-                    restraint_dir=rd, dimension=d, name=f"{frame.name} [{variant.name}]",
-                    units=frame.units, source=frame.source, joint_tags=frame.joint_tags,
-                    member_tags=member_tags, member_properties=props)
+        freed.append(j)
+    changed = edit.free_supports(changed, freed)
+    changed = edit.set_supports(changed, {
+        joint(jid, "supports"): restraint_rows(spec, d, joint=jid, path=variant.source,
+                                               line=variant.line)
+        for jid, spec in variant.supports})
+    changed = dataclasses.replace(changed, name=f"{frame.name} [{variant.name}]")
     try:
         return check_frame(changed)
     except ModelError as exc:

@@ -48,8 +48,7 @@ def _joint_indices(frame, ids, option: str):
     return out
 
 
-def _csv_text(result) -> str:
-    doc = result.to_dict()
+def _csv_text(doc: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["item", "id", "start", "end", "joint", "direction", "length", "location",
@@ -124,6 +123,7 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
         from ..io.candidates import read_candidate_list
         from ..io.output import check_output, write_text
         from ..selection import supports_for
+        from ..views.bracing_document import bracing_document
         from ..views.bracing_text import render_bracing
 
         frame = supports_for(load(model), model, supports)
@@ -143,10 +143,11 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
             alternatives=alternatives)
         if write_path:
             save(result.braced, write_path, overwrite=force, inputs=inputs)
+        doc = bracing_document(result) if (csv_path or as_json) else None
         if csv_path:
-            write_text(csv_path, _csv_text(result), overwrite=force)
+            write_text(csv_path, _csv_text(doc), overwrite=force)
         if as_json:
-            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+            click.echo(json.dumps(doc, indent=1, allow_nan=False))
         else:
             click.echo(render_bracing(result), nl=False)
             for path, what in ((write_path, "braced model"), (csv_path, "list")):
