@@ -111,6 +111,10 @@ class AuditResult:
         frame's typical stiffness, ascending: local patterns below 0.1 %.
     soft_displacements : (q, joints, dimension) float
     soft_info : tuple of ModeInfo
+    one_way : OneWayResult or None
+        For a frame with one-way members (member tag ``carries``): whether it
+        is held with them acting one way only, the members that go slack and
+        the motion (:mod:`spaceframe.analysis.oneway`); None without any.
     warnings : tuple of str
     """
 
@@ -140,12 +144,13 @@ class AuditResult:
     soft_ratios: np.ndarray | None = None
     soft_displacements: np.ndarray | None = None
     soft_info: tuple = ()
+    one_way: object = None
     warnings: tuple[str, ...] = field(default_factory=tuple)
 
     @property
     def stable(self) -> bool:
-        """No mechanism at all: the supported frame is kinematically determinate."""
-        return self.mechanisms == 0
+        """Held: no mechanism, and one-way members (if any) hold it acting one way."""
+        return self.mechanisms == 0 and (self.one_way is None or self.one_way.held)
 
     @property
     def rigid(self) -> bool:
@@ -170,18 +175,8 @@ class AuditResult:
         f = self.frame
         modes = []
         for i, kind in enumerate(self.mode_kinds):
-            u = self.mode_displacements[i]
-            moving = np.flatnonzero(np.linalg.norm(u, axis=1) > REPORT_FLOOR)
-            entry = {"kind": kind}
-            if i < len(self.mode_info):
-                info = self.mode_info[i]
-                entry.update({
-                    "description": info.description,
-                    "joints": list(info.joints),
-                    "members": list(info.members),
-                    "direction": [_num(x) for x in info.direction],
-                    "frames": list(info.frames),
-                })
+            entry = _motion_entry(f, kind, self.mode_info[i] if i < len(self.mode_info)
+                                  else None, self.mode_displacements[i])
             order = self.mode_orders[i] if i < len(self.mode_orders) else None
             entry["order"] = order
             if order is not None and self.mode_prestress is not None and \
@@ -189,7 +184,7 @@ class AuditResult:
                 t = self.mode_prestress[i]
                 entry["prestress"] = {f.member_ids[k]: _num(t[k])
                                       for k in np.flatnonzero(np.abs(t) > REPORT_FLOOR)}
-            entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+            entry["displacements"] = entry.pop("displacements")
             modes.append(entry)
         states = []
         for t in self.self_stress_forces:
@@ -226,6 +221,7 @@ class AuditResult:
                     self.soft_ratios if self.soft_ratios is not None else (),
                     self.soft_info,
                     self.soft_displacements if self.soft_displacements is not None else ())],
+            "one_way": self._one_way_dict(),
             "prestress_stable": self.prestress_stable,
             "key_members": list(self.key_members),
             "redundancy": None if self.redundancy is None else
@@ -241,6 +237,36 @@ class AuditResult:
             "warnings": list(self.warnings),
             "caution": CAUTION,
         }
+
+
+    def _one_way_dict(self) -> dict | None:
+        """The ``one_way`` record: None without one-way members."""
+        w = self.one_way
+        if w is None:
+            return None
+        motion = None if w.motion is None else \
+            _motion_entry(self.frame, w.info.kind if w.info else "other", w.info, w.motion)
+        return {"members": {"tension": list(w.tension), "compression": list(w.compression)},
+                "held": w.held,
+                "margin": None if w.margin is None else float(f"{w.margin:.6g}"),
+                "slack": list(w.slack),
+                "motion": motion}
+
+
+def _motion_entry(f: Frame, kind: str, info, u: np.ndarray) -> dict:
+    """A joint movement ``u`` (n, d) and its ModeInfo as a ``mechanism_modes`` entry."""
+    entry = {"kind": kind}
+    if info is not None:
+        entry.update({
+            "description": info.description,
+            "joints": list(info.joints),
+            "members": list(info.members),
+            "direction": [_num(x) for x in info.direction],
+            "frames": list(info.frames),
+        })
+    moving = np.flatnonzero(np.linalg.norm(u, axis=1) > REPORT_FLOOR)
+    entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+    return entry
 
 
 def _num(x: float) -> float:

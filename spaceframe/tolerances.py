@@ -70,6 +70,17 @@ class Tolerances:
         other, ``L`` the longer of the two diagonals, and cross inside both.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    one_way : float
+        A frame with one-way members (:mod:`spaceframe.analysis.oneway`) is
+        held when its best proper state of self-stress, scaled so its largest
+        force is 1, has ``min over one-way members of sigma_e s_e > one_way``
+        (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
+        ``1e-7``: a hundred times the linear programme's feasibility tolerance
+        (``1e-10`` absolute on forces of at most 1, then rounding of the
+        equations), while a real rod force a million times smaller than the
+        largest force in the frame is no force to rely on.  A one-way member
+        counts as going slack in the motion that proves a frame not held when
+        it slackens by more than ``one_way`` of the most slackened one.
     """
 
     rank: float = 1e-6
@@ -82,6 +93,7 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    one_way: float = 1e-7
 
 
 DEFAULT = Tolerances()

@@ -11,6 +11,7 @@ from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
+from .oneway import one_way_test
 from .prestress import prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes
@@ -36,7 +37,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     shape; the internal ones are given in a local basis, classified and
     described (:mod:`spaceframe.analysis.modes`) and tested for stiffening by
     prestress (:mod:`spaceframe.analysis.prestress`).  Key members and
-    redundancy shares come from :mod:`spaceframe.analysis.redundancy`.
+    redundancy shares come from :mod:`spaceframe.analysis.redundancy`.  Members
+    tagged ``carries = tension`` or ``compression`` act one way only; whether
+    the frame is held with them so is decided by
+    :mod:`spaceframe.analysis.oneway` (Roth & Whiteley [3]_); the counts stay
+    those of the frame with every member two-way.
 
     Parameters
     ----------
@@ -90,6 +95,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     .. [2] C. R. Calladine, "Buckminster Fuller's 'tensegrity' structures and
        Clerk Maxwell's rules for the construction of stiff frames", Int. J.
        Solids Struct. 14(2), 161-172, 1978.
+    .. [3] B. Roth and W. Whiteley, "Tensegrity frameworks", Trans. Amer. Math.
+       Soc. 265(2), 419-446, 1981.
     """
     d = frame.dimension
     dofs = free_dofs(frame)
@@ -97,6 +104,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
                            method=method, tol=tol)
     k = decision.mechanisms.shape[1]
+    one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
     _check_rigid_inside(decision.mechanisms, rigid)
     internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
@@ -161,7 +169,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         soft_ratios=soft_ratio, soft_displacements=soft_u,
-        soft_info=soft_info,
+        soft_info=soft_info, one_way=one_way,
         warnings=tuple(warnings))
 
 

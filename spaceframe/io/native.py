@@ -80,7 +80,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import UNITS, Frame
+from ..model import CARRIES, CARRIES_TAG, UNITS, Frame
 from ..supports import AXES, restraint_rows
 from ..tolerances import DEFAULT, Tolerances
 from ..validation import check_frame
@@ -296,6 +296,7 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
     restraint_joint, restraint_dir = _restraints(_section(doc, "supports", at), index,
                                                  dimension, tol, at)
     joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
+    _check_carries(doc, at)
     properties = _properties(doc, member_ids, member_tags, at)
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
@@ -547,6 +548,22 @@ def _tags(doc: dict, joint_ids: tuple, member_ids: tuple,
                            f"tags are [tags.joints.<attribute>] or [tags.members.<attribute>]",
                            line=_tags_line(at, key))
     return out["joints"], out["members"]
+
+
+def _check_carries(doc: dict, at: _Where) -> None:
+    """The labels of ``[tags.members.carries]`` must be ``tension`` or ``compression``.
+
+    Its ids were checked with every tag; a wrong label is named with its line.
+    """
+    from ..suggest import did_you_mean
+
+    table = doc.get("tags", {}).get("members", {}).get(CARRIES_TAG, {})
+    for label in table:
+        if label not in CARRIES:
+            raise ModelError(f"[tags.members.{CARRIES_TAG}] label {label!r} is not known; the "
+                             f"labels are {' and '.join(CARRIES)} (members not listed carry "
+                             f"both){did_you_mean(label, CARRIES)}", path=at.source,
+                             line=_tags_line(at, "members", CARRIES_TAG, label), item=label)
 
 
 def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> dict:

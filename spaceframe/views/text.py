@@ -14,11 +14,23 @@ _AXES = "xyz"
 
 def verdict(r: AuditResult) -> str:
     """One line: is the frame held, and if not, how it can move."""
+    w = r.one_way
     if r.stable:
         extra = (f"; {r.self_stress_states} state{_s(r.self_stress_states)} of self-stress"
                  if r.self_stress_states else "; statically determinate")
+        if w is not None:
+            extra += (f"; its one-way members hold it acting one way only (with rods and props "
+                      f"fitted snug)")
         return (f"HELD - no mechanism: every joint is held in every direction by members and "
                 f"supports{extra}.")
+    if r.mechanisms == 0 and w is not None:
+        if w.motion is None:
+            return ("NOT HELD - no state of self-stress keeps every tension-only member in "
+                    "tension and every compression-only one in compression by a margin; the "
+                    "frame is held only if they carry both ways.")
+        return (f"NOT HELD - held only while every member carries both ways; as modelled, "
+                f"{_one_way_motion(w)} Add a member or a restraint that resists this movement, "
+                f"or use members that carry both ways.")
     if r.rigid:
         return (f"NOT HELD - the frame keeps its shape but can move as one rigid body on its "
                 f"supports ({r.rigid_body_modes} rigid-body mode{_s(r.rigid_body_modes)}): "
@@ -134,6 +146,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                      f"frame's typical joint stiffness; {ea}):")
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: {info.description}")
+    lines.extend(_one_way_lines(r))
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
         lines.append("")
@@ -142,6 +155,45 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     lines.append("Verdict: " + verdict(r))
     lines.append("Caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _one_way_motion(w) -> str:
+    """``"joints ... move ...: R1 goes slack ..."`` with a lower-case start."""
+    text = w.info.description
+    return text[0].lower() + text[1:]
+
+
+def _one_way_lines(r: AuditResult) -> list[str]:
+    """The one-way members and the verdict with them acting one way (Roth & Whiteley)."""
+    w = r.one_way
+    if w is None:
+        return []
+    kinds = []
+    if w.tension:
+        kinds.append(f"tension only (rods, guys) {_names(w.tension)}")
+    if w.compression:
+        kinds.append(f"compression only (props) {_names(w.compression)}")
+    out = ["", "One-way members: " + "; ".join(kinds)]
+    if r.mechanisms:
+        out.append("  Not tested: the frame has mechanisms even with every member carrying "
+                   "both ways; the mechanisms above come first.")
+    elif w.held:
+        out.append(f"  Held with them acting one way: a state of self-stress keeps every "
+                   f"tension-only member in tension and every compression-only one in "
+                   f"compression (the weakest at {w.margin:.2g} of the largest force), so any "
+                   f"movement that slackens one stretches another member (Roth & Whiteley "
+                   f"1981). This assumes each "
+                   f"is fitted snug: rods taut, props bearing.")
+    elif w.motion is None:
+        out.append(f"  Not held: the best state of self-stress keeps them carrying only "
+                   f"{w.margin:.1e} of its largest force, which is counted as none.")
+    else:
+        out.append(f"  Not held: {_one_way_motion(w)}")
+    return out
+
+
+def _names(ids, most: int = 12) -> str:
+    return ", ".join(ids[:most]) + (f" and {len(ids) - most} more" if len(ids) > most else "")
 
 
 def _pct(ratio: float) -> str:
