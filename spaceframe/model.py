@@ -68,6 +68,12 @@ class Frame:
     member_properties : mapping of str to (m,) float
         Numeric member properties; ``"EA"`` (axial stiffness, any consistent
         unit) weights the soft-mode search.  Absent: uniform.
+    prestress : (m,) float or None
+        The prestress the frame is built and kept in, as the model declares
+        it (member forces, + tension, in any consistent unit): a state of
+        self-stress the frame really carries (pretensioned rods, a
+        tensegrity).  Only a declared prestress lets the audit count a
+        mechanism it stiffens as held.  None: no prestress is designed in.
     """
 
     joint_ids: tuple[str, ...]
@@ -84,6 +90,7 @@ class Frame:
     joint_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_properties: Mapping[str, np.ndarray] = field(default_factory=dict)
+    prestress: np.ndarray | None = None
 
     def __post_init__(self):
         d = self.dimension
@@ -131,6 +138,13 @@ class Frame:
             arr.setflags(write=False)
             props[str(key)] = arr
         object.__setattr__(self, "member_properties", MappingProxyType(props))
+        if self.prestress is not None:
+            t = np.array(self.prestress, dtype=float).reshape(-1)
+            if len(t) != len(ends) or not np.all(np.isfinite(t)) or not np.any(t):
+                raise ModelError(f"the prestress needs one finite force per member "
+                                 f"({len(ends)}), not all zero", path=self.source)
+            t.setflags(write=False)
+            object.__setattr__(self, "prestress", t)
 
     @property
     def n_joints(self) -> int:

@@ -115,6 +115,10 @@ class AuditResult:
         For a frame with one-way members (member tag ``carries``): whether it
         is held with them acting one way only, the members that go slack and
         the motion (:mod:`spaceframe.analysis.oneway`); None without any.
+    declared_prestress : DeclaredPrestress or None
+        The prestress the model declares (``[prestress]``) tested on the
+        internal mechanisms; None when it declares none.  Only then can a
+        frame with mechanisms be ``stable``.
     warnings : tuple of str
     """
 
@@ -145,12 +149,23 @@ class AuditResult:
     soft_displacements: np.ndarray | None = None
     soft_info: tuple = ()
     one_way: object = None
+    declared_prestress: object = None
     warnings: tuple[str, ...] = field(default_factory=tuple)
 
     @property
     def stable(self) -> bool:
-        """Held: no mechanism, and one-way members (if any) hold it acting one way."""
-        return self.mechanisms == 0 and (self.one_way is None or self.one_way.held)
+        """Held: no mechanism (or only those a declared prestress holds), one-way members held.
+
+        A mechanism counts as held only when the model declares the prestress
+        it is built and kept in and that prestress stiffens every internal
+        mechanism (with no rigid-body motion); a prestress the frame merely
+        could carry never does.
+        """
+        if self.one_way is not None and not self.one_way.held:
+            return False
+        if self.mechanisms == 0:
+            return True
+        return self.declared_prestress is not None and self.declared_prestress.holds
 
     @property
     def rigid(self) -> bool:
@@ -222,6 +237,12 @@ class AuditResult:
                     self.soft_info,
                     self.soft_displacements if self.soft_displacements is not None else ())],
             "one_way": self._one_way_dict(),
+            "declared_prestress": None if self.declared_prestress is None else {
+                "forces": {f.member_ids[k]: float(v) for k, v in
+                           enumerate(self.declared_prestress.forces) if v},
+                "holds": self.declared_prestress.holds,
+                "stiffened_modes": [int(i) + 1 for i in
+                                    np.flatnonzero(self.declared_prestress.stiffens)]},
             "prestress_stable": self.prestress_stable,
             "key_members": list(self.key_members),
             "redundancy": None if self.redundancy is None else

@@ -81,6 +81,13 @@ class Tolerances:
         largest force in the frame is no force to rely on.  A one-way member
         counts as going slack in the motion that proves a frame not held when
         it slackens by more than ``one_way`` of the most slackened one.
+    prestress_balance : float
+        A prestress the model declares (``[prestress]``) must be a state of
+        self-stress: at every joint, the force its members' prestress leaves
+        in the directions no support holds must be
+        ``<= prestress_balance * max |t|``, ``t`` the declared member forces.
+        Default ``1e-3``: forces typed to four significant figures pass, a
+        member left out of the list (a whole force unbalanced) does not.
     """
 
     rank: float = 1e-6
@@ -94,6 +101,7 @@ class Tolerances:
     select: float = 1e-6
     panel_plane: float = 1e-4
     one_way: float = 1e-7
+    prestress_balance: float = 1e-3
 
 
 DEFAULT = Tolerances()

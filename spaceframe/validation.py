@@ -236,4 +236,21 @@ def _drop_repeated_members(frame: Frame, line) -> Frame:
                                member_tags={k: tuple(compress(v, keep))
                                             for k, v in frame.member_tags.items()},
                                member_properties={k: v[keep] for k, v in
-                                                  frame.member_properties.items()})
+                                                  frame.member_properties.items()},
+                               prestress=None if frame.prestress is None else
+                               _merged_prestress(frame, keep))
+
+
+def _merged_prestress(frame: Frame, keep: np.ndarray) -> np.ndarray:
+    """The declared prestress with each repeated member's force added to the one kept.
+
+    Two bars between the same pins act as one, so the one kept carries both
+    forces; the state stays in equilibrium.
+    """
+    lo = np.minimum(frame.ends[:, 0], frame.ends[:, 1])
+    hi = np.maximum(frame.ends[:, 0], frame.ends[:, 1])
+    kept = {(a, b): k for k, (a, b) in enumerate(zip(lo, hi)) if keep[k]}
+    t = np.zeros(frame.n_members)
+    for k, (a, b) in enumerate(zip(lo, hi)):
+        t[kept[(a, b)]] += frame.prestress[k]
+    return t[keep]

@@ -12,7 +12,7 @@ from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to
 from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
 from .oneway import one_way_test
-from .prestress import prestress_test, product_forces
+from .prestress import declared_prestress_test, prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes
 
@@ -104,7 +104,6 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
                            method=method, tol=tol)
     k = decision.mechanisms.shape[1]
-    one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
     _check_rigid_inside(decision.mechanisms, rigid)
     internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
@@ -126,6 +125,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
     pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:])
+    declared = declared_prestress_test(frame, C, dofs, modes[:ni],
+                                       rigid_body_modes=rigid.shape[1], tol=tol)
+    one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol,
+                           prestress=declared.forces if declared and declared.holds else None)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
                       projected=both[:, :2])
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
@@ -169,7 +172,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         soft_ratios=soft_ratio, soft_displacements=soft_u,
-        soft_info=soft_info, one_way=one_way,
+        soft_info=soft_info, one_way=one_way, declared_prestress=declared,
         warnings=tuple(warnings))
 
 

@@ -111,6 +111,7 @@ class OneWayResult:
 
 
 def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
+                 prestress: np.ndarray | None = None,
                  tol: Tolerances = DEFAULT) -> OneWayResult | None:
     """Decide whether a frame with one-way members is held (Roth & Whiteley).
 
@@ -126,6 +127,13 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
         The free coordinates of ``C`` (to give the motion in joint terms).
     mechanisms : int
         The number of mechanisms of the two-way frame.
+    prestress : (m,) float, optional
+        A declared prestress that holds those mechanisms
+        (:func:`spaceframe.analysis.prestress.declared_prestress_test`): with
+        mechanisms, the frame is then held with its one-way members when that
+        prestress keeps each of them in its one way, by more than
+        ``tol.one_way`` of its largest force (Connelly & Whiteley's prestress
+        stability of a tensegrity with that proper stress).
     tol : Tolerances, keyword-only
         ``tol.one_way`` decides ``t*``.
 
@@ -174,10 +182,15 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
         return None
     ids = frame.member_ids
     names = (tuple(ids[i] for i in ten), tuple(ids[i] for i in com))
-    if mechanisms:
-        return OneWayResult(*names, held=False, margin=None)
     one = np.concatenate([ten, com])
     sigma = np.concatenate([np.ones(len(ten)), -np.ones(len(com))])
+    if mechanisms and prestress is not None:
+        t = prestress / np.abs(prestress).max()
+        margin = float(np.min(sigma * t[one]))
+        return OneWayResult(*names, held=margin > tol.one_way, margin=margin,
+                            state=t if margin > tol.one_way else None)
+    if mechanisms:
+        return OneWayResult(*names, held=False, margin=None)
     C = sp.csr_matrix(C)
     margin, state = _proper_state(C, one, sigma)
     if margin > tol.one_way:

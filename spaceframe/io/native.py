@@ -89,7 +89,8 @@ __all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_j
            "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties",
+        "prestress")
 #: Top-level keys reserved for later versions: accepted and ignored.
 RESERVED_KEYS = ("groups", "loads", "notes")
 
@@ -302,7 +303,7 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
                   dimension=dimension, name=name, units=units, source=source,
                   joint_tags=joint_tags, member_tags=member_tags,
-                  member_properties=properties)
+                  member_properties=properties, prestress=_prestress(doc, member_ids, at))
     return check_frame(frame, tol=tol, locate=at.line)
 
 
@@ -564,6 +565,50 @@ def _check_carries(doc: dict, at: _Where) -> None:
                              f"labels are {' and '.join(CARRIES)} (members not listed carry "
                              f"both){did_you_mean(label, CARRIES)}", path=at.source,
                              line=_tags_line(at, "members", CARRIES_TAG, label), item=label)
+
+
+def _prestress(doc: dict, member_ids: tuple, at: _Where) -> np.ndarray | None:
+    """The declared prestress ``[prestress]``: member id = force (+ tension); others 0.
+
+    Whether it is a state of self-stress is checked by the audit, which has the
+    equilibrium matrix.
+    """
+    from ..suggest import did_you_mean
+
+    table = doc.get("prestress")
+    if table is None:
+        return None
+
+    def line(item):
+        if at.text is None:
+            return None
+        found = (_json_lines(at.text, "prestress", item) if at.syntax == "json" else
+                 _toml_lines(at.text.splitlines(), "prestress", item))
+        return found[0] if found else None
+
+    if not isinstance(table, dict) or not table:
+        raise at.error(f"prestress must be a table {at.ref('prestress')} of member = force "
+                       f"(+ tension), e.g. {at.pair('R1', '12.5')}, listing every member that "
+                       f"carries the prestress the frame is built and kept in", "key",
+                       "prestress")
+    index = dict(zip(member_ids, range(len(member_ids))))
+    t = np.zeros(len(member_ids))
+    for key, value in table.items():
+        k = index.get(key)
+        if k is None:
+            raise ModelError(f"{at.ref('prestress')} names member {key!r}, which is not in "
+                             f"{at.ref('members')}; correct the id or remove the line"
+                             f"{did_you_mean(key, index)}", path=at.source, line=line(key),
+                             item=key)
+        if isinstance(value, bool) or not isinstance(value, _NUMBER) or not np.isfinite(value):
+            raise ModelError(f"{at.ref('prestress')} {key!r}: give the member's force as a "
+                             f"number (+ tension, - compression), not {value!r}",
+                             path=at.source, line=line(key), item=key)
+        t[k] = value
+    if not np.any(t):
+        raise at.error(f"{at.ref('prestress')} gives every member zero force; remove it, or "
+                       f"give the forces the frame is prestressed with", "key", "prestress")
+    return t
 
 
 def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> dict:
@@ -1032,6 +1077,10 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
     for name, items in _property_rows(frame):
         out += ["", f"[properties.members.{_toml_id(name)}]"]
         out += [f"{_toml_id(key)} = {float(v)!r}" for key, v in items]
+    if frame.prestress is not None:
+        out += ["", "[prestress]"]
+        out += [f"{_toml_id(mid)} = {float(v)!r}" for mid, v in
+                zip(frame.member_ids, frame.prestress) if v]
     _write(target, "\n".join(out) + "\n", overwrite)
 
 
@@ -1104,4 +1153,7 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
         inner = ",\n".join(f"    {_quote(name)}: {{" + ", ".join(
             f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
         body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
+    if frame.prestress is not None:
+        body.append(block("prestress", [(_quote(mid), repr(float(v))) for mid, v in
+                                        zip(frame.member_ids, frame.prestress) if v]))
     _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)
