@@ -320,3 +320,22 @@ def test_json_motion_has_the_form_of_a_mechanism_mode():
                                 "frames", "displacements"}
     assert w["motion"]["displacements"]["D"] == [-1.0, 0.0]
     assert doc["stable"] is False and doc["mechanisms"] == 0
+
+
+def test_pretensioned_string_of_rods_is_held_only_by_its_declared_tension():
+    """Connelly & Whiteley, "Second-order rigidity and prestress stability for tensegrity
+    frameworks", SIAM J. Discrete Math. 9(3), 1996: a proper state of self-stress that
+    stiffens every first-order flex holds a tensegrity.  Two collinear rods between pins,
+    pretensioned: held; without the declared prestress, or with the rods declared in
+    compression (which they cannot carry), not."""
+    coords = {"A": (0, 0), "B": (2, 0), "C": (4, 0)}
+    members = {"AB": ("A", "B"), "BC": ("B", "C")}
+    pins = {"A": "pin", "C": "pin"}
+    rods = {"AB": "tension", "BC": "tension"}
+    r = audit(frame(coords, members, pins, rods))
+    assert r.mechanisms == 1 and not r.stable and r.one_way.margin is None
+    r = audit(frame(coords, members, pins, rods, prestress=[3.0, 3.0]))
+    assert r.stable and r.one_way.held and r.one_way.margin == pytest.approx(1.0)
+    r = audit(frame(coords, members, pins, {"AB": "compression", "BC": "compression"},
+                    prestress=[3.0, 3.0]))
+    assert not r.stable and not r.one_way.held
