@@ -84,7 +84,8 @@ def read_npz(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   restraint_joint=data["restraint_joint"], restraint_dir=data["restraint_dir"],
                   dimension=int(data["dimension"]), name=str(data.get("name", "")),
                   units=units, source=source, joint_tags=tags["joint"],
-                  member_tags=tags["member"], member_properties=props)
+                  member_tags=tags["member"], member_properties=props,
+                  prestress=np.asarray(data["prestress"], float) if "prestress" in data else None)
     if len(frame.member_ids) != m:  # pragma: no cover - Frame checks the lengths
         raise ModelError("the archive's member arrays differ in length", path=source)
     return check_frame(frame, tol=tol)
@@ -113,6 +114,8 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
         arrays[f"member_tag:{name}"] = np.array(labels, dtype=str)
     for name, values in frame.member_properties.items():
         arrays[f"member_property:{name}"] = np.asarray(values, float)
+    if frame.prestress is not None:
+        arrays["prestress"] = np.asarray(frame.prestress, float)
     tmp = target + ".part.npz"
     try:
         np.savez(tmp, **arrays)

@@ -81,6 +81,12 @@ def report_document(result: AuditResult, bracing=None) -> dict:
         m.pop("displacements", None)
         m.pop("prestress", None)
         m["members"] = []
+    if s.one_way is not None:  # listed after the mechanisms, as the scene holds it
+        motion = dict(audit["one_way"]["motion"], order="one way only: the reverse is resisted")
+        motion["kind"] = f"one-way ({motion['kind']})"
+        motion.pop("displacements", None)
+        motion["members"] = []
+        audit["mechanism_modes"].append(motion)
     audit["self_stress_modes"] = []
     audit["redundancy"] = None
     for sm in audit.get("soft_modes", []):
@@ -101,6 +107,7 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "glyph": GLYPH,
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
+            "one_way": s.one_way,
             "moving": moving,
             "forces": [np.round(np.asarray(t, float), 3).tolist() for t in result.self_stress_forces],
             "views": [r6(view_direction(s.coords, u)) for u in s.modes],

@@ -36,9 +36,12 @@ class Scene:
     extent : float
         Largest side of the joints' bounding box (1 for a single point).
     modes : (p, n, 3) float
-        The audit's mechanisms (largest joint movement 1), in its order.
+        The audit's mechanisms (largest joint movement 1), in its order, then
+        the one-way motion of a frame its one-way members do not hold.
     supports : list of (joint index, (3,) unit vector)
         One entry per restrained direction.
+    one_way : int or None
+        Index in ``modes`` of that one-way motion (it goes one way only).
     """
 
     coords: np.ndarray
@@ -46,16 +49,20 @@ class Scene:
     extent: float
     modes: np.ndarray
     supports: list
+    one_way: int | None = None
 
     def displaced(self, mode: int | None, phase: float) -> np.ndarray:
         """Joint positions ``(n, 3)`` at ``phase`` (radians) of mode ``mode`` (0-based).
 
         The movement is ``AMPLITUDE * extent * sin(phase) * u``: a seamless loop
         over ``phase`` in ``[0, 2 pi)``.  ``mode=None`` is the frame at rest.
+        The one-way motion goes out and back on one side only, by
+        ``(1 + sin(phase)) / 2``: the reverse movement is resisted.
         """
         if mode is None:
             return self.coords.copy()
-        return self.coords + AMPLITUDE * self.extent * np.sin(phase) * self.modes[mode]
+        a = (1.0 + np.sin(phase)) / 2 if mode == self.one_way else np.sin(phase)
+        return self.coords + AMPLITUDE * self.extent * a * self.modes[mode]
 
     def glyphs(self) -> list[tuple[np.ndarray, np.ndarray, np.ndarray]]:
         """Support glyphs: one stalk per held direction, ``(start, end, direction)``.
@@ -86,13 +93,18 @@ def scene_of(result: AuditResult) -> Scene:
     f = result.frame
     coords = _embed(np.asarray(f.coords, float), f.dimension)
     modes = np.asarray(result.mode_displacements, float)
+    w = result.one_way
+    one_way = None
+    if w is not None and w.motion is not None:
+        one_way = len(modes)
+        modes = np.concatenate([modes.reshape(-1, *w.motion.shape), w.motion[None]])
     modes = np.stack([_embed(u, f.dimension) for u in modes]) if len(modes) else \
         np.zeros((0, len(coords), 3))
     dirs = _embed(np.asarray(f.restraint_dir, float), f.dimension)
     extent = float(np.ptp(coords, axis=0).max()) if len(coords) > 1 else 0.0
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]
     return Scene(coords=coords, ends=np.asarray(f.ends, np.int64), extent=extent or 1.0,
-                 modes=modes, supports=supports)
+                 modes=modes, supports=supports, one_way=one_way)
 
 
 def phases(n: int) -> np.ndarray:

@@ -128,3 +128,15 @@ def test_cli_bad_prestress_exits_2(write, table, line, pieces):
     assert (f"{path}:{line}: " if line else f"{path}: ") in res.output, res.output
     for p in pieces:
         assert p in res.output, res.output
+
+
+@pytest.mark.parametrize("suffix", [".toml", ".json", ".npz"])
+def test_declared_prestress_is_written_and_read_back(tmp_path, suffix):
+    from spaceframe import load
+    from spaceframe.io import save
+
+    f = dataclasses.replace(collinear_pair(3), prestress=[2.5, 2.5])
+    save(f, tmp_path / f"m{suffix}")
+    back = load(tmp_path / f"m{suffix}")
+    assert back.prestress.tolist() == [2.5, 2.5]
+    assert audit(back).stable
