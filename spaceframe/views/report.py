@@ -29,8 +29,9 @@ __all__ = ["render_report", "report_document", "asset"]
 LIMITS = (
     "Pin-jointed idealisation: members carry axial force only, joints are frictionless pins; "
     "bending stiffness and joint fixity are ignored.",
-    "First-order analysis: a mechanism found may be infinitesimal only; relying on prestress "
-    "for stability is a design decision for a competent engineer.",
+    "First-order analysis: a mechanism found may be infinitesimal only; one that a prestress "
+    "would stiffen is still a mechanism unless the model declares that prestress, and "
+    "relying on prestress for stability is a design decision for a competent engineer.",
     "Stability of the idealised frame only: no loads, member sizing, buckling or connection "
     "design.",
     "Movements in the 3D view are drawn enlarged, at "
