@@ -75,9 +75,9 @@ class Tolerances:
         held when its best proper state of self-stress, scaled so its largest
         force is 1, has ``min over one-way members of sigma_e s_e > one_way``
         (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
-        ``1e-7``: a hundred times the linear programme's feasibility tolerance
-        (``1e-10`` absolute on forces of at most 1, then rounding of the
-        equations), while a real rod force a million times smaller than the
+        ``1e-7``: a hundred times the linear programmes' feasibility tolerance
+        (``1e-9`` absolute on forces of at most 1; tighter, HiGHS's
+        interior-point method stalls on frames of a few thousand members), while a real rod force a million times smaller than the
         largest force in the frame is no force to rely on.  A one-way member
         counts as going slack in the motion that proves a frame not held when
         it slackens by more than ``one_way`` of the most slackened one.

