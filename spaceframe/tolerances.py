@@ -75,10 +75,11 @@ class Tolerances:
         held when its best proper state of self-stress, scaled so its largest
         force is 1, has ``min over one-way members of sigma_e s_e > one_way``
         (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
-        ``1e-7``: a hundred times the linear programmes' feasibility tolerance
-        (``1e-9`` absolute on forces of at most 1; tighter, HiGHS's
-        interior-point method stalls on frames of a few thousand members), while a real rod force a million times smaller than the
-        largest force in the frame is no force to rely on.  A one-way member
+        ``1e-5``: a hundred times the linear programmes' feasibility tolerance
+        (``1e-7`` absolute on forces of at most 1, HiGHS's default; tighter,
+        its interior-point method stalls on frames of 20,000 members), while a
+        rod force a hundred thousand times smaller than the largest force in
+        the frame is no force to rely on.  A one-way member
         counts as going slack in the motion that proves a frame not held when
         it slackens by more than ``one_way`` of the most slackened one.
     prestress_balance : float
@@ -100,7 +101,7 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
-    one_way: float = 1e-7
+    one_way: float = 1e-5
     prestress_balance: float = 1e-3
 
 
