@@ -46,9 +46,6 @@ __all__ = ["PrestressResult", "DeclaredPrestress", "prestress_test", "declared_p
 STIFFENED = "first-order: stiffened only if built and kept prestressed"
 NOT_STIFFENED = "not stiffened by any prestress"
 
-#: ``|P p| > STIFFENING * |p|`` counts as a stiffening component.
-STIFFENING = 1e-8
-
 
 @dataclass(frozen=True)
 class PrestressResult:
@@ -156,7 +153,7 @@ def declared_prestress_test(frame: Frame, C, dofs, modes: np.ndarray, *, rigid_b
     L = frame.lengths()
     M = _stress_form(du, L, t)
     M_abs = _stress_form(du, L, np.abs(t))
-    scale = STIFFENING * max(float(np.abs(M_abs).max()), 1e-300)
+    scale = tol.stiffening * max(float(np.abs(M_abs).max()), 1e-300)
     stiffens = np.diag(M) > scale
     holds = bool(rigid_body_modes == 0 and np.linalg.eigvalsh(M)[0] > scale)
     return DeclaredPrestress(t, stiffens, holds)
@@ -180,7 +177,8 @@ def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
 
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,
-                   projected: np.ndarray | None = None) -> PrestressResult:
+                   projected: np.ndarray | None = None,
+                   tol: Tolerances = DEFAULT) -> PrestressResult:
     """Apply the product-force test to internal mechanisms.
 
     Parameters
@@ -193,6 +191,9 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     projected : (m, k) float, optional
         ``project(product_forces(frame, modes))`` when the caller has already
         computed it (with other columns in the same solves).
+    tol : Tolerances, keyword-only
+        ``tol.stiffening`` decides a stiffening component;
+        ``tol.limits.common_prestress`` caps the search for one state for all.
 
     Returns
     -------
@@ -212,24 +213,25 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     P = project(p) if projected is None else projected
     orders, stress = [], np.zeros((k, m))
     for i in range(k):
-        if np.linalg.norm(P[:, i]) > STIFFENING * max(np.linalg.norm(p[:, i]), 1e-300):
+        if np.linalg.norm(P[:, i]) > tol.stiffening * max(np.linalg.norm(p[:, i]), 1e-300):
             orders.append(STIFFENED)
             stress[i] = P[:, i] / np.max(np.abs(P[:, i]))
         else:
             orders.append(NOT_STIFFENED)
     if NOT_STIFFENED in orders:
         return PrestressResult(tuple(orders), stress, False, None)
-    certificate = _common_prestress(du, L, P, project) if k <= 12 else None
+    certificate = _common_prestress(du, L, P, tol.stiffening) \
+        if k <= tol.limits.common_prestress else None
     return PrestressResult(tuple(orders), stress, True if certificate is not None else None,
                            certificate)
 
 
-def _common_prestress(du, L, P, project):
+def _common_prestress(du, L, P, stiffening):
     """A state of self-stress stiffening every mode at once, or None."""
     k = du.shape[0]
     candidates = [P.sum(axis=1)] + [P[:, i] for i in range(k)]
     for t in candidates:
         M = _stress_form(du, L, t)
-        if np.linalg.eigvalsh(M)[0] > STIFFENING * np.abs(M).max():
+        if np.linalg.eigvalsh(M)[0] > stiffening * np.abs(M).max():
             return t / np.max(np.abs(t))
     return None

@@ -32,7 +32,7 @@ from ..errors import ModelError
 from ..model import Frame
 from ..supports import restraint_rows
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 
 __all__ = ["read_csv_pair", "partner"]
 
@@ -148,4 +148,4 @@ def read_csv_pair(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   restraint_joint=np.array(rj, dtype=np.int64),
                   restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
                   dimension=dimension, name=jfile.stem, source=str(jfile), lines=lines)
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)
