@@ -281,12 +281,19 @@ class Tolerances:
         force is 1, has ``min over one-way members of sigma_e s_e > one_way``
         (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
         ``1e-5``: a hundred times the linear programmes' feasibility tolerance
-        (``1e-7`` absolute on forces of at most 1, HiGHS's default; tighter,
+        (``lp_feasibility``, ``1e-7`` absolute on forces of at most 1; tighter,
         its interior-point method stalls on frames of 20,000 members), while a
         rod force a hundred thousand times smaller than the largest force in
         the frame is no force to rely on.  A one-way member
         counts as going slack in the motion that proves a frame not held when
         it slackens by more than ``one_way`` of the most slackened one.
+    lp_feasibility : float
+        The primal and dual feasibility tolerance given to HiGHS for the two
+        linear programmes of the one-way test: each equation or bound may be
+        missed by ``lp_feasibility`` absolute, on member forces of at most 1
+        and motions whose slackening sums to at most the number of one-way
+        members.  Default ``1e-7`` (HiGHS's own): tighter, its interior-point
+        method stalls on frames of 20,000 members.
     prestress_balance : float
         A prestress the model declares (``[prestress]``) must be a state of
         self-stress: at every joint, the force its members' prestress leaves
@@ -331,6 +338,7 @@ class Tolerances:
     acts: float = 0.01
     hint_stretch: float = 0.1
     one_way: float = 1e-5
+    lp_feasibility: float = 1e-7
     prestress_balance: float = 1e-3
     limits: Limits = Limits()
 

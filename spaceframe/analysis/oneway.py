@@ -60,10 +60,6 @@ from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["OneWayResult", "one_way_test", "one_way_members"]
 
-#: HiGHS's feasibility tolerances for both programmes: well below ``tol.one_way``.
-_LP_FEASIBILITY = 1e-7
-
-
 @dataclass(frozen=True, eq=False)
 class OneWayResult:
     """The verdict on a frame with one-way members.
@@ -201,9 +197,9 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
     C = sp.csr_matrix(C)
     # the motion first: when one exists the frame is not held (no proper state can exist),
     # and that programme is the cheaper of the two
-    u = _slackening_motion(C, one, sigma)
+    u = _slackening_motion(C, one, sigma, tol)
     if u is None:
-        margin, state = _proper_state(C, one, sigma)
+        margin, state = _proper_state(C, one, sigma, tol)
         if margin > tol.one_way:
             state.setflags(write=False)
             return OneWayResult(*names, held=True, margin=margin, state=state)
@@ -259,12 +255,12 @@ def _and(ids) -> str:
     return shown[0] if len(shown) == 1 else ", ".join(shown[:-1]) + " and " + shown[-1]
 
 
-def _linprog(c, **kw):
+def _linprog(c, tol: Tolerances, **kw):
     from scipy.optimize import linprog
 
-    res = linprog(c, method="highs-ipm", options={"primal_feasibility_tolerance": _LP_FEASIBILITY,
-                                              "dual_feasibility_tolerance": _LP_FEASIBILITY},
-                  **kw)
+    options = {"primal_feasibility_tolerance": tol.lp_feasibility,
+               "dual_feasibility_tolerance": tol.lp_feasibility}
+    res = linprog(c, method="highs-ipm", options=options, **kw)
     if res.status != 0:
         raise InternalError(f"the one-way member test's linear programme did not solve "
                             f"({res.message})", stage="one-way members",
@@ -272,7 +268,7 @@ def _linprog(c, **kw):
     return res
 
 
-def _proper_state(C, one, sigma):
+def _proper_state(C, one, sigma, tol: Tolerances):
     """``(t*, s)``: the best proper state of self-stress (largest force 1)."""
     m, n = C.shape
     A_eq = sp.hstack([C.T, sp.csr_matrix((n, 1))]).tocsr()
@@ -283,14 +279,14 @@ def _proper_state(C, one, sigma):
                          shape=(len(one), m + 1))
     c = np.zeros(m + 1)
     c[m] = -1.0
-    res = _linprog(c, A_ub=A_ub, b_ub=np.zeros(len(one)), A_eq=A_eq, b_eq=np.zeros(n),
+    res = _linprog(c, tol, A_ub=A_ub, b_ub=np.zeros(len(one)), A_eq=A_eq, b_eq=np.zeros(n),
                    bounds=np.column_stack([np.r_[-np.ones(m), 0.0], np.r_[np.ones(m), np.inf]]))
     s, t = res.x[:m], float(res.x[m])
     top = np.abs(s).max()
     return (t, s / top) if t > 0 and top > 0 else (t, None)
 
 
-def _slackening_motion(C, one, sigma):
+def _slackening_motion(C, one, sigma, tol: Tolerances):
     """A movement ``u`` (free coordinates) that only slackens one-way members, or None.
 
     Of all such movements (a convex cone), one that slackens every one-way
@@ -306,7 +302,7 @@ def _slackening_motion(C, one, sigma):
     A_ub = sp.vstack([sp.hstack([-slack, zero]), sp.hstack([-slack, eye])]).tocsr()
     A_eq = sp.hstack([C[two], sp.csr_matrix((len(two), k))]).tocsr()
     c = np.concatenate([np.zeros(n), -np.ones(k)])
-    res = _linprog(c, A_ub=A_ub, b_ub=np.zeros(2 * k), A_eq=A_eq, b_eq=np.zeros(len(two)),
+    res = _linprog(c, tol, A_ub=A_ub, b_ub=np.zeros(2 * k), A_eq=A_eq, b_eq=np.zeros(len(two)),
                    bounds=np.column_stack([np.r_[np.full(n, -np.inf), np.zeros(k)],
                                            np.r_[np.full(n, np.inf), np.ones(k)]]))
     return res.x[:n] if -res.fun > 0.5 else None
