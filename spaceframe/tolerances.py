@@ -289,11 +289,11 @@ class Tolerances:
         it slackens by more than ``one_way`` of the most slackened one.
     lp_feasibility : float
         The primal and dual feasibility tolerance given to HiGHS for the two
-        linear programmes of the one-way test: each equation or bound may be
-        missed by ``lp_feasibility`` absolute, on member forces of at most 1
-        and motions whose slackening sums to at most the number of one-way
-        members.  Default ``1e-7`` (HiGHS's own): tighter, its interior-point
-        method stalls on frames of 20,000 members.
+        linear programmes of the one-way test: a point is feasible when every
+        equation and bound holds to ``|violation| <= lp_feasibility``
+        (absolute, on member forces of at most 1).  Default ``1e-7`` (HiGHS's
+        own): tighter, its interior-point method stalls on frames of 20,000
+        members.
     prestress_balance : float
         A prestress the model declares (``[prestress]``) must be a state of
         self-stress: at every joint, the force its members' prestress leaves
