@@ -308,6 +308,32 @@ class Tolerances:
         ||f||`` is a fault of the solve (an internal error), not a verdict.
         Default ``1e-5``: ten times ``mechanism_load``, the most a carried
         load may have on the mechanisms.
+    one_way : float
+        A frame with one-way members (:mod:`spaceframe.analysis.oneway`) is
+        held when its best proper state of self-stress, scaled so its largest
+        force is 1, has ``min over one-way members of sigma_e s_e > one_way``
+        (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
+        ``1e-5``: a hundred times the linear programmes' feasibility tolerance
+        (``lp_feasibility``, ``1e-7`` absolute on forces of at most 1; tighter,
+        its interior-point method stalls on frames of 20,000 members), while a
+        rod force a hundred thousand times smaller than the largest force in
+        the frame is no force to rely on.  A one-way member
+        counts as going slack in the motion that proves a frame not held when
+        it slackens by more than ``one_way`` of the most slackened one.
+    lp_feasibility : float
+        The primal and dual feasibility tolerance given to HiGHS for the two
+        linear programmes of the one-way test: a point is feasible when every
+        equation and bound holds to ``|violation| <= lp_feasibility``
+        (absolute, on member forces of at most 1).  Default ``1e-7`` (HiGHS's
+        own): tighter, its interior-point method stalls on frames of 20,000
+        members.
+    prestress_balance : float
+        A prestress the model declares (``[prestress]``) must be a state of
+        self-stress: at every joint, the force its members' prestress leaves
+        in the directions no support holds must be
+        ``<= prestress_balance * max |t|``, ``t`` the declared member forces.
+        Default ``1e-3``: forces typed to four significant figures pass, a
+        member left out of the list (a whole force unbalanced) does not.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -350,6 +376,9 @@ class Tolerances:
     forces_refined: float = 1e-13
     forces_stalled: float = 0.25
     forces_fault: float = 1e-5
+    one_way: float = 1e-5
+    lp_feasibility: float = 1e-7
+    prestress_balance: float = 1e-3
     limits: Limits = Limits()
 
 

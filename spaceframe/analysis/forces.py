@@ -50,7 +50,7 @@ from ..edit import remove_members
 from ..errors import InternalError, ModelError
 from ..force_results import ExcitedMechanism, ForcesResult
 from ..loads import LoadSet
-from ..model import Frame
+from ..model import Frame, one_way_members
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import FreeDofs, compatibility_matrix, free_dofs
 
@@ -238,12 +238,11 @@ def _solve(frame: Frame, F: np.ndarray, method: str, tol: Tolerances) -> _Solved
 
 def _one_way(frame: Frame) -> tuple[np.ndarray, np.ndarray]:
     """Masks ``(m,) bool`` of tension-only and compression-only members (tag ``carries``)."""
-    labels = frame.member_tags.get("carries")
-    if labels is None:
-        none = np.zeros(frame.n_members, dtype=bool)
-        return none, none.copy()
-    labels = np.array(labels, dtype=object)
-    return labels == "tension", labels == "compression"
+    tension, compression = one_way_members(frame)
+    masks = np.zeros((2, frame.n_members), dtype=bool)
+    masks[0, tension] = True
+    masks[1, compression] = True
+    return masks[0], masks[1]
 
 
 def _settle(frame: Frame, F: np.ndarray, t: np.ndarray, tension_only: np.ndarray,

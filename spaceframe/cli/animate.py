@@ -23,6 +23,9 @@ SUFFIXES = (".gif", ".mp4", ".png")
               help="The mechanism to show, numbered from 1 in the order the audit lists them "
                    "(default 1).")
 @click.option("--all", "every", is_flag=True, help="Every mechanism in turn (each its own rows in a PNG).")
+@click.option("--one-way", "one_way", is_flag=True,
+              help="Show how a frame with one-way members (rods, props) moves when they go "
+                   "slack: out and back on one side only.")
 @click.option("--state", "state", type=int, default=None, metavar="K",
               help="Draw state of self-stress K instead (a still .png): members coloured by force.")
 @click.option("--forces", "case", default=None, metavar="CASE",
@@ -40,8 +43,8 @@ SUFFIXES = (".gif", ".mp4", ".png")
 @supports_option
 @force_option
 @debug_option
-def animate_command(model, out, mode, every, state, case, n, fps, size, quiet, supports, force,
-                    debug):
+def animate_command(model, out, mode, every, one_way, state, case, n, fps, size, quiet, supports,
+                    force, debug):
     """Show how the frame in MODEL can move: one mechanism (or each) drawn through a full
     cycle, the frame at rest ghosted behind, supports as stalks with plates (one per
     direction held), the mode's description as the caption.
@@ -58,8 +61,10 @@ def animate_command(model, out, mode, every, state, case, n, fps, size, quiet, s
         from ..views.progress import progress
         from ..views.render import mode_frames, state_picture, write_frames
 
-        if sum(x is not None and x is not False for x in (mode, state, every or None, case)) > 1:
-            raise SpaceframeError("give one of --mode K, --all, --state K and --forces CASE")
+        if sum(x is not None and x is not False
+               for x in (mode, state, every or None, one_way or None, case)) > 1:
+            raise SpaceframeError("give one of --mode K, --all, --one-way, --state K and "
+                                  "--forces CASE")
         wh = _size(size)
         path = Path(check_output(out, inputs=(model,), overwrite=force, suffixes=SUFFIXES,
                                  what="a picture"))
@@ -82,6 +87,21 @@ def animate_command(model, out, mode, every, state, case, n, fps, size, quiet, s
             write_frames([[state_picture(result, state - 1, size=wh)]], path)
             return
         count = result.mechanisms
+        if one_way:
+            w = result.one_way
+            if w is None or w.motion is None:
+                raise SpaceframeError(
+                    "--one-way: the model has no one-way members (tag them with "
+                    "[tags.members.carries])" if w is None else
+                    "--one-way: the one-way members hold the frame; nothing moves that way"
+                    if w.held else "--one-way: the frame has mechanisms even with every member "
+                                   "carrying both ways; show them with --mode or --all")
+            rows = []
+            poses = n or (6 if path.suffix.lower() == ".png" else 24)
+            with progress(poses, f"rendering {path.name}", quiet=quiet) as step:
+                rows.append(mode_frames(result, count, n=poses, size=wh, on_frame=step))
+            write_frames(rows, path, fps=fps)
+            return
         if mode is not None and not 1 <= mode <= max(count, 1):
             raise SpaceframeError(f"--mode {mode}: the audit found "
                                   f"{counted(count, 'mechanism')}; "

@@ -86,7 +86,8 @@ def read_npz(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   restraint_joint=data["restraint_joint"], restraint_dir=data["restraint_dir"],
                   dimension=int(data["dimension"]), name=str(data.get("name", "")),
                   units=units, source=source, joint_tags=tags["joint"],
-                  member_tags=tags["member"], member_properties=props)
+                  member_tags=tags["member"], member_properties=props,
+                  prestress=np.asarray(data["prestress"], float) if "prestress" in data else None)
     if len(frame.member_ids) != m:  # pragma: no cover - Frame checks the lengths
         raise ModelError("the archive's member arrays differ in length", path=source)
     return checked(frame, tol=tol)
@@ -115,6 +116,8 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
         arrays[f"member_tag:{name}"] = np.array(labels, dtype=str)
     for name, values in frame.member_properties.items():
         arrays[f"member_property:{name}"] = np.asarray(values, float)
+    if frame.prestress is not None:
+        arrays["prestress"] = np.asarray(frame.prestress, float)
     write_file(target, lambda fh: np.savez(fh, **arrays), binary=True, overwrite=overwrite,
                option="overwrite=True")
     if frame.loads is not None:

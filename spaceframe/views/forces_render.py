@@ -11,14 +11,12 @@ force relative to the largest of its kind.  pyvista is imported on first use.
 
 from __future__ import annotations
 
-from types import SimpleNamespace
-
 import numpy as np
 
 from ..errors import SpaceframeError
 from ..force_results import ForcesResult
 from .render import PALETTE, SIZE, _entry, _Stage, force_colours
-from .scene import _embed, scene_of, view_direction
+from .scene import _embed, frame_scene, view_direction
 
 __all__ = ["forces_picture"]
 
@@ -47,8 +45,7 @@ def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
     t = result.shown_forces(case)
     top = float(np.max(np.abs(t))) if t.size else 0.0
     carrying = t != 0
-    scene = scene_of(SimpleNamespace(frame=f, mode_displacements=np.zeros((0, f.n_joints,
-                                                                            f.dimension))))
+    scene = frame_scene(f)
     u = result.force_units
     big_t = int(np.argmax(t)) if t.size else 0
     big_c = int(np.argmin(t)) if t.size else 0

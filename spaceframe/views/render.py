@@ -543,6 +543,10 @@ def _mode_words(result: AuditResult, mode: int | None) -> tuple[str, str]:
     if mode is None:
         return (f"{name}: held", "No mechanism: every joint is held in every direction by "
                                  "members and supports, so nothing moves.")
+    if mode >= result.mechanisms and result.one_way is not None:  # the scene's one-way motion
+        info = result.one_way.info
+        return (f"One-way motion ({info.kind}): {name}",
+                f"{info.description}  (movement drawn at {AMPLITUDE:.0%} of the frame's size)")
     info = result.mode_info[mode] if mode < len(result.mode_info) else None
     kind = result.mode_kinds[mode]
     title = f"Mechanism {mode + 1} of {result.mechanisms} ({kind}): {name}"

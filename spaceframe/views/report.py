@@ -35,9 +35,10 @@ __all__ = ["render_report", "report_document", "asset"]
 LIMITS = (
     "Pin-jointed idealisation: members carry axial force only, joints are frictionless pins; "
     "bending stiffness and joint fixity are ignored.",
-    "First-order analysis: a mechanism found may be infinitesimal only; relying on prestress "
-    "for stability is a design decision for a competent engineer.",
-    "Stability and, where load cases are given, first-order axial forces of the idealised "
+    "First-order analysis: a mechanism found may be infinitesimal only; one that a prestress "
+    "would stiffen is still a mechanism unless the model declares that prestress, and "
+    "relying on prestress for stability is a design decision for a competent engineer.",
+        "Stability and, where load cases are given, first-order axial forces of the idealised "
     "frame only: no member sizing, buckling or connection design; load values are the user's.",
     "Movements in the 3D view are drawn enlarged, at "
     f"{AMPLITUDE:.0%} of the frame's size: the shape of a mechanism, not its size.",
@@ -83,6 +84,12 @@ def report_document(result: AuditResult, bracing=None) -> dict:
         m.pop("displacements", None)
         m.pop("prestress", None)
         m["members"] = []
+    if s.one_way is not None:  # listed after the mechanisms, as the scene holds it
+        motion = dict(audit["one_way"]["motion"], order="one way only: the reverse is resisted")
+        motion["kind"] = f"one-way ({motion['kind']})"
+        motion.pop("displacements", None)
+        motion["members"] = []
+        audit["mechanism_modes"].append(motion)
     audit["self_stress_modes"] = []
     audit["redundancy"] = None
     for sm in audit.get("soft_modes", []):
@@ -103,6 +110,7 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "glyph": GLYPH * s.unit / s.extent,   # the stalk's length over the extent
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
+            "one_way": s.one_way,
             "moving": moving,
             "forces": [np.round(np.asarray(t, float), DISPLAY.force_decimals).tolist()
                        for t in result.self_stress_forces],

@@ -57,7 +57,8 @@
     if (show.mode < 0) return X;
     const u = geo.modes[show.mode];
     const phase = animating ? 2 * Math.PI * ((performance.now() - show.t0) / 2000 % 1) : 0;
-    const a = geo.amplitude * geo.extent * Math.sin(phase);
+    const a = geo.amplitude * geo.extent *                       // the one-way motion: one side only
+      (show.mode === geo.one_way ? (1 + Math.sin(phase)) / 2 : Math.sin(phase));
     return X.map((p, j) => [p[0] + a * u[j][0], p[1] + a * u[j][1], p[2] + a * u[j][2]]);
   }
 

@@ -119,6 +119,10 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
         out += ["", f"[properties.members.{toml_id(name)}]"]
         out += [f"{toml_id(key)} = {float(v)!r}" for key, v in items]
     out += load_tables
+    if frame.prestress is not None:
+        out += ["", "[prestress]"]
+        out += [f"{toml_id(mid)} = {float(v)!r}" for mid, v in
+                zip(frame.member_ids, frame.prestress) if v]
     write_text(target, "\n".join(out) + "\n", overwrite=overwrite, option="overwrite=True")
 
 
@@ -178,6 +182,9 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
             f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
         body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
     body += json_entries(frame.loads)
+    if frame.prestress is not None:
+        body.append(block("prestress", [(_quote(mid), repr(float(v))) for mid, v in
+                                        zip(frame.member_ids, frame.prestress) if v]))
     write_text(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite=overwrite,
                option="overwrite=True")
 
