@@ -80,8 +80,9 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         if r.slack[i]:
             out.append(f"  slack (tension-only, left out): {', '.join(r.slack[i])}")
         out.append(f"  {'member':<{width}}  {'force ' + u:>12}  T/C" + ("  role" if role else ""))
+        dp = _decimals(t)
         for k in order[:max_rows]:
-            out.append(f"  {f.member_ids[k]:<{width}}  {t[k]:>12.4g}  {_state(t[k]):>3}"
+            out.append(f"  {f.member_ids[k]:<{width}}  {t[k]:>12.{dp}f}  {_state(t[k]):>3}"
                        + (f"  {role[k]}" if role else ""))
         if len(order) > max_rows:
             out.append(f"  ... and {len(order) - max_rows} more (--all lists every member)")
@@ -92,9 +93,10 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
             out.append(f"  reactions (force of each support on the frame, {u}):")
             out.append(f"  {'joint':<{jw}}  " + "  ".join(f"{'R' + a:>10}" for a in axes))
             big = np.argsort(-np.linalg.norm(R, axis=1), kind="stable")
+            rp = _decimals(R)
             for k in big[:max_rows]:
                 out.append(f"  {f.joint_ids[r.reaction_joints[k]]:<{jw}}  "
-                           + "  ".join(f"{v:>10.4g}" for v in R[k]))
+                           + "  ".join(f"{v:>10.{rp}f}" for v in R[k]))
             if len(big) > max_rows:
                 out.append(f"  ... and {len(big) - max_rows} more supports")
     out += _envelope_lines(r, width, max_rows)
@@ -102,6 +104,13 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         out += [""] + [f"Warning: {w}" for w in r.warnings]
     out += ["", _verdict(r), "", FORCES_CAUTION]
     return "\n".join(out) + "\n"
+
+
+def _decimals(values) -> int:
+    """Decimals that show four significant figures of the largest value in ``values``:
+    a table's numbers then share one fixed point (``27.00`` beside ``33.75``)."""
+    top = float(np.max(np.abs(values))) if np.size(values) else 0.0
+    return int(min(6, max(0, 3 - np.floor(np.log10(top))))) if top > 0 else 0
 
 
 def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
@@ -120,11 +129,13 @@ def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
            f"  {'member':<{width}}  {'tension ' + u:>12}  {'case':<{cw}}  "
            f"{'compression ' + u:>14}  case"]
 
+    dp = _decimals(peak)
+
     def row(k):
         tc = r.names[env.tension_case[k]] if env.tension_case[k] >= 0 else "-"
         cc = r.names[env.compression_case[k]] if env.compression_case[k] >= 0 else "-"
-        return (f"  {f.member_ids[k]:<{width}}  {env.tension[k]:>12.4g}  {tc:<{cw}}  "
-                f"{env.compression[k]:>14.4g}  {cc}")
+        return (f"  {f.member_ids[k]:<{width}}  {env.tension[k]:>12.{dp}f}  {tc:<{cw}}  "
+                f"{env.compression[k]:>14.{dp}f}  {cc}")
 
     out += [row(k) for k in order[:max_rows]]
     if len(order) > max_rows:
