@@ -70,6 +70,17 @@ class Tolerances:
         other, ``L`` the longer of the two diagonals, and cross inside both.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    local_mechanism : float
+        A direction ``d`` (unit vector in a joint's free coordinates) is a
+        local mechanism of that joint when ``||C_j d|| <= local_mechanism``,
+        ``C_j`` the rows of the joint's members in those coordinates (direction
+        cosines, so the test is dimensionless): it is then taken out before the
+        rank decision (:func:`spaceframe.analysis.nullspace.local_mechanisms`).
+        Default ``1e-9``: exactly collinear or coplanar members give
+        ``||C_j d||`` of about ``1e-16``, and a perturbation this small moves no
+        singular value by more than ``sqrt(2) * 1e-9``, far below the rank
+        threshold ``rank * s_max`` (``s_max >= 1`` for any frame with a member
+        free at both ends), so the decision is the one the global engine makes.
     """
 
     rank: float = 1e-6
@@ -82,6 +93,7 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    local_mechanism: float = 1e-9
 
 
 DEFAULT = Tolerances()

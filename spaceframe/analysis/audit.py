@@ -124,7 +124,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     q = stress.shape[0]
     sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of(),
                     ea=frame.member_properties.get("EA"),
-                    perm=getattr(decision.project, "perm", None)) if soft else None
+                    perm=decision.ordering) if soft else None
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
