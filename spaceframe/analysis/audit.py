@@ -10,12 +10,17 @@ from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
-from .nullspace import canonical_basis, decide_rank
+from .nullspace import canonical_basis, canonical_split, decide_rank
 from .prestress import prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
-from .soft import soft_modes
+from .soft import soft_modes, typical_stiffness
 
-__all__ = ["audit"]
+__all__ = ["audit", "SPLIT_BASIS"]
+
+#: With local mechanisms and more than this many entries (free coordinates x mechanisms),
+#: the mechanism basis is made canonical block by block
+#: (:func:`~spaceframe.analysis.nullspace.canonical_split`) rather than as one dense array.
+SPLIT_BASIS = 1_000_000
 
 
 def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
@@ -96,10 +101,19 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     C = compatibility_matrix(frame, dofs)
     decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
                            method=method, tol=tol)
-    k = decision.mechanisms.shape[1]
+    k = decision.count
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    _check_rigid_inside(decision.mechanisms, rigid)
-    internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
+    # many local mechanisms: their canonical basis block by block, never dense N x k
+    split = decision.local and C.shape[1] * k > SPLIT_BASIS
+    if split:
+        E, piv = canonical_split(decision.local_modes, decision.mechanisms, dofs.joint_of())
+        _check_rigid_inside(decision.mechanisms, rigid, local=decision.local_modes)
+        internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv)
+        internal = internal.toarray()
+    else:
+        whole = decision.all_mechanisms()
+        _check_rigid_inside(whole, rigid)
+        internal, rigid = local_basis(whole, rigid, dofs.joint_of())
     rigid = order_rigid(rigid, dofs, frame.coords)
 
     mech = np.hstack([internal, rigid])
@@ -117,14 +131,26 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     # one projection serves the key-member probes and the product-force test
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
-    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:])
+    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], forces=force)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
                       projected=both[:, :2])
     stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
     q = stress.shape[0]
-    sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of(),
-                    ea=frame.member_properties.get("EA"),
-                    perm=decision.ordering) if soft else None
+    ea = frame.member_properties.get("EA")
+    if not soft:
+        sm = None
+    elif split:
+        # the local mechanisms carry no stiffness: the same soft modes on C restricted
+        # to their complement, with the whole frame's typical stiffness
+        T = decision.rest
+        rest_joint = dofs.joint_of()[T.indices[T.indptr[:-1]]]
+        sm = soft_modes((C @ T).tocsr(), frame.lengths(), np.asarray(T.T @ decision.mechanisms),
+                        rest_joint, ea=ea, perm=getattr(decision.project, "perm", None),
+                        typical=typical_stiffness(C, frame.lengths(), ea))
+        sm = type(sm)(sm.ratios, np.asarray(T @ sm.vectors), sm.checked)
+    else:
+        sm = soft_modes(C, frame.lengths(), decision.all_mechanisms(), dofs.joint_of(), ea=ea,
+                        perm=decision.ordering)
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
@@ -165,10 +191,17 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         warnings=tuple(warnings))
 
 
-def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray) -> None:
-    """The permitted rigid-body motions must lie in the mechanism space found."""
-    k, r = mech.shape[1], rigid.shape[1]
-    if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid)) > 1e-6 * np.sqrt(r)):
+def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, local=None) -> None:
+    """The permitted rigid-body motions must lie in the mechanism space found.
+
+    ``local`` (sparse, orthonormal and orthogonal to ``mech``), where given, is the rest
+    of that space.
+    """
+    k, r = mech.shape[1] + (0 if local is None else local.shape[1]), rigid.shape[1]
+    off = rigid - mech @ (mech.T @ rigid)
+    if local is not None:
+        off -= local @ (local.T @ rigid)
+    if r and (r > k or np.linalg.norm(off) > 1e-6 * np.sqrt(r)):
         raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
                               "not found among the mechanisms; rerun with method='dense' and "
                               "report the model")

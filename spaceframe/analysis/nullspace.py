@@ -54,7 +54,7 @@ from ..errors import SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
-           "DENSE_LIMIT"]
+           "canonical_pivots", "canonical_split", "DENSE_LIMIT"]
 
 #: The dense engine is used when members × free coordinates is at most this.
 DENSE_LIMIT = 100_000
@@ -71,9 +71,12 @@ class RankDecision:
     ----------
     rank : int
         Rank of ``C``.
-    mechanisms : (dofs, k) float
-        Orthonormal basis of the null space of ``C`` (inextensional
-        displacements), in free coordinates.
+    mechanisms : (dofs, k - local) float
+        Orthonormal basis of the mechanisms (inextensional displacements, in
+        free coordinates) that the engine found beyond the local ones; it is
+        orthogonal to ``local_modes``, and with them spans the null space of
+        ``C`` (:meth:`all_mechanisms`).  Without local mechanisms, the whole
+        null space.
     self_stress : (m, q) float
         Orthonormal, independent states of self-stress (in the null space of
         ``C.T``).  The dense engine gives them all; the sparse one at most the
@@ -100,9 +103,12 @@ class RankDecision:
         ``Y - C K^+ C.T Y``: the part of a member force vector that needs no
         load.  ``project.redundancy()`` gives the diagonal of that projector
         (or None where it would cost too much).
-    local : int
-        How many of the mechanisms were found joint by joint
-        (:func:`local_mechanisms`), without the global solve.
+    local_modes : (dofs, local) scipy.sparse.csc_matrix or None
+        The mechanisms found joint by joint (:func:`local_mechanisms`),
+        without the global solve; orthonormal, each confined to one joint.
+    rest : (dofs, dofs - local) scipy.sparse.csc_matrix or None
+        The orthonormal complement of ``local_modes`` the engine worked in
+        (``C @ rest`` is the matrix it decided on); None without local modes.
     ordering : (dofs,) int or None
         The fill-reducing ordering of the free coordinates the sparse engine
         computed for ``C.T C`` (None in the dense engine); any matrix with
@@ -119,8 +125,25 @@ class RankDecision:
     smallest_nonzero: float | None
     method: str
     project: object = None
-    local: int = 0
+    local_modes: sp.csc_matrix | None = None
+    rest: sp.csc_matrix | None = None
     ordering: np.ndarray | None = None
+
+    @property
+    def local(self) -> int:
+        """How many mechanisms were found joint by joint."""
+        return 0 if self.local_modes is None else self.local_modes.shape[1]
+
+    @property
+    def count(self) -> int:
+        """The number of mechanisms, ``dofs - rank``."""
+        return self.local + self.mechanisms.shape[1]
+
+    def all_mechanisms(self) -> np.ndarray:
+        """Orthonormal basis ``(dofs, count)`` of the whole null space, dense: local ones first."""
+        if not self.local:
+            return self.mechanisms
+        return np.hstack([self.local_modes.toarray(), self.mechanisms])
 
 
 @dataclass(frozen=True)
@@ -200,7 +223,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     else:
         reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, full=(C, joint_of))
     L = split.local
-    mech = np.hstack([L.toarray(), split.rest @ reduced.mechanisms])
+    mech = np.asarray(split.rest @ reduced.mechanisms)
     stretch = np.sqrt(np.asarray((C @ L).multiply(C @ L).sum(axis=0)).ravel())
     largest_zero = max([float(stretch.max())] +
                        ([reduced.largest_zero] if reduced.largest_zero is not None else []))
@@ -208,7 +231,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
                         self_stress_count=reduced.self_stress_count, s_max=reduced.s_max,
                         threshold=reduced.threshold, largest_zero=largest_zero,
                         smallest_nonzero=reduced.smallest_nonzero, method=reduced.method,
-                        project=reduced.project, local=split.count,
+                        project=reduced.project, local_modes=L, rest=split.rest,
                         ordering=reduced.ordering if method == "sparse" else None)
 
 
@@ -656,13 +679,122 @@ def canonical_basis(B: np.ndarray) -> np.ndarray:
     -----
     Cost O(N k^2).
     """
+    return canonical_pivots(B)[0]
+
+
+def canonical_pivots(B: np.ndarray):
+    """:func:`canonical_basis` with its pivots and the pivoted QR's ``|R_ii|``.
+
+    Returns
+    -------
+    E : (N, k) float
+    piv : (k,) int
+        Pivot row of each column (``E[piv] = I`` before the scaling).
+    weight : (k,) float
+        ``|R_ii|`` of the column-pivoted QR, non-increasing: the order in which
+        the pivots were taken.
+    """
     N, k = B.shape
     if k == 0:
-        return B.copy()
+        return B.copy(), np.zeros(0, dtype=np.int64), np.zeros(0)
     Q, _ = np.linalg.qr(B)
-    _, _, piv = sla.qr(Q.T, mode="economic", pivoting=True)
+    _, R, piv = sla.qr(Q.T, mode="economic", pivoting=True)
     piv = piv[:k]
     E = np.linalg.solve(Q[piv, :].T, Q.T).T  # E[piv] = I
     E /= np.max(np.abs(E), axis=0)[None, :]
     E[np.abs(E) < 1e-12] = 0.0
-    return E
+    return E, piv, np.abs(np.diag(R))[:k]
+
+
+#: Entries of a mechanism basis below this are rounding (as in :func:`canonical_basis`).
+_ZERO = 1e-12
+
+
+def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray):
+    """:func:`canonical_basis` of ``span(local) (+) span(rest)``, block by block.
+
+    The column-pivoted QR behind the canonical basis acts on the rows of an
+    orthonormal basis ``Q``; two coordinates ``a`` and ``b`` interact only
+    through ``(Q Q.T)[a, b]``.  Split the space into blocks with disjoint
+    coordinate supports (each local mode's joint, unless ``rest`` moves that
+    joint, and ``rest`` with the local modes of the joints it moves); then
+    ``Q Q.T`` is block diagonal, each block's pivots and echelon vectors are
+    those of the block alone, and the greedy pivot order of the whole is the
+    merge of the blocks' orders by ``|R_ii|`` (ties to the lower coordinate,
+    as LAPACK takes the first of equal columns).  So the result is that of
+    ``canonical_pivots(hstack([local, rest]))``, to rounding, at the cost of
+    the coupled block only.
+
+    Parameters
+    ----------
+    local : (N, l) sparse
+        Orthonormal local mechanisms, each confined to one joint.
+    rest : (N, g) float
+        Orthonormal, orthogonal to ``local``.
+    joint_of : (N,) int
+
+    Returns
+    -------
+    E : (N, l + g) scipy.sparse.csc_matrix
+        The canonical basis, columns in pivot order.
+    piv : (l + g,) int
+
+    Notes
+    -----
+    Cost O(nnz(local)) plus O(N_c g_c^2) for the coupled block of ``N_c``
+    coordinates and ``g_c`` vectors.
+    """
+    import heapq
+
+    local = sp.csc_matrix(local)
+    N, l = local.shape
+    g = rest.shape[1]
+    lrow = local.indices[local.indptr[:-1]] if l else np.zeros(0, dtype=np.int64)
+    ljoint = joint_of[lrow]
+    moved = np.abs(rest).max(axis=1) > _ZERO if g else np.zeros(N, dtype=bool)
+    touch = np.zeros(l, dtype=bool)
+    if l:
+        touch = np.maximum.reduceat(moved[local.indices].astype(np.int8),
+                                    local.indptr[:-1]).astype(bool) \
+            if local.nnz else touch
+    coupled_joints = np.unique(ljoint[touch])
+    coupled = np.isin(ljoint, coupled_joints)
+    rows = np.flatnonzero(moved | np.isin(joint_of, coupled_joints))
+    blocks = []                                   # (weights, pivots, (rows, values) per column)
+    if g or coupled.any():
+        B = np.hstack([rest[rows], local[rows][:, np.flatnonzero(coupled)].toarray()])
+        E, piv, w = canonical_pivots(B)
+        cols = [(rows[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i])
+                for i in range(E.shape[1])]
+        blocks.append(list(zip(w.tolist(), rows[piv].tolist(), cols)))
+    free = np.flatnonzero(~coupled)
+    by_joint = {}
+    for i in free.tolist():
+        by_joint.setdefault(int(ljoint[i]), []).append(i)
+    single = [c[0] for c in by_joint.values() if len(c) == 1]
+    if single:
+        sub = local[:, single]
+        for i in range(sub.shape[1]):
+            r = sub.indices[sub.indptr[i]:sub.indptr[i + 1]]
+            v = sub.data[sub.indptr[i]:sub.indptr[i + 1]]
+            top = int(np.argmax(np.abs(v)))
+            e = v / v[top]
+            e[np.abs(e) < _ZERO] = 0.0
+            keep = e != 0
+            blocks.append([(abs(v[top]) / np.linalg.norm(v), int(r[top]), (r[keep], e[keep]))])
+    for cols in (c for c in by_joint.values() if len(c) > 1):
+        sub = local[:, cols]
+        r = np.unique(sub.indices)
+        E, piv, w = canonical_pivots(sub[r].toarray())
+        blocks.append([(wi, int(r[p]), (r[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i]))
+                       for i, (wi, p) in enumerate(zip(w.tolist(), piv.tolist()))])
+    merged = list(heapq.merge(*blocks, key=lambda item: (-item[0], item[1])))
+    k = len(merged)
+    piv = np.array([item[1] for item in merged], dtype=np.int64)
+    indptr = np.zeros(k + 1, dtype=np.int64)
+    np.cumsum([len(item[2][0]) for item in merged], out=indptr[1:])
+    indices = np.concatenate([item[2][0] for item in merged]) if k else np.zeros(0, np.int64)
+    data = np.concatenate([item[2][1] for item in merged]) if k else np.zeros(0)
+    E = sp.csc_matrix((data, indices, indptr), shape=(N, k))
+    E.sort_indices()
+    return E, piv

@@ -85,7 +85,8 @@ def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
 
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,
-                   projected: np.ndarray | None = None) -> PrestressResult:
+                   projected: np.ndarray | None = None,
+                   forces: np.ndarray | None = None) -> PrestressResult:
     """Apply the product-force test to internal mechanisms.
 
     Parameters
@@ -98,6 +99,8 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     projected : (m, k) float, optional
         ``project(product_forces(frame, modes))`` when the caller has already
         computed it (with other columns in the same solves).
+    forces : (m, k) float, optional
+        ``product_forces(frame, modes)``, where the caller computed it.
 
     Returns
     -------
@@ -112,8 +115,7 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     if k == 0:
         return PrestressResult((), np.zeros((0, m)), None, None)
     L = frame.lengths()
-    du = _relative(frame, modes)
-    p = product_forces(frame, modes)
+    p = product_forces(frame, modes) if forces is None else forces
     P = project(p) if projected is None else projected
     orders, stress = [], np.zeros((k, m))
     for i in range(k):
@@ -124,7 +126,7 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
             orders.append(NOT_STIFFENED)
     if NOT_STIFFENED in orders:
         return PrestressResult(tuple(orders), stress, False, None)
-    certificate = _common_prestress(du, L, P, project) if k <= 12 else None
+    certificate = _common_prestress(_relative(frame, modes), L, P, project) if k <= 12 else None
     return PrestressResult(tuple(orders), stress, True if certificate is not None else None,
                            certificate)
 

@@ -24,7 +24,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-__all__ = ["SoftModes", "soft_modes", "SOFT"]
+__all__ = ["SoftModes", "soft_modes", "typical_stiffness", "SOFT"]
 
 #: A mode is reported as soft when its stiffness is below this fraction of the typical
 #: (0.1 %: the bending of a whole truss sits near 0.2 % and is not a weakness).
@@ -54,7 +54,7 @@ class SoftModes:
 
 
 def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = SOFT,
-               ea=None, perm=None) -> SoftModes:
+               ea=None, perm=None, typical: float | None = None) -> SoftModes:
     """The ``count`` softest modes above the mechanisms, kept where softer than ``fraction``.
 
     Parameters
@@ -70,6 +70,10 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
     perm : (N,) int, optional
         A fill-reducing ordering already computed for ``C.T C`` (it has the
         same pattern); computed when absent.
+    typical : float, optional
+        The frame's typical stiffness, when ``C`` is only part of the frame's
+        coordinates (the complement of its local mechanisms, which carry no
+        stiffness); the median diagonal entry of ``K`` when absent.
 
     Notes
     -----
@@ -84,8 +88,9 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
         return empty
     w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
     K = (C.T @ sp.diags(w) @ C).tocsc()
-    diag = K.diagonal()
-    typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
+    if typical is None:
+        diag = K.diagonal()
+        typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
     if typical == 0:
         return empty
     if N <= 1500:
@@ -100,6 +105,17 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
     ratios = vals / typical
     soft = ratios < fraction
     return SoftModes(ratios[soft], vecs[:, soft], width)
+
+
+def typical_stiffness(C, lengths, ea=None) -> float:
+    """The frame's typical stiffness: the median positive diagonal entry of ``C.T diag(EA/L) C``.
+
+    The diagonal is ``sum_e w_e C[e, i]**2``, formed without the matrix: O(nnz(C)).
+    """
+    m = C.shape[0]
+    w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
+    diag = np.asarray(sp.csr_matrix(C).multiply(C).T @ w).ravel()
+    return float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
 
 
 def _iterate(K, typical, mech, joint_of, width, perm, iterations: int = 4):
