@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import SpaceframeError
+from ..errors import InternalError
 from ..model import Frame
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
@@ -15,12 +15,7 @@ from .prestress import prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes, typical_stiffness
 
-__all__ = ["audit", "SPLIT_BASIS"]
-
-#: With local mechanisms and more than this many entries (free coordinates x mechanisms),
-#: the mechanism basis is made canonical block by block
-#: (:func:`~spaceframe.analysis.nullspace.canonical_split`) rather than as one dense array.
-SPLIT_BASIS = 1_000_000
+__all__ = ["audit"]
 
 
 def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
@@ -55,12 +50,14 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         The rank engine (see :mod:`spaceframe.analysis.nullspace`).
     redundancy : bool or None, keyword-only
         Compute every member's redundancy share.  None (default): where it is
-        cheap (the dense engine, or at most 3,000 free coordinates, one solve
-        each); True: always up to 20,000 free coordinates; False: never.
+        cheap (the dense engine, or at most ``tol.limits.redundancy_auto``
+        free coordinates, one solve each); True: always up to
+        ``tol.limits.redundancy_max`` free coordinates; False: never.
     soft : bool, keyword-only
         Look for soft modes (:mod:`spaceframe.analysis.soft`; default True).
     tol : Tolerances, keyword-only
-        ``tol.rank`` is the relative singular value threshold.
+        ``tol.rank`` is the relative singular value threshold; every other
+        test and limit of the audit is a field of it too.
 
     Returns
     -------
@@ -68,8 +65,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
 
     Raises
     ------
-    SpaceframeError
-        When the engine cannot reach a consistent decision.
+    InternalError
+        When the engine breaks down or cannot reach a consistent decision
+        (not the input's fault); its ``partial`` holds the counts known by
+        then (joints, members, restraints, free coordinates, the Maxwell
+        number, and the rank and null-space sizes once decided).
 
     Examples
     --------
@@ -97,32 +97,42 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
        Solids Struct. 14(2), 161-172, 1978.
     """
     d = frame.dimension
-    dofs = free_dofs(frame)
+    dofs = free_dofs(frame, tol=tol)
     C = compatibility_matrix(frame, dofs)
-    decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
-                           method=method, tol=tol)
+    known = {"joints": frame.n_joints, "members": frame.n_members,
+             "restraints": frame.n_restraints, "free_coordinates": C.shape[1],
+             "maxwell": frame.n_members + frame.n_restraints - d * frame.n_joints}
+    try:
+        decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
+                               method=method, tol=tol)
+    except InternalError as exc:
+        exc.partial = {**known, **exc.partial}
+        raise
     k = decision.count
+    known.update(rank=decision.rank, mechanisms=k,
+                 self_stress_states=decision.self_stress_count, engine=decision.method)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
     # many local mechanisms: their canonical basis block by block, never dense N x k
-    split = decision.local and C.shape[1] * k > SPLIT_BASIS
+    split = decision.local and C.shape[1] * k > tol.limits.split_basis
     if split:
-        E, piv = canonical_split(decision.local_modes, decision.mechanisms, dofs.joint_of())
-        _check_rigid_inside(decision.mechanisms, rigid, local=decision.local_modes)
-        internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv)
+        E, piv = canonical_split(decision.local_modes, decision.mechanisms, dofs.joint_of(),
+                                 tol=tol)
+        _check_rigid_inside(decision.mechanisms, rigid, tol, known, local=decision.local_modes)
+        internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv, tol=tol)
         internal = internal.toarray()
     else:
         whole = decision.all_mechanisms()
-        _check_rigid_inside(whole, rigid)
-        internal, rigid = local_basis(whole, rigid, dofs.joint_of())
-    rigid = order_rigid(rigid, dofs, frame.coords)
+        _check_rigid_inside(whole, rigid, tol, known)
+        internal, rigid = local_basis(whole, rigid, dofs.joint_of(), tol=tol)
+    rigid = order_rigid(rigid, dofs, frame.coords, tol=tol)
 
     mech = np.hstack([internal, rigid])
     modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))
     if k:
         modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
     hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
-    info = describe_modes(frame, modes, hints)
-    modes, info = gather_leans(frame, modes, info, hints)
+    info = describe_modes(frame, modes, hints, tol=tol)
+    modes, info = gather_leans(frame, modes, info, hints, tol=tol)
     # group the internal modes by kind (local kinds first), fewest joints first within a kind
     ni = internal.shape[1]
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
@@ -131,10 +141,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     # one projection serves the key-member probes and the product-force test
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
-    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], forces=force)
+    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol,
+                         forces=force)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
-                      projected=both[:, :2])
-    stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
+                      projected=both[:, :2], tol=tol)
+    stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
     q = stress.shape[0]
     ea = frame.member_properties.get("EA")
     if not soft:
@@ -146,23 +157,23 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         rest_joint = dofs.joint_of()[T.indices[T.indptr[:-1]]]
         sm = soft_modes((C @ T).tocsr(), frame.lengths(), np.asarray(T.T @ decision.mechanisms),
                         rest_joint, ea=ea, perm=getattr(decision.project, "perm", None),
-                        typical=typical_stiffness(C, frame.lengths(), ea))
+                        typical=typical_stiffness(C, frame.lengths(), ea), tol=tol)
         sm = type(sm)(sm.ratios, np.asarray(T @ sm.vectors), sm.checked)
     else:
         sm = soft_modes(C, frame.lengths(), decision.all_mechanisms(), dofs.joint_of(), ea=ea,
-                        perm=decision.ordering)
+                        perm=decision.ordering, tol=tol)
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u))
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
     # a soft mode worth a designer's attention is a local weakness, not the frame's
     # global flexibility: keep those moving at most a quarter of the joints
     local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]
     soft_u, soft_info = soft_u[local], tuple(soft_info[i] for i in local)
     soft_ratio = sm.ratios[local] if sm else np.zeros(0)
     if redundancy is None:
-        redundancy = decision.method == "dense" or C.shape[1] <= 3000
+        redundancy = decision.method == "dense" or C.shape[1] <= tol.limits.redundancy_auto
     shares = redundancy_shares(decision.self_stress_count, decision.project) \
         if redundancy else None
 
@@ -170,7 +181,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     mechanisms = k
     s = decision.self_stress_count
     if mechanisms - s != d * joints - restraints - members:  # pragma: no cover - by construction
-        raise SpaceframeError("internal error: the extended Maxwell rule does not hold")
+        raise InternalError("the extended Maxwell rule does not hold between the counts",
+                            stage="counts", partial=known)
 
     gap, warnings = _gap(decision, tol)
     if q < s and self_stress_cap:
@@ -191,7 +203,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         warnings=tuple(warnings))
 
 
-def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, local=None) -> None:
+def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances,
+                        known: dict, local=None) -> None:
     """The permitted rigid-body motions must lie in the mechanism space found.
 
     ``local`` (sparse, orthonormal and orthogonal to ``mech``), where given, is the rest
@@ -201,10 +214,11 @@ def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, local=None) -> None
     off = rigid - mech @ (mech.T @ rigid)
     if local is not None:
         off -= local @ (local.T @ rigid)
-    if r and (r > k or np.linalg.norm(off) > 1e-6 * np.sqrt(r)):
-        raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
-                              "not found among the mechanisms; rerun with method='dense' and "
-                              "report the model")
+    if r and (r > k or np.linalg.norm(off) > tol.rigid_inside * np.sqrt(r)):
+        raise InternalError("a rigid-body motion permitted by the supports was not found among "
+                            "the mechanisms; the dense engine (method='dense') may do for a "
+                            "small frame", stage="mechanism basis",
+                            partial={**known, "rigid_body_motions": r})
 
 
 def _gap(decision, tol: Tolerances):
@@ -227,4 +241,4 @@ def _gap(decision, tol: Tolerances):
             warnings.append(f"a singular value {label} ({v:.3g} of the largest) lies within a "
                             f"factor {tol.near_threshold:g} of the threshold {tol.rank:g}")
     return RankGap(tolerance=tol.rank, largest_zero=lz, smallest_nonzero=sn, ratio=ratio,
-                   method=decision.method, narrow=narrow), warnings
+                   method=decision.method, narrow=narrow, shift=decision.shift), warnings

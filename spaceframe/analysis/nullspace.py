@@ -50,14 +50,11 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from ..errors import SpaceframeError
+from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
-           "canonical_pivots", "canonical_split", "DENSE_LIMIT"]
-
-#: The dense engine is used when members × free coordinates is at most this.
-DENSE_LIMIT = 100_000
+           "canonical_pivots", "canonical_split"]
 
 _SEED = 20261201
 _BLOCK = 16  # right-hand sides per solve: SuperLU's multi-vector solve grows faster past this
@@ -103,6 +100,11 @@ class RankDecision:
         ``Y - C K^+ C.T Y``: the part of a member force vector that needs no
         load.  ``project.redundancy()`` gives the diagonal of that projector
         (or None where it would cost too much).
+    shift : float or None
+        The sparse engine's final shift ``tau`` of the inertia count, divided
+        by ``s_max**2``: ``tol.rank**2`` unless the factorisation had to move
+        it (then ``sqrt(shift)`` is the relative singular value threshold the
+        count used).  None for the dense engine and where no count was made.
     local_modes : (dofs, local) scipy.sparse.csc_matrix or None
         The mechanisms found joint by joint (:func:`local_mechanisms`),
         without the global solve; orthonormal, each confined to one joint.
@@ -125,6 +127,7 @@ class RankDecision:
     smallest_nonzero: float | None
     method: str
     project: object = None
+    shift: float | None = None
     local_modes: sp.csc_matrix | None = None
     rest: sp.csc_matrix | None = None
     ordering: np.ndarray | None = None
@@ -188,13 +191,21 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         Compute at most this many states of self-stress (their number is
         always exact).  Default 16.
     method : {"auto", "dense", "sparse"}, keyword-only
-        ``"auto"`` takes the dense engine when ``m * n <= DENSE_LIMIT``.
+        ``"auto"`` takes the dense engine when ``m * n <= tol.limits.dense_engine``.
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative threshold on singular values.
 
     Returns
     -------
     RankDecision
+
+    Raises
+    ------
+    SpaceframeError
+        For an unknown ``method``.
+    InternalError
+        When the sparse factorisation breaks down (stage ``"factorisation"``;
+        ``partial`` holds the number of free coordinates and of shifts tried).
 
     Notes
     -----
@@ -206,7 +217,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     C = sp.csr_matrix(C)
     m, n = C.shape
     if method == "auto":
-        method = "dense" if m * n <= DENSE_LIMIT else "sparse"
+        method = "dense" if m * n <= tol.limits.dense_engine else "sparse"
     if method not in ("dense", "sparse"):
         raise SpaceframeError(f"method must be 'auto', 'dense' or 'sparse', not {method!r}")
     split = local_mechanisms(C, joint_of, tol=tol)
@@ -232,7 +243,8 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
                         threshold=reduced.threshold, largest_zero=largest_zero,
                         smallest_nonzero=reduced.smallest_nonzero, method=reduced.method,
                         project=reduced.project, local_modes=L, rest=split.rest,
-                        ordering=reduced.ordering if method == "sparse" else None)
+                        ordering=reduced.ordering if method == "sparse" else None,
+                        shift=reduced.shift)
 
 
 def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
@@ -427,7 +439,7 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
         stress = np.eye(m, min(cap, m))
         return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse",
                             project=_EveryMember(m))
-    lam_max = _largest_eigenvalue(K0)
+    lam_max = _largest_eigenvalue(K0, tol)
     s_max = float(np.sqrt(lam_max))
     threshold = tol.rank * s_max
     tau = threshold ** 2
@@ -447,7 +459,7 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
     mech = basis[:, :k][inv]
     largest_zero = float(np.max(np.linalg.norm(C @ mech, axis=0))) if k else None
     smallest = float(np.sqrt(max(ritz[k], 0.0))) if rank and len(ritz) > k else None
-    project = _Projector(C, Kp, lu, perm, mech)
+    project = _Projector(C, Kp, lu, perm, mech, tol)
     q = min(cap, m - rank)
     if q > 0:
         stress, _ = np.linalg.qr(project(np.random.default_rng(_SEED + 1).standard_normal((m, q))))
@@ -457,16 +469,16 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
                         self_stress_count=m - rank,
                         s_max=s_max, threshold=threshold, largest_zero=largest_zero,
                         smallest_nonzero=smallest, method="sparse", project=project,
-                        ordering=ordering)
+                        ordering=ordering, shift=tau / lam_max)
 
 
-def _largest_eigenvalue(K) -> float:
-    """Largest eigenvalue of the semi-definite ``K``, to about two digits (Lanczos)."""
+def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
+    """Largest eigenvalue of the semi-definite ``K``, to ``tol.s_max_estimate`` (Lanczos)."""
     n = K.shape[0]
     if n <= 3:
         return float(np.linalg.eigvalsh(K.toarray())[-1])
     v0 = np.random.default_rng(_SEED).standard_normal(n)
-    return float(spla.eigsh(K, k=1, which="LA", tol=1e-2, ncv=min(n, 10), v0=v0,
+    return float(spla.eigsh(K, k=1, which="LA", tol=tol.s_max_estimate, ncv=min(n, 10), v0=v0,
                             return_eigenvectors=False)[0])
 
 
@@ -520,7 +532,8 @@ def _shifted_ldl(Kp, tau):
     With the diagonal as pivot throughout, ``U = D L.T`` and the signs of
     ``diag(U)`` are the inertia of ``Kp - tau I``.  SuperLU may still swap
     rows where a pivot is exactly zero; then the shift is moved a little and
-    the factorisation repeated.
+    the factorisation repeated; the shift used is returned with it (and
+    recorded in :attr:`RankDecision.shift`).
     """
     n = Kp.shape[0]
     eye = sp.identity(n, format="csc")
@@ -535,9 +548,11 @@ def _shifted_ldl(Kp, tau):
                 and np.array_equal(lu.perm_c, np.arange(n)):
             return lu, tau
         tau *= 1.37
-    raise SpaceframeError("the sparse engine could not factorise the stiffness matrix with "
-                          "diagonal pivots; rerun with method='dense' (small frames) and report "
-                          "the model")
+    raise InternalError(f"the sparse engine could not factorise the shifted stiffness matrix "
+                        f"K - tau I ({n} free coordinates) with diagonal pivots, after "
+                        f"{attempt + 1} shifts; the dense engine (method='dense') may do for "
+                        f"a small frame", stage="factorisation",
+                        partial={"free_coordinates": n, "shifts_tried": attempt + 1})
 
 
 def _subspace(Kp, lu, k, n, iterations: int = 3):
@@ -597,13 +612,14 @@ class _Projector:
     of ``y`` by member elongations is orthogonal to every column of ``C``.
     ``C.T y`` lies in the range of ``K``; the solve with the factorisation of
     ``K - tau I`` is followed by a step of iterative refinement where the
-    residual exceeds 1e-10 of the right-hand side, and by the removal of any
+    residual exceeds ``tol.refine`` of the right-hand side, and by the removal of any
     mechanism component (``C`` maps it to zero anyway).  Columns are taken
     ``_BLOCK`` at a time.
     """
 
-    def __init__(self, C, Kp, lu, perm, mech):
+    def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
         self.C, self.Kp, self.lu, self.perm, self.mech = C, Kp, lu, perm, mech
+        self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
         self.inv = np.empty_like(perm)
         self.inv[perm] = np.arange(len(perm))
 
@@ -617,7 +633,7 @@ class _Projector:
             y = Y[:, lo:lo + _BLOCK]
             rhs = (C.T @ y)[self.perm]
             x = lu.solve(np.asfortranarray(rhs))
-            if np.linalg.norm(rhs - Kp @ x) > 1e-10 * np.linalg.norm(rhs):
+            if np.linalg.norm(rhs - Kp @ x) > self.refine * np.linalg.norm(rhs):
                 x += lu.solve(np.asfortranarray(rhs - Kp @ x))
             x = x[self.inv]
             if mech.shape[1]:
@@ -625,7 +641,7 @@ class _Projector:
             T[:, lo:lo + _BLOCK] = y - C @ x
         return T[:, 0] if flat else T
 
-    def redundancy(self, *, max_solves: int = 20_000):
+    def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.
 
         ``r_e = 1 - c_e K^+ c_e.T`` for each member row ``c_e`` of ``C``.  The
@@ -633,10 +649,12 @@ class _Projector:
         block solve each, with mechanism components removed before and after)
         and folded into ``h = diag(C K^+ C.T)`` at once, so memory stays
         O(n x batch).  Returns None when that needs more than ``max_solves``
-        right-hand sides.  Cost: ``n`` solves and O(nnz(C) n).
+        right-hand sides (default ``tol.limits.redundancy_max``).  Cost: ``n``
+        solves and O(nnz(C) n).
         """
         C, lu, mech = self.C, self.lu, self.mech
         m, n = C.shape
+        max_solves = self.max_solves if max_solves is None else max_solves
         if n > max_solves:
             return None
         Cc = C.tocsc()
@@ -656,7 +674,7 @@ class _Projector:
         return np.clip(1.0 - h, 0.0, 1.0)
 
 
-def canonical_basis(B: np.ndarray) -> np.ndarray:
+def canonical_basis(B: np.ndarray, *, tol: Tolerances = DEFAULT) -> np.ndarray:
     """A deterministic basis of the column space of ``B``.
 
     The reduced echelon form: a column-pivoted QR of ``B.T`` picks one pivot
@@ -669,6 +687,8 @@ def canonical_basis(B: np.ndarray) -> np.ndarray:
     Parameters
     ----------
     B : (N, k) float, full column rank
+    tol : Tolerances, keyword-only
+        Entries below ``tol.echelon_zero`` (of the column's largest) become 0.
 
     Returns
     -------
@@ -679,10 +699,10 @@ def canonical_basis(B: np.ndarray) -> np.ndarray:
     -----
     Cost O(N k^2).
     """
-    return canonical_pivots(B)[0]
+    return canonical_pivots(B, tol=tol)[0]
 
 
-def canonical_pivots(B: np.ndarray):
+def canonical_pivots(B: np.ndarray, *, tol: Tolerances = DEFAULT):
     """:func:`canonical_basis` with its pivots and the pivoted QR's ``|R_ii|``.
 
     Returns
@@ -702,15 +722,12 @@ def canonical_pivots(B: np.ndarray):
     piv = piv[:k]
     E = np.linalg.solve(Q[piv, :].T, Q.T).T  # E[piv] = I
     E /= np.max(np.abs(E), axis=0)[None, :]
-    E[np.abs(E) < 1e-12] = 0.0
+    E[np.abs(E) < tol.echelon_zero] = 0.0
     return E, piv, np.abs(np.diag(R))[:k]
 
 
-#: Entries of a mechanism basis below this are rounding (as in :func:`canonical_basis`).
-_ZERO = 1e-12
-
-
-def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray):
+def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray, *,
+                    tol: Tolerances = DEFAULT):
     """:func:`canonical_basis` of ``span(local) (+) span(rest)``, block by block.
 
     The column-pivoted QR behind the canonical basis acts on the rows of an
@@ -732,6 +749,9 @@ def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray
     rest : (N, g) float
         Orthonormal, orthogonal to ``local``.
     joint_of : (N,) int
+    tol : Tolerances, keyword-only
+        ``tol.echelon_zero``: entries of ``rest`` below it move no coordinate,
+        and entries of the result below it become 0, as in :func:`canonical_basis`.
 
     Returns
     -------
@@ -751,7 +771,7 @@ def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray
     g = rest.shape[1]
     lrow = local.indices[local.indptr[:-1]] if l else np.zeros(0, dtype=np.int64)
     ljoint = joint_of[lrow]
-    moved = np.abs(rest).max(axis=1) > _ZERO if g else np.zeros(N, dtype=bool)
+    moved = np.abs(rest).max(axis=1) > tol.echelon_zero if g else np.zeros(N, dtype=bool)
     touch = np.zeros(l, dtype=bool)
     if l:
         touch = np.maximum.reduceat(moved[local.indices].astype(np.int8),
@@ -763,7 +783,7 @@ def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray
     blocks = []                                   # (weights, pivots, (rows, values) per column)
     if g or coupled.any():
         B = np.hstack([rest[rows], local[rows][:, np.flatnonzero(coupled)].toarray()])
-        E, piv, w = canonical_pivots(B)
+        E, piv, w = canonical_pivots(B, tol=tol)
         cols = [(rows[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i])
                 for i in range(E.shape[1])]
         blocks.append(list(zip(w.tolist(), rows[piv].tolist(), cols)))
@@ -779,13 +799,13 @@ def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray
             v = sub.data[sub.indptr[i]:sub.indptr[i + 1]]
             top = int(np.argmax(np.abs(v)))
             e = v / v[top]
-            e[np.abs(e) < _ZERO] = 0.0
+            e[np.abs(e) < tol.echelon_zero] = 0.0
             keep = e != 0
             blocks.append([(abs(v[top]) / np.linalg.norm(v), int(r[top]), (r[keep], e[keep]))])
     for cols in (c for c in by_joint.values() if len(c) > 1):
         sub = local[:, cols]
         r = np.unique(sub.indices)
-        E, piv, w = canonical_pivots(sub[r].toarray())
+        E, piv, w = canonical_pivots(sub[r].toarray(), tol=tol)
         blocks.append([(wi, int(r[p]), (r[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i]))
                        for i, (wi, p) in enumerate(zip(w.tolist(), piv.tolist()))])
     merged = list(heapq.merge(*blocks, key=lambda item: (-item[0], item[1])))

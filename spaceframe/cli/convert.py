@@ -4,13 +4,13 @@ from __future__ import annotations
 
 import click
 
-from .common import debug_option, force_option, run_guarded, supports_option
+from .common import debug_option, force_option, model_argument, run_guarded, supports_option
 
 __all__ = ["convert_command"]
 
 
 @click.command("convert")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("-o", "--output", required=True, type=click.Path(path_type=str),
               help="The native model file to write (.toml or .json).")
 @supports_option
@@ -22,9 +22,12 @@ def convert_command(model, output, supports, force, debug):
     """
     def job():
         from .. import load
-        from ..io import save
+        from ..io import WRITERS, save
+        from ..io.output import check_output
         from ..selection import supports_for
 
+        check_output(output, inputs=(model,), overwrite=force, suffixes=WRITERS,
+                     what="a model")
         frame = supports_for(load(model), model, supports)
         save(frame, output, overwrite=force, inputs=(model,))
         click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "

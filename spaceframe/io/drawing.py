@@ -36,6 +36,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
@@ -91,17 +92,15 @@ def read_drawing(path, *, tol: Tolerances = DEFAULT, layers=None, merge=None, **
     frame = frame_from_edges(points, edges, source=source, tol=tol, dimension=2, merge=merge,
                              what="line")
     _check_near_misses(frame, tol)
-    _warn_crossings(frame)
+    _warn_crossings(frame, tol)
     return frame
 
 
 def _segments(source: str, suffix: str, layers) -> np.ndarray:
     """Straight segments ``(s, 2, 2)`` of the drawing, in drawing order."""
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading drawings needs the trimesh package: pip install trimesh",
-                         path=source) from None
+    trimesh = require("trimesh")
+    for helper in ("svg.path", "lxml.etree") if suffix == ".svg" else ():
+        require(helper)  # trimesh's SVG loader imports them when it runs
     try:
         if suffix == ".svg":
             data = _svg_selected(source, layers)
@@ -110,9 +109,6 @@ def _segments(source: str, suffix: str, layers) -> np.ndarray:
             path = trimesh.load_path(source)
     except ModelError:
         raise
-    except ImportError as exc:
-        raise ModelError(f"reading {suffix} drawings needs the package {exc.name}: pip install "
-                         f"{'svg.path' if exc.name == 'svg' else exc.name}", path=source) from None
     except Exception as exc:         # the loaders' own errors are many and unrelated
         raise ModelError(f"cannot be read as a {suffix[1:].upper()} drawing ({type(exc).__name__}:"
                          f" {exc}); check the file", path=source) from None
@@ -209,7 +205,7 @@ def _check_near_misses(frame: Frame, tol: Tolerances) -> None:
                      f"([drawing] merge = ...)", path=frame.source)
 
 
-def _warn_crossings(frame: Frame) -> None:
+def _warn_crossings(frame: Frame, tol: Tolerances) -> None:
     a, b = frame.coords[frame.ends[:, 0]], frame.coords[frame.ends[:, 1]]
     m = len(a)
     crossings = []
@@ -223,8 +219,8 @@ def _warn_crossings(frame: Frame) -> None:
         with np.errstate(divide="ignore", invalid="ignore"):
             t = (q[:, 0] * s[:, 1] - q[:, 1] * s[:, 0]) / denom
             u = (q[:, 0] * r[1] - q[:, 1] * r[0]) / denom
-        eps = 1e-9
-        hit = (~shared) & (np.abs(denom) > 1e-12) & (t > eps) & (t < 1 - eps) & (u > eps) & \
+        eps = tol.crossing_margin
+        hit = (~shared) & (np.abs(denom) > tol.parallel_lines) & (t > eps) & (t < 1 - eps) & (u > eps) & \
               (u < 1 - eps)
         for k in np.flatnonzero(hit):
             crossings.append((frame.member_ids[i], frame.member_ids[j[k]], a[i] + t[k] * r))

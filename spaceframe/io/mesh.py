@@ -27,8 +27,9 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame
+from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 
@@ -36,14 +37,6 @@ __all__ = ["read_mesh", "frame_from_edges", "MESH_SUFFIXES"]
 
 #: Suffixes read by :func:`read_mesh`.
 MESH_SUFFIXES = (".stl", ".obj", ".ply", ".off", ".glb", ".gltf")
-
-
-def _trimesh():
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading meshes needs the trimesh package: pip install trimesh") from None
-    return trimesh
 
 
 def read_mesh(path, *, tol: Tolerances = DEFAULT) -> Frame:
@@ -138,8 +131,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
     points = np.asarray(points, dtype=float).reshape(-1, dimension)
     edges = np.asarray(edges, dtype=np.int64).reshape(-1, 2)
     used = np.unique(edges)
-    size = float(np.linalg.norm(points[used].max(axis=0) - points[used].min(axis=0))) \
-        if used.size else 0.0
+    size = bounding_diagonal(points[used])
     limit = tol.merge * size if merge is None else float(merge)
     pairs = cKDTree(points).query_pairs(limit, output_type="ndarray") if len(points) > 1 \
         else np.zeros((0, 2), dtype=np.int64)
@@ -217,7 +209,7 @@ def _check_manifold(edges: np.ndarray, points: np.ndarray, source: str) -> None:
 
 def _loaded_polygons(source: str, file_type: str) -> tuple[np.ndarray, list]:
     """Vertices and polygons as trimesh's loader gives them, scene transforms applied."""
-    trimesh = _trimesh()
+    trimesh = require("trimesh")
     if file_type in ("glb", "gltf"):
         try:
             scene = trimesh.load(source, process=False, force="scene")

@@ -156,20 +156,22 @@ def test_roof_dense_and_sparse_agree_on_local_modes():
                                    lambda: _frame_with_local_freedoms(2),
                                    lambda: _frame_with_local_freedoms(4)])
 @pytest.mark.parametrize("method", ["dense", "sparse"])
-def test_blockwise_canonical_basis_matches_dense(monkeypatch, build, method):
+def test_blockwise_canonical_basis_matches_dense(build, method):
     """The canonical basis made block by block gives the audit of the one dense array.
 
     Same counts, kinds and soft modes, the same mechanism space (principal angles,
     scipy.linalg.subspace_angles), and the same modes wherever the pivots do not tie
     exactly (the local modes always).
     """
-    import spaceframe.analysis.audit as audit_module
+    from dataclasses import replace
+
+    from spaceframe.tolerances import DEFAULT
 
     f = build()
-    monkeypatch.setattr(audit_module, "SPLIT_BASIS", 10 ** 12)
-    a = audit(f, method=method)
-    monkeypatch.setattr(audit_module, "SPLIT_BASIS", 0)
-    b = audit(f, method=method)
+    a = audit(f, method=method, tol=replace(DEFAULT, limits=replace(DEFAULT.limits,
+                                                                     split_basis=10 ** 12)))
+    b = audit(f, method=method, tol=replace(DEFAULT, limits=replace(DEFAULT.limits,
+                                                                     split_basis=0)))
     assert (a.mechanisms, a.internal_mechanisms, a.self_stress_states) == \
         (b.mechanisms, b.internal_mechanisms, b.self_stress_states)
     assert a.mode_kinds == b.mode_kinds
