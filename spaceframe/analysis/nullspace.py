@@ -348,6 +348,15 @@ def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
         sel = np.flatnonzero(where[end_joint] >= 0)
         A = np.zeros((len(group), dg, c))
         A[where[end_joint[sel]], pos[sel], :] = vec[sel, :c]
+        if dg >= c:
+            # screen with the c x c Gram matrices (eigenvalues s**2 to about 1e-16 of the
+            # largest, rows of norm <= 1): a joint whose smallest s**2 exceeds 1e-10 has
+            # s > 1e-5, far above tol.local_mechanism, and needs no SVD
+            lam = np.linalg.eigvalsh(np.einsum("gra,grb->gab", A, A))[:, 0]
+            pick = np.flatnonzero(lam <= 1e-10)
+            group, A = group[pick], A[pick]
+            if not len(group):
+                continue
         _, s, vt = np.linalg.svd(A, full_matrices=True)
         s_pad = np.zeros((len(group), c))
         s_pad[:, :s.shape[1]] = s
