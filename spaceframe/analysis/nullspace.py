@@ -349,11 +349,12 @@ def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
         A = np.zeros((len(group), dg, c))
         A[where[end_joint[sel]], pos[sel], :] = vec[sel, :c]
         if dg >= c:
-            # screen with the c x c Gram matrices (eigenvalues s**2 to about 1e-16 of the
-            # largest, rows of norm <= 1): a joint whose smallest s**2 exceeds 1e-10 has
-            # s > 1e-5, far above tol.local_mechanism, and needs no SVD
+            # screen with the c x c Gram matrices, whose eigenvalues s**2 come out to about
+            # 1e-15 absolute (rows of norm <= 1): a joint whose smallest s**2 exceeds
+            # (1e4 tol.local_mechanism)**2 = 1e-10 has no s <= tol.local_mechanism and
+            # needs no SVD
             lam = np.linalg.eigvalsh(np.einsum("gra,grb->gab", A, A))[:, 0]
-            pick = np.flatnonzero(lam <= 1e-10)
+            pick = np.flatnonzero(lam <= (1e4 * tol.local_mechanism) ** 2)
             group, A = group[pick], A[pick]
             if not len(group):
                 continue
