@@ -229,10 +229,15 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     # same non-zero singular values, same null space of C.T (see local_mechanisms).
     Cr = (C @ split.rest).tocsr()
     Cr.eliminate_zeros()
-    if method == "dense":
-        reduced = _dense(Cr, self_stress_cap, tol)
-    else:
-        reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, full=(C, joint_of))
+    try:
+        if method == "dense":
+            reduced = _dense(Cr, self_stress_cap, tol)
+        else:
+            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, full=(C, joint_of))
+    except InternalError as exc:  # what was known is the whole frame's, not the reduced one's
+        if "free_coordinates" in exc.partial:
+            exc.partial["free_coordinates"] = n
+        raise
     L = split.local
     mech = np.asarray(split.rest @ reduced.mechanisms)
     stretch = np.sqrt(np.asarray((C @ L).multiply(C @ L).sum(axis=0)).ravel())
