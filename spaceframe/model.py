@@ -14,6 +14,7 @@ from typing import Mapping, Sequence
 import numpy as np
 
 from .errors import ModelError
+from .loads import LoadSet
 
 __all__ = ["Frame", "UNITS", "bounding_diagonal"]
 
@@ -61,7 +62,10 @@ class Frame:
         describe results; they never change the numbers.
     member_properties : mapping of str to (m,) float
         Numeric member properties; ``"EA"`` (axial stiffness, any consistent
-        unit) weights the soft-mode search.  Absent: uniform.
+        unit) weights the soft-mode search and the forces.  Absent: uniform.
+    loads : LoadSet or None
+        The load cases (:mod:`spaceframe.loads`), joints named by id; None
+        when the model gives none.
     """
 
     joint_ids: tuple[str, ...]
@@ -78,6 +82,7 @@ class Frame:
     joint_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_properties: Mapping[str, np.ndarray] = field(default_factory=dict)
+    loads: LoadSet | None = None
 
     def __post_init__(self):
         d = self.dimension

@@ -282,6 +282,39 @@ class Tolerances:
         moving joint ``j`` to a nearby joint ``q`` would act on it when
         ``|w . (u_q - u_j)| > hint_stretch``, ``w`` the unit vector from ``j``
         to ``q`` (the mode's largest movement 1).  Default ``0.1``.
+    mechanism_load : float
+        A load ``f`` (all joint forces of a case, one vector) acts on the
+        mechanisms, and is not carried, when ``||P f|| > mechanism_load *
+        ||f||``, ``P`` the orthogonal projection onto the mechanism space.
+        Default ``1e-6``: the sparse engine's mechanism basis is accurate to
+        about ``1e-8``, and a load with a millionth of itself on a mechanism
+        is, for a designer, not carried.
+    zero_force : float
+        A member force ``N`` of a case counts as none (neither tension nor
+        compression; written as 0) when ``|N| <= zero_force * max |N|`` over
+        that case's members, and a reaction component likewise against the
+        largest reaction component.  Default ``1e-9``: round-off of the
+        solve is about ``1e-13`` of the largest force.
+    forces_shift : float
+        The stiffness solve of a frame that still has mechanisms factorises
+        ``K + forces_shift * k * I`` (``k`` the median diagonal entry of
+        ``K``), the mechanisms projected out: positive definite, and, as
+        iterative refinement follows, without effect on the forces once
+        ``||f - K u|| <= forces_refined * ||f||``.  Default ``1e-8``.
+    forces_refined : float
+        Iterative refinement of the forces solve stops once every case has
+        ``||f - K u|| <= forces_refined * ||f||``, or once a step leaves a
+        residual ``r_new > forces_stalled * r_old`` (round-off reached).
+        Default ``1e-13``.
+    forces_stalled : float
+        See ``forces_refined``: a step whose residual has ``r_new >
+        forces_stalled * r_old`` ends the refinement.
+        Default ``0.25``.
+    forces_fault : float
+        A carried case whose forces leave ``||C.T t - f|| > forces_fault *
+        ||f||`` is a fault of the solve (an internal error), not a verdict.
+        Default ``1e-5``: ten times ``mechanism_load``, the most a carried
+        load may have on the mechanisms.
     local_mechanism : float
         A direction ``d`` (unit vector in a joint's free coordinates) is a
         local mechanism of that joint when ``||C_j d|| <= local_mechanism``,
@@ -329,6 +362,12 @@ class Tolerances:
     parallel_diagonals: float = 1e-6
     acts: float = 0.01
     hint_stretch: float = 0.1
+    mechanism_load: float = 1e-6
+    zero_force: float = 1e-9
+    forces_shift: float = 1e-8
+    forces_refined: float = 1e-13
+    forces_stalled: float = 0.25
+    forces_fault: float = 1e-5
     local_mechanism: float = 1e-9
     limits: Limits = Limits()
 

@@ -17,11 +17,12 @@ member to a missing joint is refused with a message, not a traceback.
 from __future__ import annotations
 
 import os
+import warnings
 import zipfile
 
 import numpy as np
 
-from ..errors import ModelError
+from ..errors import ModelError, SpaceframeWarning
 from ..model import UNITS, Frame
 from ..tolerances import DEFAULT, Tolerances
 from .output import write_file
@@ -116,3 +117,7 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
         arrays[f"member_property:{name}"] = np.asarray(values, float)
     write_file(target, lambda fh: np.savez(fh, **arrays), binary=True, overwrite=overwrite,
                option="overwrite=True")
+    if frame.loads is not None:
+        warnings.warn(f"{target}: the .npz form holds no load cases; the model's loads are "
+                      f"not in it (keep them in the TOML or JSON file)", SpaceframeWarning,
+                      stacklevel=2)

@@ -52,7 +52,10 @@ stiffness in any consistent unit::
 A member id wins over a selector, a selector over the default; a member left
 without a value is an error.
 
-The top-level keys ``groups``, ``loads`` and ``notes`` are reserved for later
+Loads (``force_units``, ``[loads.NAME]``, ``[combinations.NAME]``,
+``[self_weight]``, ``[notional]``) are read and written by :mod:`spaceframe.io.loads`.
+
+The top-level keys ``groups`` and ``notes`` are reserved for later
 versions and accepted without a word; any other unknown key draws a
 :class:`SpaceframeWarning`.
 

@@ -23,6 +23,7 @@ from ...model import UNITS, Frame
 from ...suggest import closest, did_you_mean
 from ...supports import AXES, restraint_rows
 from ...tolerances import DEFAULT, Tolerances
+from .. import loads as _loads
 from ..sourcelines import MODEL_TABLES, SourceLines, checked, toml_key
 from .write import toml_id
 
@@ -30,9 +31,10 @@ __all__ = ["read_toml", "read_json", "frame_from_document", "toml_line", "json_l
            "RESERVED_KEYS", "PROPERTIES"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags",
+        "properties") + _loads.KEYS
 #: Top-level keys reserved for later versions: accepted and ignored.
-RESERVED_KEYS = ("groups", "loads", "notes")
+RESERVED_KEYS = ("groups", "notes")
 
 #: Member properties the native format knows, with what each means.
 PROPERTIES = {"EA": "axial stiffness, in any consistent unit (only ratios are used)"}
@@ -229,11 +231,12 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
                                                  dimension, tol, at)
     joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
     properties = _properties(doc, member_ids, member_tags, at)
+    loads = _loads.read_loads(doc, dimension, joint_ids, path=source, locate=at.path)
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
                   dimension=dimension, name=name, units=units, source=source,
                   joint_tags=joint_tags, member_tags=member_tags,
-                  member_properties=properties)
+                  member_properties=properties, loads=loads)
     return checked(frame, tol=tol, find=at.line)
 
 
@@ -246,6 +249,12 @@ class _Where:
 
     def line(self, kind: str, item: str) -> int | None:
         return self.lines.item(kind, item)
+
+    def path(self, *keys: str) -> int | None:
+        """The line of the key path ``keys`` (``("loads", "snow", "U1")``), else of the
+        deepest table of it found."""
+        return (self.lines.line(keys[:-1], keys[-1]) or self.lines.table(keys)
+                or self.lines.table(keys[:-1]))
 
     def error(self, message: str, kind: str | None = None, item: str | None = None, *,
               line: int | None = None) -> ModelError:
