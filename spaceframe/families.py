@@ -23,7 +23,7 @@ import numpy as np
 from .errors import SpaceframeError
 from .model import Frame, UNITS
 
-__all__ = ["double_layer_grid", "double_layer_grid_size", "braced_tower",
+__all__ = ["double_layer_grid", "double_layer_grid_size", "braced_tower", "plane_truss_roof",
            "GRID_SUPPORTS", "TOWER_BRACING"]
 
 #: Support layouts :func:`double_layer_grid` knows by name.
@@ -408,4 +408,94 @@ def braced_tower(storeys: int, *, width: float = 2.0, storey_height: float = 3.0
                              joint_ids=joint_ids, member_ids=ids,
                              supports={node(0, c): "pin" for c in range(4)},
                              name=name if name is not None else f"braced tower, {s} storeys",
+                             units=units)
+
+
+def plane_truss_roof(trusses: int, panels: int, *, panel: float = 3.0, depth: float = 2.0,
+                     spacing: float = 6.0, name: str | None = None, units: str = "m") -> Frame:
+    """A row of flat plane trusses tied by purlins at the top chord, bottom chords untied.
+
+    Each truss is a Pratt-like girder in its own vertical plane ``y = f spacing``:
+    bottom-chord joints ``F{f}.L{i}`` at ``(i panel, y, 0)`` and top-chord joints
+    ``F{f}.U{i}`` at ``(i panel, y, depth)``, ``i = 0..panels``, with chords,
+    verticals and one diagonal per panel; each truss is pinned at both bottom ends.
+    Purlins ``P{f}.{i}`` join ``F{f}.U{i}`` to ``F{f+1}.U{i}``.  Nothing ties the
+    bottom chords sideways and no bay is braced: the common unbraced roof under
+    construction.
+
+    Parameters
+    ----------
+    trusses : int
+        Number of trusses ``F >= 1``, labelled ``F1..F{F}`` (joint tag ``frame``).
+    panels : int
+        Panels per truss ``p >= 1``.
+    panel, depth, spacing : float, optional
+        Panel length, truss depth and truss spacing, in ``units``.
+    name : str, optional
+    units : str, optional
+
+    Returns
+    -------
+    frame : Frame
+        Three-dimensional, with joints ``n = 2 F (p + 1)``, members
+        ``m = F (4 p + 1) + (F - 1)(p + 1)`` (member tag ``role``: ``chord``,
+        ``vertical``, ``diagonal``, ``purlin``) and restraints ``r = 6 F``.
+
+    Notes
+    -----
+    Building the frame costs O(F p).  In its own plane each truss is a simple
+    truss (``2 (p + 1)`` joints, ``4 p + 1 = 2 (2 (p + 1)) - 3`` members) on two
+    pins: rigid, with one state of self-stress.  Out of plane (along y) only the
+    purlins act: each interior bottom joint is free alone (``(p - 1) F``) and each
+    line of top joints moves as one (``p + 1``), so the frame has
+    ``(p - 1) F + p + 1`` mechanisms and ``F`` states of self-stress (checked by
+    dense SVD in the tests).
+
+    Examples
+    --------
+    >>> f = plane_truss_roof(3, 4)
+    >>> f.n_joints, f.n_members, f.n_restraints
+    (30, 61, 18)
+    """
+    F, p = _count(trusses, "trusses"), _count(panels, "panels")
+    panel, depth, spacing = (_length(panel, "panel"), _length(depth, "depth"),
+                             _length(spacing, "spacing"))
+    units = _units(units)
+    per = 2 * (p + 1)
+    i = np.arange(p + 1)
+    coords = np.zeros((F * per, 3))
+    joint_ids, frame_tag = [], []
+    for f in range(F):
+        base = f * per
+        coords[base:base + p + 1] = np.column_stack([i * panel, np.full(p + 1, f * spacing),
+                                                     np.zeros(p + 1)])
+        coords[base + p + 1:base + per] = np.column_stack([i * panel, np.full(p + 1, f * spacing),
+                                                           np.full(p + 1, depth)])
+        joint_ids += [f"F{f + 1}.L{k}" for k in range(p + 1)] + \
+            [f"F{f + 1}.U{k}" for k in range(p + 1)]
+        frame_tag += [f"F{f + 1}"] * per
+    lo, up = (lambda f, k: f * per + k), (lambda f, k: f * per + p + 1 + k)
+    ends, ids, role = [], [], []
+    for f in range(F):
+        lab = f"F{f + 1}"
+        for k in range(p):
+            ends += [(up(f, k), up(f, k + 1)), (lo(f, k), lo(f, k + 1)), (lo(f, k), up(f, k + 1))]
+            ids += [f"{lab}.T{k}", f"{lab}.B{k}", f"{lab}.D{k}"]
+            role += ["chord", "chord", "diagonal"]
+        for k in range(p + 1):
+            ends.append((lo(f, k), up(f, k)))
+            ids.append(f"{lab}.V{k}")
+            role.append("vertical")
+    for f in range(F - 1):
+        for k in range(p + 1):
+            ends.append((up(f, k), up(f + 1, k)))
+            ids.append(f"P{f + 1}.{k}")
+            role.append("purlin")
+    supports = {lo(f, k): "pin" for f in range(F) for k in (0, p)}
+    return Frame.from_arrays(coords, np.array(ends, dtype=np.int64).reshape(-1, 2),
+                             joint_ids=joint_ids, member_ids=ids, supports=supports,
+                             joint_tags={"frame": tuple(frame_tag)},
+                             member_tags={"role": tuple(role)},
+                             name=name if name is not None else
+                             f"roof of {F} plane trusses, {p} panels, bottom chords untied",
                              units=units)

@@ -51,6 +51,12 @@ class Limits:
         The search for one state of self-stress that stiffens every internal
         mechanism at once runs when ``internal_mechanisms <= common_prestress``
         (otherwise ``prestress_stable`` stays undetermined).  Default ``12``.
+    split_basis : int
+        With mechanisms found joint by joint, the mechanism basis is made
+        canonical block by block (``nullspace.canonical_split``, never a dense
+        ``free_coordinates x mechanisms`` array) when ``free_coordinates *
+        mechanisms > split_basis``, as one dense array otherwise.  The two give
+        the same modes to rounding.  Default ``1_000_000``.
     """
 
     dense_engine: int = 100_000
@@ -58,6 +64,7 @@ class Limits:
     redundancy_max: int = 20_000
     dense_soft: int = 1_500
     common_prestress: int = 12
+    split_basis: int = 1_000_000
 
 
 @dataclass(frozen=True)
@@ -334,6 +341,17 @@ class Tolerances:
         ``<= prestress_balance * max |t|``, ``t`` the declared member forces.
         Default ``1e-3``: forces typed to four significant figures pass, a
         member left out of the list (a whole force unbalanced) does not.
+    local_mechanism : float
+        A direction ``d`` (unit vector in a joint's free coordinates) is a
+        local mechanism of that joint when ``||C_j d|| <= local_mechanism``,
+        ``C_j`` the rows of the joint's members in those coordinates (direction
+        cosines, so the test is dimensionless): it is then taken out before the
+        rank decision (:func:`spaceframe.analysis.nullspace.local_mechanisms`).
+        Default ``1e-9``: exactly collinear or coplanar members give
+        ``||C_j d||`` of about ``1e-16``, and a perturbation this small moves no
+        singular value by more than ``sqrt(2) * 1e-9``, far below the rank
+        threshold ``rank * s_max`` (``s_max >= 1`` for any frame with a member
+        free at both ends), so the decision is the one the global engine makes.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -379,6 +397,7 @@ class Tolerances:
     one_way: float = 1e-5
     lp_feasibility: float = 1e-7
     prestress_balance: float = 1e-3
+    local_mechanism: float = 1e-9
     limits: Limits = Limits()
 
 

@@ -11,11 +11,11 @@ from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, local_basis, order_rigid
-from .nullspace import canonical_basis, decide_rank
+from .nullspace import canonical_basis, canonical_split, decide_rank
 from .oneway import one_way_test
 from .prestress import declared_prestress_test, prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
-from .soft import soft_modes
+from .soft import soft_modes, typical_stiffness
 
 __all__ = ["audit"]
 
@@ -116,12 +116,22 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     except InternalError as exc:
         exc.partial = {**known, **exc.partial}
         raise
-    k = decision.mechanisms.shape[1]
+    k = decision.count
     known.update(rank=decision.rank, mechanisms=k,
                  self_stress_states=decision.self_stress_count, engine=decision.method)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    _check_rigid_inside(decision.mechanisms, rigid, tol, known)
-    internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of(), tol=tol)
+    # many local mechanisms: their canonical basis block by block, never dense N x k
+    split = decision.local and C.shape[1] * k > tol.limits.split_basis
+    if split:
+        E, piv = canonical_split(decision.local_modes, decision.mechanisms, dofs.joint_of(),
+                                 tol=tol)
+        _check_rigid_inside(decision.mechanisms, rigid, tol, known, local=decision.local_modes)
+        internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv, tol=tol)
+        internal = internal.toarray()
+    else:
+        whole = decision.all_mechanisms()
+        _check_rigid_inside(whole, rigid, tol, known)
+        internal, rigid = local_basis(whole, rigid, dofs.joint_of(), tol=tol)
     rigid = order_rigid(rigid, dofs, frame.coords, tol=tol)
 
     mech = np.hstack([internal, rigid])
@@ -139,7 +149,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     # one projection serves the key-member probes and the product-force test
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
-    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol)
+    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol,
+                         forces=force)
     declared = declared_prestress_test(frame, C, dofs, modes[:ni],
                                        rigid_body_modes=rigid.shape[1], tol=tol)
     one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol,
@@ -148,9 +159,21 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
                       projected=both[:, :2], tol=tol)
     stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
     q = stress.shape[0]
-    sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of(),
-                    ea=frame.member_properties.get("EA"),
-                    perm=getattr(decision.project, "perm", None), tol=tol) if soft else None
+    ea = frame.member_properties.get("EA")
+    if not soft:
+        sm = None
+    elif split:
+        # the local mechanisms carry no stiffness: the same soft modes on C restricted
+        # to their complement, with the whole frame's typical stiffness
+        T = decision.rest
+        rest_joint = dofs.joint_of()[T.indices[T.indptr[:-1]]]
+        sm = soft_modes((C @ T).tocsr(), frame.lengths(), np.asarray(T.T @ decision.mechanisms),
+                        rest_joint, ea=ea, perm=getattr(decision.project, "perm", None),
+                        typical=typical_stiffness(C, frame.lengths(), ea), tol=tol)
+        sm = type(sm)(sm.ratios, np.asarray(T @ sm.vectors), sm.checked)
+    else:
+        sm = soft_modes(C, frame.lengths(), decision.all_mechanisms(), dofs.joint_of(), ea=ea,
+                        perm=decision.ordering, tol=tol)
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
@@ -193,11 +216,17 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
 
 
 def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances,
-                        known: dict) -> None:
-    """The permitted rigid-body motions must lie in the mechanism space found."""
-    k, r = mech.shape[1], rigid.shape[1]
-    if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid))
-              > tol.rigid_inside * np.sqrt(r)):
+                        known: dict, local=None) -> None:
+    """The permitted rigid-body motions must lie in the mechanism space found.
+
+    ``local`` (sparse, orthonormal and orthogonal to ``mech``), where given, is the rest
+    of that space.
+    """
+    k, r = mech.shape[1] + (0 if local is None else local.shape[1]), rigid.shape[1]
+    off = rigid - mech @ (mech.T @ rigid)
+    if local is not None:
+        off -= local @ (local.T @ rigid)
+    if r and (r > k or np.linalg.norm(off) > tol.rigid_inside * np.sqrt(r)):
         raise InternalError("a rigid-body motion permitted by the supports was not found among "
                             "the mechanisms; the dense engine (method='dense') may do for a "
                             "small frame", stage="mechanism basis",

@@ -30,6 +30,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.sparse as sp
 
 from ..model import Frame
 from ..naming import count, join_words, natural_key, numbered_only, placed, xyz
@@ -83,14 +84,17 @@ class ModeInfo:
     pivots: tuple[str, ...] = ()
 
 
-def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
-                tol: Tolerances = DEFAULT):
+def local_basis(mech, rigid: np.ndarray, joint_of: np.ndarray, *,
+                piv: np.ndarray | None = None, tol: Tolerances = DEFAULT):
     """Split the mechanism space into local internal modes and rigid-body modes.
 
     Parameters
     ----------
-    mech : (N, k) float
-        Orthonormal basis of the mechanism space, free coordinates.
+    mech : (N, k) float, or (N, k) scipy.sparse matrix
+        Orthonormal basis of the mechanism space, free coordinates; or, sparse,
+        its canonical basis already (:func:`~spaceframe.analysis.nullspace.canonical_split`)
+        with its pivots ``piv``.  The sparse form gives the same modes without
+        forming any dense ``N x k`` array.
     rigid : (N, r) float
         Orthonormal basis of the permitted rigid-body motions (inside
         ``span(mech)``).
@@ -101,7 +105,7 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
 
     Returns
     -------
-    internal : (N, k - r) float
+    internal : (N, k - r) float (scipy.sparse.csc_matrix for a sparse ``mech``)
         Internal modes, fewest moving joints first; each scaled so that its
         largest entry is 1 in magnitude.
     rigid : (N, r) float
@@ -114,6 +118,8 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
     k, r = mech.shape[1], rigid.shape[1]
     if k == 0:
         return mech, rigid
+    if sp.issparse(mech):
+        return _local_basis_sparse(mech, piv, rigid, joint_of, tol), rigid
     E = canonical_basis(mech, tol=tol)
     spread = np.array([_joint_count(E[:, i], joint_of) for i in range(k)])
     order = np.lexsort((np.arange(k), spread))
@@ -129,6 +135,45 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
             chosen.append(i)
             Q = np.hstack([Q, (res / nrm)[:, None]])
     return E[:, chosen], rigid
+
+
+def _local_basis_sparse(E, piv, rigid, joint_of, tol):
+    """:func:`local_basis` for a canonical basis held sparse.
+
+    The loop of the dense form keeps mode ``v_i`` (in order of spread) unless
+    it lies in the span of the rigid-body modes ``R`` and the modes kept before
+    it.  Since ``E`` is 1 at its own pivot and 0 at the others', ``R = E A``
+    with ``A = R[piv]`` (``k x r``), and ``v_i`` lies in that span exactly when
+    row ``A[i]`` is not in the span of the rows of ``A`` that come after it
+    (then some rigid-body motion is ``v_i`` plus later modes).  One backward
+    pass over the rows finds those ``r`` modes: O(k r^2) instead of O(N k^2).
+    """
+    E = sp.csc_matrix(E)
+    k, r = E.shape[1], rigid.shape[1]
+    nj = int(joint_of.max()) + 1 if len(joint_of) else 0
+    J = sp.csr_matrix((np.ones(len(joint_of)), (joint_of, np.arange(len(joint_of)))),
+                      shape=(nj, len(joint_of)))
+    S = sp.csc_matrix(J @ E.multiply(E))                  # squared joint movements
+    S.data = np.sqrt(S.data)
+    top = S.max(axis=0).toarray().ravel()
+    col = np.repeat(np.arange(k), np.diff(S.indptr))
+    spread = np.bincount(col[S.data > DISPLAY.moving * top[col]], minlength=k)
+    order = np.lexsort((np.arange(k), spread))
+    skip = set()
+    if r:
+        A = rigid[piv][order]
+        scale = np.linalg.norm(A, axis=1).max()
+        Q = np.zeros((r, 0))
+        for t in range(k - 1, -1, -1):
+            a = A[t] - Q @ (Q.T @ A[t]) if Q.shape[1] else A[t]
+            nrm = np.linalg.norm(a)
+            if nrm > tol.independent * scale:
+                skip.add(t)
+                Q = np.hstack([Q, (a / nrm)[:, None]])
+                if Q.shape[1] == r:
+                    break
+    chosen = [order[t] for t in range(k) if t not in skip][:k - r]
+    return E[:, chosen]
 
 
 def order_rigid(rigid: np.ndarray, dofs, coords: np.ndarray | None = None, *,

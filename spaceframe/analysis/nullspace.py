@@ -22,6 +22,12 @@ of the compatibility matrix ``C`` is judged zero when
     request, as projections ``t = y - C K^+ C.T y`` of seeded random member
     force vectors onto the null space of ``C.T``.
 
+Before either engine runs, the mechanisms that one joint's own members leave
+(:func:`local_mechanisms`: a joint free out of the plane of its members, a
+joint on a straight line of members, a joint with no member) are taken out
+exactly, and the engine sees only the rest of the frame's free coordinates;
+the union is the whole null space (the proof is in :func:`local_mechanisms`).
+
 Bases come out orthonormal; :func:`canonical_basis` makes any of them deterministic.
 
 References
@@ -47,7 +53,8 @@ import scipy.sparse.linalg as spla
 from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 
-__all__ = ["RankDecision", "decide_rank", "canonical_basis"]
+__all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
+           "canonical_pivots", "canonical_split"]
 
 _SEED = 20261201
 _BLOCK = 16  # right-hand sides per solve: SuperLU's multi-vector solve grows faster past this
@@ -61,9 +68,12 @@ class RankDecision:
     ----------
     rank : int
         Rank of ``C``.
-    mechanisms : (dofs, k) float
-        Orthonormal basis of the null space of ``C`` (inextensional
-        displacements), in free coordinates.
+    mechanisms : (dofs, k - local) float
+        Orthonormal basis of the mechanisms (inextensional displacements, in
+        free coordinates) that the engine found beyond the local ones; it is
+        orthogonal to ``local_modes``, and with them spans the null space of
+        ``C`` (:meth:`all_mechanisms`).  Without local mechanisms, the whole
+        null space.
     self_stress : (m, q) float
         Orthonormal, independent states of self-stress (in the null space of
         ``C.T``).  The dense engine gives them all; the sparse one at most the
@@ -95,6 +105,16 @@ class RankDecision:
         by ``s_max**2``: ``tol.rank**2`` unless the factorisation had to move
         it (then ``sqrt(shift)`` is the relative singular value threshold the
         count used).  None for the dense engine and where no count was made.
+    local_modes : (dofs, local) scipy.sparse.csc_matrix or None
+        The mechanisms found joint by joint (:func:`local_mechanisms`),
+        without the global solve; orthonormal, each confined to one joint.
+    rest : (dofs, dofs - local) scipy.sparse.csc_matrix or None
+        The orthonormal complement of ``local_modes`` the engine worked in
+        (``C @ rest`` is the matrix it decided on); None without local modes.
+    ordering : (dofs,) int or None
+        The fill-reducing ordering of the free coordinates the sparse engine
+        computed for ``C.T C`` (None in the dense engine); any matrix with
+        the pattern of ``C.T C`` may reuse it.
     """
 
     rank: int
@@ -108,6 +128,51 @@ class RankDecision:
     method: str
     project: object = None
     shift: float | None = None
+    local_modes: sp.csc_matrix | None = None
+    rest: sp.csc_matrix | None = None
+    ordering: np.ndarray | None = None
+
+    @property
+    def local(self) -> int:
+        """How many mechanisms were found joint by joint."""
+        return 0 if self.local_modes is None else self.local_modes.shape[1]
+
+    @property
+    def count(self) -> int:
+        """The number of mechanisms, ``dofs - rank``."""
+        return self.local + self.mechanisms.shape[1]
+
+    def all_mechanisms(self) -> np.ndarray:
+        """Orthonormal basis ``(dofs, count)`` of the whole null space, dense: local ones first."""
+        if not self.local:
+            return self.mechanisms
+        return np.hstack([self.local_modes.toarray(), self.mechanisms])
+
+
+@dataclass(frozen=True)
+class LocalSplit:
+    """The mechanisms each joint's own members leave, and the coordinates left.
+
+    Attributes
+    ----------
+    local : (N, l) scipy.sparse.csc_matrix
+        Orthonormal columns, each confined to the free coordinates of one
+        joint and in the null space of ``C``.
+    rest : (N, N - l) scipy.sparse.csc_matrix
+        Orthonormal columns spanning the orthogonal complement of ``local``,
+        block diagonal by joint (the unit columns of every joint with no
+        local mechanism, unchanged).
+    joint_of : (N - l,) int
+        Joint of each column of ``rest``.
+    """
+
+    local: sp.csc_matrix
+    rest: sp.csc_matrix
+    joint_of: np.ndarray
+
+    @property
+    def count(self) -> int:
+        return self.local.shape[1]
 
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
@@ -153,11 +218,200 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     m, n = C.shape
     if method == "auto":
         method = "dense" if m * n <= tol.limits.dense_engine else "sparse"
-    if method == "dense":
-        return _dense(C, self_stress_cap, tol)
-    if method == "sparse":
+    if method not in ("dense", "sparse"):
+        raise SpaceframeError(f"method must be 'auto', 'dense' or 'sparse', not {method!r}")
+    split = local_mechanisms(C, joint_of, tol=tol)
+    if split.count == 0:
+        if method == "dense":
+            return _dense(C, self_stress_cap, tol)
         return _sparse(C, joint_of, self_stress_cap, tol)
-    raise SpaceframeError(f"method must be 'auto', 'dense' or 'sparse', not {method!r}")
+    # The engine sees C restricted to the complement of the local mechanisms: same rank,
+    # same non-zero singular values, same null space of C.T (see local_mechanisms).
+    Cr = (C @ split.rest).tocsr()
+    Cr.eliminate_zeros()
+    try:
+        if method == "dense":
+            reduced = _dense(Cr, self_stress_cap, tol)
+        else:
+            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, full=(C, joint_of))
+    except InternalError as exc:  # what was known is the whole frame's, not the reduced one's
+        if "free_coordinates" in exc.partial:
+            exc.partial["free_coordinates"] = n
+        raise
+    L = split.local
+    mech = np.asarray(split.rest @ reduced.mechanisms)
+    stretch = np.sqrt(np.asarray((C @ L).multiply(C @ L).sum(axis=0)).ravel())
+    largest_zero = max([float(stretch.max())] +
+                       ([reduced.largest_zero] if reduced.largest_zero is not None else []))
+    return RankDecision(rank=reduced.rank, mechanisms=mech, self_stress=reduced.self_stress,
+                        self_stress_count=reduced.self_stress_count, s_max=reduced.s_max,
+                        threshold=reduced.threshold, largest_zero=largest_zero,
+                        smallest_nonzero=reduced.smallest_nonzero, method=reduced.method,
+                        project=reduced.project, local_modes=L, rest=split.rest,
+                        ordering=reduced.ordering if method == "sparse" else None,
+                        shift=reduced.shift)
+
+
+def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
+                     tol: Tolerances = DEFAULT) -> LocalSplit:
+    """The mechanisms of each joint that its own members leave, found joint by joint.
+
+    Let ``C_j`` be the columns of ``C`` at the free coordinates of joint
+    ``j`` (one row per member at ``j``: the member's direction cosines in the
+    joint's free basis, ``deg_j x c_j`` with ``c_j <= 3``).  A direction
+    ``d`` with ``C_j d = 0`` (here: ``||C_j d|| <= tol.local_mechanism``, a
+    right singular vector of ``C_j``) moves joint ``j`` alone and stretches
+    no member: ``C E_j d = C_j d = 0`` with ``E_j`` the embedding of joint
+    ``j``'s coordinates, so ``E_j d`` is a mechanism of the whole frame.
+    These are the modes of a joint whose members span fewer directions than
+    it is free to move in: every joint of a plane truss standing in space
+    (out of its plane), a joint between two collinear members (sideways), a
+    joint with no member.
+
+    Why the split is exact.  Collect the local directions of every joint in
+    the orthonormal, block-diagonal ``L`` (``N x l``) and an orthonormal
+    complement of each joint's directions in ``T`` (``N x (N - l)``), so that
+    ``[L T]`` is orthogonal.  Every ``x`` is ``L a + T b``, and ``C L = 0``, so
+    ``C x = C T b``: ``x`` is a mechanism iff ``b`` is in the null space of
+    ``C T``.  Hence::
+
+        null(C) = span(L)  (+)  T null(C T)        (orthogonal direct sum)
+
+    and, since ``C [L T] = [0  C T]`` with ``[L T]`` orthogonal, the non-zero
+    singular values of ``C`` and ``C T`` are the same, ``rank C = rank C T``,
+    ``range C = range C T`` and ``null(C.T) = null((C T).T)``: the states of
+    self-stress, the projector onto them and every quantity built from the
+    rank decision are those of ``C T``.  When ``C_j d`` is not exactly 0 but
+    at most ``delta = tol.local_mechanism``, ``C`` differs by at most
+    ``sqrt(2) delta`` in norm from a matrix for which the split is exact (a
+    member meets at most two joints), and by Weyl's inequality no singular
+    value moves farther than that: the rank decision is the same unless a
+    singular value lies within ``sqrt(2) delta`` of the threshold
+    ``tol.rank * s_max`` (which the rank decision's report then flags).
+
+    Parameters
+    ----------
+    C : (m, N) sparse matrix
+    joint_of : (N,) int, optional
+        Joint of each column; each column its own joint when absent.
+    tol : Tolerances, keyword-only
+        ``tol.local_mechanism`` bounds ``||C_j d||`` for a local direction.
+
+    Returns
+    -------
+    LocalSplit
+
+    Notes
+    -----
+    One batched SVD of the ``deg_j x c_j`` blocks, grouped by shape: O(nnz(C))
+    time and memory.
+    """
+    C = sp.coo_matrix(C)
+    m, N = C.shape
+    joint_of = np.arange(N) if joint_of is None else np.asarray(joint_of)
+    if N == 0:
+        empty = sp.csc_matrix((0, 0))
+        return LocalSplit(empty, empty, np.zeros(0, dtype=np.int64))
+    joints, jidx = np.unique(joint_of, return_inverse=True)
+    nj = len(joints)
+    count = np.bincount(jidx, minlength=nj)
+    width = int(count.max())
+    # the columns of each joint, in column order: colmat[j, a] is joint j's a-th coordinate
+    by_joint = np.argsort(jidx, kind="stable")
+    first = np.zeros(nj + 1, dtype=np.int64)
+    np.cumsum(count, out=first[1:])
+    slot = np.empty(N, dtype=np.int64)
+    slot[by_joint] = np.arange(N) - first[jidx[by_joint]]
+    colmat = np.full((nj, width), -1, dtype=np.int64)
+    colmat[jidx, slot] = np.arange(N)
+    # one row per (member, joint) end: the member's cosines in the joint's coordinates
+    keep = C.data != 0
+    rows, cols, vals = C.row[keep], C.col[keep], C.data[keep]
+    ends, end_of = np.unique(rows.astype(np.int64) * nj + jidx[cols], return_inverse=True)
+    end_joint = ends % nj
+    vec = np.zeros((len(ends), width))
+    vec[end_of, slot[cols]] = vals
+    deg = np.bincount(end_joint, minlength=nj)
+    efirst = np.zeros(nj + 1, dtype=np.int64)
+    np.cumsum(deg, out=efirst[1:])
+    order = np.argsort(end_joint, kind="stable")
+    pos = np.empty(len(ends), dtype=np.int64)
+    pos[order] = np.arange(len(ends)) - efirst[end_joint[order]]
+
+    null_count = np.zeros(nj, dtype=np.int64)
+    vt_all = {}
+    for dg, c in sorted(set(zip(deg.tolist(), count.tolist()))):
+        if c == 0:
+            continue
+        group = np.flatnonzero((deg == dg) & (count == c))
+        if dg == 0:
+            null_count[group] = c
+            vt_all[(dg, c)] = (group, np.broadcast_to(np.eye(c), (len(group), c, c)))
+            continue
+        where = np.full(nj, -1, dtype=np.int64)
+        where[group] = np.arange(len(group))
+        sel = np.flatnonzero(where[end_joint] >= 0)
+        A = np.zeros((len(group), dg, c))
+        A[where[end_joint[sel]], pos[sel], :] = vec[sel, :c]
+        if dg >= c:
+            # screen with the c x c Gram matrices, whose eigenvalues s**2 come out to about
+            # 1e-15 absolute (rows of norm <= 1): a joint whose smallest s**2 exceeds
+            # (1e4 tol.local_mechanism)**2 = 1e-10 has no s <= tol.local_mechanism and
+            # needs no SVD
+            lam = np.linalg.eigvalsh(np.einsum("gra,grb->gab", A, A))[:, 0]
+            pick = np.flatnonzero(lam <= (1e4 * tol.local_mechanism) ** 2)
+            group, A = group[pick], A[pick]
+            if not len(group):
+                continue
+        _, s, vt = np.linalg.svd(A, full_matrices=True)
+        s_pad = np.zeros((len(group), c))
+        s_pad[:, :s.shape[1]] = s
+        nulls = np.sum(s_pad <= tol.local_mechanism, axis=1)
+        null_count[group] = nulls
+        vt_all[(dg, c)] = (group, vt)
+
+    rest_count = count - null_count
+    rfirst = np.zeros(nj + 1, dtype=np.int64)
+    np.cumsum(rest_count, out=rfirst[1:])
+    lfirst = np.zeros(nj + 1, dtype=np.int64)
+    np.cumsum(null_count, out=lfirst[1:])
+    # joints with no local direction keep their own unit coordinates
+    plain = np.flatnonzero(null_count == 0)
+    pc = colmat[plain]
+    mask = pc >= 0
+    t_rows = [pc[mask]]
+    t_cols = [(rfirst[plain][:, None] + np.arange(width)[None, :])[mask]]
+    t_vals = [np.ones(int(mask.sum()))]
+    l_rows, l_cols, l_vals = [], [], []
+    for (dg, c), (group, vt) in vt_all.items():
+        nulls = null_count[group]
+        for nl in np.unique(nulls[nulls > 0]).tolist():
+            g = group[nulls == nl]
+            V = np.asarray(vt)[nulls == nl]                  # (G, c, c): rows are directions
+            loc = V[:, c - nl:, :].copy()                   # (G, nl, c)
+            big = np.argmax(np.abs(loc), axis=2)
+            sign = np.sign(np.take_along_axis(loc, big[:, :, None], axis=2))
+            loc *= np.where(sign == 0, 1.0, sign)
+            W = V[:, :c - nl, :]                            # (G, c - nl, c)
+            cm = colmat[g, :c]                              # (G, c)
+            l_rows.append(np.broadcast_to(cm[:, None, :], loc.shape).ravel())
+            l_cols.append(np.broadcast_to((lfirst[g][:, None] + np.arange(nl))[:, :, None],
+                                          loc.shape).ravel())
+            l_vals.append(loc.ravel())
+            if c - nl:
+                t_rows.append(np.broadcast_to(cm[:, None, :], W.shape).ravel())
+                t_cols.append(np.broadcast_to(
+                    (rfirst[g][:, None] + np.arange(c - nl))[:, :, None], W.shape).ravel())
+                t_vals.append(W.ravel())
+    l_tot, r_tot = int(lfirst[-1]), int(rfirst[-1])
+    cat = (lambda parts: np.concatenate(parts) if parts else np.zeros(0))
+    local = sp.csc_matrix((cat(l_vals), (cat(l_rows).astype(np.int64),
+                                         cat(l_cols).astype(np.int64))), shape=(N, l_tot))
+    rest = sp.csc_matrix((cat(t_vals), (cat(t_rows).astype(np.int64),
+                                        cat(t_cols).astype(np.int64))), shape=(N, r_tot))
+    local.eliminate_zeros()
+    rest.eliminate_zeros()
+    return LocalSplit(local=local, rest=rest, joint_of=np.repeat(joints, rest_count))
 
 
 def _dense(C, cap, tol) -> RankDecision:
@@ -181,9 +435,18 @@ def _dense(C, cap, tol) -> RankDecision:
                         project=_DenseProjector(null_t))
 
 
-def _sparse(C, joint_of, cap, tol) -> RankDecision:
+def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
+    """The sparse engine on ``C``.
+
+    ``full = (C0, joint_of0)``, when given, is the whole frame's matrix of
+    which ``C`` is the restriction to the complement of the local
+    mechanisms: the largest eigenvalue (the same) and the joint ordering are
+    then taken from it, so that they do not depend on the split, and the
+    ordering returned is that of ``C0``'s coordinates.
+    """
     m, n = C.shape
     K = (C.T @ C).tocsc()
+    K0 = K if full is None else (full[0].T @ full[0]).tocsc()
     if n == 0:
         return RankDecision(0, np.zeros((0, 0)), np.zeros((m, 0)), m, 0.0, 0.0, None, None,
                             "sparse", project=_EveryMember(m))
@@ -191,11 +454,16 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
         stress = np.eye(m, min(cap, m))
         return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse",
                             project=_EveryMember(m))
-    lam_max = _largest_eigenvalue(K, tol)
+    lam_max = _largest_eigenvalue(K0, tol)
     s_max = float(np.sqrt(lam_max))
     threshold = tol.rank * s_max
     tau = threshold ** 2
-    perm = _ordering(K, joint_of)
+    if full is None:
+        perm = ordering = _ordering(K, joint_of)
+    else:
+        joint_order = _joint_order(K0, full[1])
+        ordering = _expand(joint_order, full[1], K0.shape[0])
+        perm = _expand(joint_order, joint_of, n, like=full[1])
     Kp = K[perm][:, perm].tocsc()
     lu, tau = _shifted_ldl(Kp, tau)
     k = int(np.count_nonzero(lu.U.diagonal() < 0))
@@ -216,7 +484,7 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
                         self_stress_count=m - rank,
                         s_max=s_max, threshold=threshold, largest_zero=largest_zero,
                         smallest_nonzero=smallest, method="sparse", project=project,
-                        shift=tau / lam_max)
+                        ordering=ordering, shift=tau / lam_max)
 
 
 def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
@@ -231,9 +499,14 @@ def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
 
 def _ordering(K, joint_of) -> np.ndarray:
     """Fill-reducing symmetric ordering: nested dissection of the joint graph."""
+    return _expand(_joint_order(K, joint_of), joint_of, K.shape[0])
+
+
+def _joint_order(K, joint_of):
+    """Nested-dissection order of the joints (METIS), or None for small matrices."""
     n = K.shape[0]
     if n < 64:
-        return np.arange(n)
+        return None
     import pymetis
 
     if joint_of is None:
@@ -249,10 +522,23 @@ def _ordering(K, joint_of) -> np.ndarray:
         adjacency=pymetis.CSRAdjacency(adj_starts=G.indptr.astype(np.int64),
                                        adjacent=G.indices.astype(np.int64)),
         vweights=weights)
-    joint_perm = np.asarray(result[0] if isinstance(result, tuple) else result, dtype=np.int64)
-    # Expand joints to their coordinates, keeping each joint's coordinates together.
-    order = np.argsort(np.argsort(joint_perm, kind="stable")[dof_joint], kind="stable")
-    return order
+    return np.asarray(result[0] if isinstance(result, tuple) else result, dtype=np.int64)
+
+
+def _expand(joint_perm, joint_of, n, like=None):
+    """Coordinates in the order of their joints, each joint's coordinates kept together.
+
+    ``joint_perm`` orders the joints of ``like`` (default ``joint_of``);
+    ``joint_of`` may hold a subset of them (the coordinates left by the
+    local split).
+    """
+    if joint_perm is None:
+        return np.arange(n)
+    if joint_of is None:
+        joint_of = np.arange(n)
+    joints = np.unique(joint_of if like is None else like)
+    dof_joint = np.searchsorted(joints, joint_of)
+    return np.argsort(np.argsort(joint_perm, kind="stable")[dof_joint], kind="stable")
 
 
 def _shifted_ldl(Kp, tau):
@@ -428,13 +714,122 @@ def canonical_basis(B: np.ndarray, *, tol: Tolerances = DEFAULT) -> np.ndarray:
     -----
     Cost O(N k^2).
     """
+    return canonical_pivots(B, tol=tol)[0]
+
+
+def canonical_pivots(B: np.ndarray, *, tol: Tolerances = DEFAULT):
+    """:func:`canonical_basis` with its pivots and the pivoted QR's ``|R_ii|``.
+
+    Returns
+    -------
+    E : (N, k) float
+    piv : (k,) int
+        Pivot row of each column (``E[piv] = I`` before the scaling).
+    weight : (k,) float
+        ``|R_ii|`` of the column-pivoted QR, non-increasing: the order in which
+        the pivots were taken.
+    """
     N, k = B.shape
     if k == 0:
-        return B.copy()
+        return B.copy(), np.zeros(0, dtype=np.int64), np.zeros(0)
     Q, _ = np.linalg.qr(B)
-    _, _, piv = sla.qr(Q.T, mode="economic", pivoting=True)
+    _, R, piv = sla.qr(Q.T, mode="economic", pivoting=True)
     piv = piv[:k]
     E = np.linalg.solve(Q[piv, :].T, Q.T).T  # E[piv] = I
     E /= np.max(np.abs(E), axis=0)[None, :]
     E[np.abs(E) < tol.echelon_zero] = 0.0
-    return E
+    return E, piv, np.abs(np.diag(R))[:k]
+
+
+def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray, *,
+                    tol: Tolerances = DEFAULT):
+    """:func:`canonical_basis` of ``span(local) (+) span(rest)``, block by block.
+
+    The column-pivoted QR behind the canonical basis acts on the rows of an
+    orthonormal basis ``Q``; two coordinates ``a`` and ``b`` interact only
+    through ``(Q Q.T)[a, b]``.  Split the space into blocks with disjoint
+    coordinate supports (each local mode's joint, unless ``rest`` moves that
+    joint, and ``rest`` with the local modes of the joints it moves); then
+    ``Q Q.T`` is block diagonal, each block's pivots and echelon vectors are
+    those of the block alone, and the greedy pivot order of the whole is the
+    merge of the blocks' orders by ``|R_ii|`` (ties to the lower coordinate,
+    as LAPACK takes the first of equal columns).  So the result is that of
+    ``canonical_pivots(hstack([local, rest]))``, to rounding, at the cost of
+    the coupled block only.
+
+    Parameters
+    ----------
+    local : (N, l) sparse
+        Orthonormal local mechanisms, each confined to one joint.
+    rest : (N, g) float
+        Orthonormal, orthogonal to ``local``.
+    joint_of : (N,) int
+    tol : Tolerances, keyword-only
+        ``tol.echelon_zero``: entries of ``rest`` below it move no coordinate,
+        and entries of the result below it become 0, as in :func:`canonical_basis`.
+
+    Returns
+    -------
+    E : (N, l + g) scipy.sparse.csc_matrix
+        The canonical basis, columns in pivot order.
+    piv : (l + g,) int
+
+    Notes
+    -----
+    Cost O(nnz(local)) plus O(N_c g_c^2) for the coupled block of ``N_c``
+    coordinates and ``g_c`` vectors.
+    """
+    import heapq
+
+    local = sp.csc_matrix(local)
+    N, l = local.shape
+    g = rest.shape[1]
+    lrow = local.indices[local.indptr[:-1]] if l else np.zeros(0, dtype=np.int64)
+    ljoint = joint_of[lrow]
+    moved = np.abs(rest).max(axis=1) > tol.echelon_zero if g else np.zeros(N, dtype=bool)
+    touch = np.zeros(l, dtype=bool)
+    if l:
+        touch = np.maximum.reduceat(moved[local.indices].astype(np.int8),
+                                    local.indptr[:-1]).astype(bool) \
+            if local.nnz else touch
+    coupled_joints = np.unique(ljoint[touch])
+    coupled = np.isin(ljoint, coupled_joints)
+    rows = np.flatnonzero(moved | np.isin(joint_of, coupled_joints))
+    blocks = []                                   # (weights, pivots, (rows, values) per column)
+    if g or coupled.any():
+        B = np.hstack([rest[rows], local[rows][:, np.flatnonzero(coupled)].toarray()])
+        E, piv, w = canonical_pivots(B, tol=tol)
+        cols = [(rows[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i])
+                for i in range(E.shape[1])]
+        blocks.append(list(zip(w.tolist(), rows[piv].tolist(), cols)))
+    free = np.flatnonzero(~coupled)
+    by_joint = {}
+    for i in free.tolist():
+        by_joint.setdefault(int(ljoint[i]), []).append(i)
+    single = [c[0] for c in by_joint.values() if len(c) == 1]
+    if single:
+        sub = local[:, single]
+        for i in range(sub.shape[1]):
+            r = sub.indices[sub.indptr[i]:sub.indptr[i + 1]]
+            v = sub.data[sub.indptr[i]:sub.indptr[i + 1]]
+            top = int(np.argmax(np.abs(v)))
+            e = v / v[top]
+            e[np.abs(e) < tol.echelon_zero] = 0.0
+            keep = e != 0
+            blocks.append([(abs(v[top]) / np.linalg.norm(v), int(r[top]), (r[keep], e[keep]))])
+    for cols in (c for c in by_joint.values() if len(c) > 1):
+        sub = local[:, cols]
+        r = np.unique(sub.indices)
+        E, piv, w = canonical_pivots(sub[r].toarray(), tol=tol)
+        blocks.append([(wi, int(r[p]), (r[np.flatnonzero(E[:, i])], E[np.flatnonzero(E[:, i]), i]))
+                       for i, (wi, p) in enumerate(zip(w.tolist(), piv.tolist()))])
+    merged = list(heapq.merge(*blocks, key=lambda item: (-item[0], item[1])))
+    k = len(merged)
+    piv = np.array([item[1] for item in merged], dtype=np.int64)
+    indptr = np.zeros(k + 1, dtype=np.int64)
+    np.cumsum([len(item[2][0]) for item in merged], out=indptr[1:])
+    indices = np.concatenate([item[2][0] for item in merged]) if k else np.zeros(0, np.int64)
+    data = np.concatenate([item[2][1] for item in merged]) if k else np.zeros(0)
+    E = sp.csc_matrix((data, indices, indptr), shape=(N, k))
+    E.sort_indices()
+    return E, piv

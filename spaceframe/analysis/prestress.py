@@ -178,7 +178,8 @@ def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,
                    projected: np.ndarray | None = None,
-                   tol: Tolerances = DEFAULT) -> PrestressResult:
+                   tol: Tolerances = DEFAULT,
+                   forces: np.ndarray | None = None) -> PrestressResult:
     """Apply the product-force test to internal mechanisms.
 
     Parameters
@@ -194,6 +195,8 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     tol : Tolerances, keyword-only
         ``tol.stiffening`` decides a stiffening component;
         ``tol.limits.common_prestress`` caps the search for one state for all.
+    forces : (m, k) float, optional
+        ``product_forces(frame, modes)``, where the caller computed it.
 
     Returns
     -------
@@ -208,8 +211,7 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     if k == 0:
         return PrestressResult((), np.zeros((0, m)), None, None)
     L = frame.lengths()
-    du = _relative(frame, modes)
-    p = product_forces(frame, modes)
+    p = product_forces(frame, modes) if forces is None else forces
     P = project(p) if projected is None else projected
     orders, stress = [], np.zeros((k, m))
     for i in range(k):
@@ -220,7 +222,7 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
             orders.append(NOT_STIFFENED)
     if NOT_STIFFENED in orders:
         return PrestressResult(tuple(orders), stress, False, None)
-    certificate = _common_prestress(du, L, P, tol.stiffening) \
+    certificate = _common_prestress(_relative(frame, modes), L, P, tol.stiffening) \
         if k <= tol.limits.common_prestress else None
     return PrestressResult(tuple(orders), stress, True if certificate is not None else None,
                            certificate)

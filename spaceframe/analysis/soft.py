@@ -26,7 +26,7 @@ import scipy.sparse.linalg as spla
 
 from ..tolerances import DEFAULT, Tolerances
 
-__all__ = ["SoftModes", "soft_modes"]
+__all__ = ["SoftModes", "soft_modes", "typical_stiffness"]
 
 _SEED = 20261203
 
@@ -52,7 +52,7 @@ class SoftModes:
 
 
 def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None,
-               tol: Tolerances = DEFAULT) -> SoftModes:
+               typical: float | None = None, tol: Tolerances = DEFAULT) -> SoftModes:
     """The ``count`` softest modes above the mechanisms, kept where softer than ``tol.soft``.
 
     Parameters
@@ -68,6 +68,10 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None
     perm : (N,) int, optional
         A fill-reducing ordering already computed for ``C.T C`` (it has the
         same pattern); computed when absent.
+    typical : float, optional
+        The frame's typical stiffness, when ``C`` is only part of the frame's
+        coordinates (the complement of its local mechanisms, which carry no
+        stiffness); the median diagonal entry of ``K`` when absent.
     tol : Tolerances, keyword-only
         ``tol.soft``: the stiffness ratio below which a mode is soft;
         ``tol.soft_shift``; ``tol.limits.dense_soft``: the largest problem
@@ -86,8 +90,9 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None
         return empty
     w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
     K = (C.T @ sp.diags(w) @ C).tocsc()
-    diag = K.diagonal()
-    typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
+    if typical is None:
+        diag = K.diagonal()
+        typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
     if typical == 0:
         return empty
     if N <= tol.limits.dense_soft:
@@ -102,6 +107,17 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None
     ratios = vals / typical
     soft = ratios < tol.soft
     return SoftModes(ratios[soft], vecs[:, soft], width)
+
+
+def typical_stiffness(C, lengths, ea=None) -> float:
+    """The frame's typical stiffness: the median positive diagonal entry of ``C.T diag(EA/L) C``.
+
+    The diagonal is ``sum_e w_e C[e, i]**2``, formed without the matrix: O(nnz(C)).
+    """
+    m = C.shape[0]
+    w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
+    diag = np.asarray(sp.csr_matrix(C).multiply(C).T @ w).ravel()
+    return float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
 
 
 def _iterate(K, delta, mech, joint_of, width, perm, iterations: int = 4):
