@@ -70,6 +70,14 @@ class Tolerances:
         other, ``L`` the longer of the two diagonals, and cross inside both.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    held_stiffness : float
+        An IFC boundary condition that gives a translational spring instead of
+        a fixed translation holds that direction when its stiffness ``k``
+        satisfies ``k >= held_stiffness``, in N/m (the file's number, SI units
+        assumed).  Default ``1e10``: some 250 times the axial stiffness EA/L of
+        a steel tube of 10 cm^2 and 5 m (4e7 N/m), so such a support moves far
+        less than any member stretches; softer springs are left free (a
+        pin-jointed audit has no springs).
     """
 
     rank: float = 1e-6
@@ -82,6 +90,7 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    held_stiffness: float = 1e10
 
 
 DEFAULT = Tolerances()
