@@ -404,7 +404,9 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
     members and against the lines on layers that are not read; within
     ``tol.near_miss * size`` of one, the nearest decides the advice: on an
     unread layer, add it; within the merge distance of an interior with
-    splitting off, split; otherwise raise the merge distance past the gap.
+    splitting off, split; otherwise raise the merge distance past the gap,
+    which is the gap to the nearest joint when one lies within
+    ``tol.near_miss * size`` (an end most often stops short of a joint).
     """
     n = frame.n_joints
     degree = np.bincount(frame.ends.reshape(-1), minlength=n)
@@ -431,6 +433,14 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
             found.append(("layer", p, gap, f"a line on layer {unread_layers[k]!r} "
                           f"({_point(unread[k, 0])} to {_point(unread[k, 1])})",
                           str(unread_layers[k])))
+            continue
+        # the end most likely meant to meet a joint: the gap to the nearest one decides
+        to_joint = np.linalg.norm(frame.coords - p, axis=1)
+        to_joint[j] = np.inf
+        q = int(np.argmin(to_joint))
+        if to_joint[q] <= near:
+            found.append(("merge", p, float(to_joint[q]),
+                          f"joint {frame.joint_ids[q]} {_point(frame.coords[q])}", ""))
             continue
         line = (f"line {frame.member_ids[k]} ({_point(a[k])} to {_point(b[k])})")
         ab = b[k] - a[k]

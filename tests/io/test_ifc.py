@@ -234,7 +234,6 @@ def test_round_trip_toml_ifc_toml_keeps_joints_members_supports_tags(tmp_path):
     for kind in ("joint_tags", "member_tags"):          # a tag with no label comes back empty
         for k, labels in getattr(hall, kind).items():
             assert getattr(again, kind).get(k, ("",) * len(labels)) == labels
-    assert counts(again) == counts(hall)
 
 
 def test_round_trip_keeps_an_inclined_roller_and_a_plane_frame(tmp_path):
