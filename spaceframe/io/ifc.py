@@ -74,6 +74,8 @@ _ELEMENTS = ("IfcMember", "IfcBeam", "IfcColumn")
 #: IfcSIUnit prefixes of a metre kept as a unit of the model; others are converted to m.
 _PREFIX_UNITS = {None: "m", "CENTI": "cm", "MILLI": "mm"}
 _NAMED_UNITS = {"foot": "ft", "feet": "ft", "ft": "ft", "inch": "in", "inches": "in", "in": "in"}
+#: The header's time stamp: fixed, so that output is deterministic.
+_TIME_STAMP = "2000-01-01T00:00:00"
 _METRES = {"m": 1.0, "cm": 0.01, "mm": 0.001, "ft": 0.3048, "in": 0.0254}
 
 
@@ -595,4 +597,8 @@ def dump_ifc(frame: Frame, path, *, overwrite: bool = False) -> None:
     if items:
         f.createIfcRelAssignsToGroup(_guid(ifcopenshell, key, "group"), owner, None, None,
                                      items, None, model)
+    header = f.header.file_name
+    header.name = Path(target).name
+    header.time_stamp = _TIME_STAMP        # the same frame gives the same file, byte for byte
+    header.originating_system = "spaceframe"
     write_text(target, f.to_string(), overwrite=overwrite)

@@ -15,6 +15,7 @@ import pytest
 from click.testing import CliRunner
 
 import spaceframe
+import spaceframe.io
 from spaceframe import ModelError
 from spaceframe.cli import main
 from spaceframe.families import double_layer_grid
