@@ -43,6 +43,8 @@ The extrusion spec is a small TOML file::
     [drawing]                       # only when the planar frame is a drawing
     layers = ["TRUSS"]              # layers (DXF) or colours (SVG strokes) that are members
     merge = 0.001                   # distance within which line ends are one joint
+    split = true                    # split a line where another line's end lies on it
+    units = "mm"                    # only for a drawing that declares no unit
 
 Ids of the 3D model say where an item is: ``F3.U2`` is planar joint ``U2`` in
 frame 3 (and ``F3.TC2`` planar member ``TC2`` there); ``B2.U2`` is the tie at
