@@ -49,6 +49,7 @@ References
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import os
 import warnings
@@ -427,11 +428,7 @@ def _as_plane(frame: Frame, source: str) -> Frame:
 
 
 def _renamed(frame: Frame, name: str) -> Frame:
-    return Frame(joint_ids=frame.joint_ids, coords=frame.coords, member_ids=frame.member_ids,
-                 ends=frame.ends, restraint_joint=frame.restraint_joint,
-                 restraint_dir=frame.restraint_dir, dimension=frame.dimension, name=name,
-                 units=frame.units, source=frame.source, joint_tags=frame.joint_tags,
-                 member_tags=frame.member_tags, member_properties=frame.member_properties)
+    return dataclasses.replace(frame, name=name)
 
 
 def _point(x) -> str:

@@ -94,7 +94,7 @@ def test_units_reach_text_json_and_the_converted_file(tmp_path):
     text = CliRunner().invoke(main, ["audit", str(path), *rules])
     assert text.exit_code == 0 and "lengths in mm" in text.stdout
     doc = json.loads(CliRunner().invoke(main, ["audit", str(path), "--json", *rules]).stdout)
-    assert doc["frame"]["units"] == "mm" if "frame" in doc else doc["units"] == "mm"
+    assert doc["units"] == "mm"
     out = tmp_path / "pratt.toml"
     res = CliRunner().invoke(main, ["convert", str(path), "-o", str(out), *rules])
     assert res.exit_code == 0 and "lengths in mm" in res.stdout
