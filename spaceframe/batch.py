@@ -56,7 +56,6 @@ import difflib
 import io
 import json
 import os
-import re
 import time
 import warnings
 from dataclasses import dataclass, field
@@ -67,6 +66,7 @@ import numpy as np
 
 from .errors import ModelError, SpaceframeError, SpaceframeWarning
 from .model import Frame
+from .suggest import closest
 
 __all__ = ["Variant", "VariantSet", "Task", "COLUMNS", "BASE", "read_variants", "expand",
            "apply_variant", "audit_task", "error_row", "ResultsFile", "run_batch",
@@ -195,32 +195,34 @@ def read_variants(path) -> VariantSet:
         line and the fix.  Ids are not checked here (see :func:`apply_variant`).
     """
     from .io.settings import read_settings
+    from .io.sourcelines import SourceLines
 
     source = os.fspath(path)
     doc, text = read_settings(source, "variants")
-    lines = _variant_lines(text)
-    _check_keys(doc, _TOP_KEYS, "the variants file", source, None, text)
+    where = SourceLines(text)
+    lines = where.tables(("variant",))
+    _check_keys(doc, _TOP_KEYS, "the variants file", source, where, ())
     base = doc.get("base", True)
     if not isinstance(base, bool):
         raise ModelError(f"base must be true or false, not {base!r}", path=source,
-                         line=_key_line(text, "base"))
+                         line=where.line((), "base"))
     generate = doc.get("generate", {})
-    gen_line = _key_line(text, r"\[generate\]")
+    gen_line = where.table(("generate",))
     if not isinstance(generate, dict):
         raise ModelError("generate must be a table [generate] of each_member_removed = true "
                          "and each_support_freed = true", path=source, line=gen_line)
-    _check_keys(generate, _GENERATORS, "[generate]", source, gen_line, text)
-    gen_lines = {key: _key_line(text, key) for key in _GENERATORS}
+    _check_keys(generate, _GENERATORS, "[generate]", source, where, ("generate",), line=gen_line)
+    gen_lines = {key: where.line(("generate",), key) for key in _GENERATORS}
     gens = {key: _generator(generate.get(key, False), key, source, gen_lines[key])
             for key in _GENERATORS}
     raw = doc.get("variant", [])
     if not isinstance(raw, list) or not all(isinstance(v, dict) for v in raw):
         raise ModelError('variants are tables [[variant]], each with name = "..." and its '
-                         'changes', path=source, line=_key_line(text, "variant"))
+                         'changes', path=source, line=where.line((), "variant"))
     variants, seen = [], {}
     for i, entry in enumerate(raw):
         line = lines[i] if i < len(lines) else None
-        variants.append(_variant(entry, source, line, text))
+        variants.append(_variant(entry, source, line, where, i + 1))
         name = variants[-1].name
         if name in seen or name == BASE:
             first = "the model as given" if name == BASE else f"line {seen[name]}"
@@ -231,29 +233,15 @@ def read_variants(path) -> VariantSet:
                       **gens)
 
 
-def _variant_lines(text: str) -> list[int]:
-    """1-based lines of the ``[[variant]]`` headers, in order."""
-    return [i + 1 for i, row in enumerate(text.splitlines())
-            if re.match(r"\s*\[\[\s*variant\s*\]\]", row)]
-
-
-def _key_line(text: str, key: str, start: int | None = None) -> int | None:
-    """The first line from ``start`` (1-based) starting with ``key`` (a regular expression)."""
-    rows = text.splitlines()
-    first = (start or 1) - 1
-    for i, row in enumerate(rows[first:], first + 1):
-        if re.match(rf"\s*{key}(?![\w.-])", row):
-            return i
-    return None
-
-
-def _check_keys(table: dict, known, what: str, source, line, text: str = "") -> None:
+def _check_keys(table: dict, known, what: str, source, where, path: tuple, *, nth: int = 1,
+                line: int | None = None) -> None:
+    """Refuse a key not in ``known``, at its line (``where``: the file's SourceLines)."""
     for key in table:
         if key not in known:
-            close = difflib.get_close_matches(key, known, n=1)
-            hint = f"did you mean {close[0]!r}?" if close else f"the keys are {', '.join(known)}"
+            close = closest(key, known)
+            hint = f"did you mean {close!r}?" if close else f"the keys are {', '.join(known)}"
             raise ModelError(f"unknown key {key!r} in {what}; {hint}", path=source,
-                             line=_key_line(text, re.escape(key), line) or line)
+                             line=where.line(path, key, nth=nth) or line)
 
 
 def _generator(value, key: str, source, line):
@@ -268,14 +256,15 @@ def _generator(value, key: str, source, line):
     raise ModelError(f"{key} takes {what}; not {value!r}", path=source, line=line)
 
 
-def _variant(entry: dict, source, line, text: str) -> Variant:
+def _variant(entry: dict, source, line, where, nth: int) -> Variant:
     def fail(message):
         return ModelError(message, path=source, line=line, item=entry.get("name"))
 
     name = entry.get("name")
     if not isinstance(name, str) or not name.strip():
         raise fail('a variant needs a name: name = "..." (text, not empty)')
-    _check_keys(entry, _VARIANT_KEYS, f"variant {name!r}", source, line, text)
+    _check_keys(entry, _VARIANT_KEYS, f"variant {name!r}", source, where, ("variant",), nth=nth,
+                line=line)
 
     def ids(key):
         value = entry.get(key, [])

@@ -37,11 +37,21 @@ class ModelError(SpaceframeError):
         1-based line of the file where the problem stands, where known.
     item : str, optional
         The joint, member or support id concerned.
+    kind : str, optional
+        What ``item`` is: ``"joint"``, ``"member"``, ``"support"``, ``"key"``...
+        Checks that know no file (:mod:`spaceframe.validation`) give the item
+        and its kind; the reader adds the file and line
+        (:func:`spaceframe.io.sourcelines.locate`).
+    marks : sequence of (int, str, str), optional
+        ``(offset, kind, id)``: places in ``message``, just after another
+        item's id, where the reader may note that item's line.
     """
 
     def __init__(self, message: str, *, path: str | None = None,
-                 line: int | None = None, item: str | None = None):
+                 line: int | None = None, item: str | None = None,
+                 kind: str | None = None, marks=()):
         self.path, self.line, self.item, self.reason = path, line, item, message
+        self.kind, self.marks = kind, tuple(marks)
         super().__init__(where(path, line) + message)
 
 
@@ -49,12 +59,16 @@ class OutputExistsError(ModelError):
     """An output file exists and the caller did not allow replacing it.
 
     The message names the file and says how to go on in the library's terms;
-    the command line adds its own option for replacing the file.
+    the command line adds its own option for replacing the file.  ``option``
+    names the argument that allows it where the caller has one
+    (``"overwrite=True"``).
     """
 
-    def __init__(self, path: str):
-        super().__init__("already exists and is not overwritten; choose another name, or "
-                         "allow replacing it", path=path)
+    def __init__(self, path: str, *, option: str | None = None):
+        self.option = option
+        how = f"pass {option}" if option else "allow replacing it"
+        super().__init__(f"already exists and is not overwritten; choose another name, or {how}",
+                         path=path)
 
 
 class InternalError(RuntimeError):
@@ -84,4 +98,13 @@ class InternalError(RuntimeError):
 
 
 class SpaceframeWarning(UserWarning):
-    """Something the user should know that does not stop the audit."""
+    """Something the user should know that does not stop the audit.
+
+    Like :class:`ModelError` it may carry the ``item``, its ``kind`` and
+    ``marks`` for the reader to add the file and lines.
+    """
+
+    def __init__(self, message: str = "", *, item: str | None = None,
+                 kind: str | None = None, marks=()):
+        self.item, self.kind, self.marks = item, kind, tuple(marks)
+        super().__init__(message)

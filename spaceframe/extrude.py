@@ -65,7 +65,6 @@ from __future__ import annotations
 
 import difflib
 import os
-import re
 import warnings
 from dataclasses import dataclass, field
 
@@ -74,6 +73,7 @@ import numpy as np
 from .errors import ModelError, SpaceframeWarning, where
 from .model import Frame
 from .selection import parse_selector, select
+from .suggest import closest, did_you_mean
 from .supports import restraint_rows
 from .tolerances import DEFAULT, Tolerances
 
@@ -133,8 +133,15 @@ class Spec:
     text: str | None = None
 
     def line(self, section: str | None, key: str | None = None, nth: int = 1) -> int | None:
-        """The line of ``key`` in the ``nth`` table ``[section]`` / ``[[section]]``, where found."""
-        return _spec_line(self.text, section, key, nth)
+        """The line of ``key`` in the ``nth`` table ``[section]`` / ``[[section]]``, where found.
+
+        Else the line of that table's header (None: the top level).  Found by
+        :class:`~spaceframe.io.sourcelines.SourceLines`, when a message needs it.
+        """
+        from .io.sourcelines import SourceLines
+
+        table = () if section is None else (section,)
+        return SourceLines(self.text).near(table, key, nth=nth)
 
     def error(self, message: str, section: str | None = None, key: str | None = None,
               nth: int = 1, item: str | None = None) -> ModelError:
@@ -183,8 +190,8 @@ def spec_from_document(doc: dict, *, path=None, text: str | None = None) -> Spec
     probe = Spec(frames=1, bays=np.zeros(0), source=source, text=text)
     for key in doc:
         if key not in SPEC_KEYS:
-            close = difflib.get_close_matches(key, SPEC_KEYS, n=1)
-            hint = f"did you mean {close[0]!r}? " if close else ""
+            close = closest(key, SPEC_KEYS)
+            hint = f"did you mean {close!r}? " if close is not None else ""
             warnings.warn(f"{where(source, probe.line(None, key))}unknown spec key {key!r} is "
                           f"ignored; {hint}the keys are {', '.join(SPEC_KEYS)}",
                           SpaceframeWarning, stacklevel=3)
@@ -368,9 +375,8 @@ def _bracing(entry: dict, nth: int, frames: int, planes: dict, probe: Spec) -> d
                       what="plane names from [planes]")
     for name in names:
         if name not in planes:
-            close = difflib.get_close_matches(name, list(planes), n=1)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
-            raise probe.error(f"bracing names plane {name!r}, which is not in [planes]{hint}; "
+            raise probe.error(f"bracing names plane {name!r}, which is not in [planes]"
+                              f"{did_you_mean(name, planes)}; "
                               f"add it there as {name} = [planar joint ids]",
                               "bracing", "planes", nth)
     pattern = entry.get("pattern", "cross")
@@ -400,27 +406,6 @@ def _posts(doc: dict, frames: int, probe: Spec) -> dict | None:
             "foot": str(posts.get("foot", "pin")), "line": probe.line("posts", "at"),
             "frames": _numbers_set(posts.get("frames", "ends"), frames, probe, "posts", "frames",
                                    1, "frame")}
-
-
-def _spec_line(text: str | None, section: str | None, key: str | None, nth: int) -> int | None:
-    """Line of ``key`` in the ``nth`` ``[section]``/``[[section]]`` (None: top level)."""
-    if text is None:
-        return None
-    seen, current, header_line = 0, None, None
-    for k, line in enumerate(text.splitlines(), 1):
-        m = re.match(r"^\s*\[\[?\s*([^\[\]]+?)\s*\]\]?\s*(?:#.*)?$", line)
-        if m:
-            current = m.group(1).strip().strip("'\"")
-            if current == section:
-                seen += 1
-                header_line = k if seen == nth else header_line
-            continue
-        in_place = (section is None and current is None) or (current == section and seen == nth)
-        if in_place and key is not None:
-            km = re.match(r"""^\s*("[^"]*"|'[^']*'|[A-Za-z0-9_-]+)\s*=""", line)
-            if km and km.group(1).strip("'\"") == key:
-                return k
-    return header_line
 
 
 # ------------------------------------------------------------- the extrusion

@@ -38,7 +38,6 @@ repeatable) and, for imported geometry, from a sidecar file beside the model,
 from __future__ import annotations
 
 import dataclasses
-import difflib
 import os
 import re
 import tomllib
@@ -50,6 +49,7 @@ import numpy as np
 
 from .errors import ModelError
 from .model import Frame
+from .suggest import did_you_mean
 from .supports import AXES, restraint_rows
 from .tolerances import DEFAULT, Tolerances
 
@@ -157,10 +157,9 @@ def select(selector: Selector, frame: Frame, *, tol: Tolerances = DEFAULT,
         index = {j: i for i, j in enumerate(frame.joint_ids)}
         for jid in selector.ids:
             if jid not in index:
-                close = difflib.get_close_matches(jid, list(index), n=1)
-                hint = f" (did you mean {close[0]!r}?)" if close else ""
                 raise ModelError(f"selection {selector.text!r} names joint {jid!r}, which is not "
-                                 f"in the model{hint}; correct the id", item=jid, **at)
+                                 f"in the model{did_you_mean(jid, index)}; correct the id",
+                                 item=jid, kind="joint", **at)
         return np.array(sorted({index[j] for j in selector.ids}), dtype=np.int64)
     if frame.n_joints == 0:
         raise ModelError(f"selection {selector.text!r}: the model has no joints", **at)
@@ -282,9 +281,11 @@ def read_sidecar(path) -> tuple[list[str], list[int | None]]:
     if not (isinstance(rules, list) and all(isinstance(r, str) for r in rules)):
         raise ModelError('a supports file holds one list of rules, e.g. supports = '
                          '["pin at z = min"]; ' + _GRAMMAR, path=source)
-    lines = text.splitlines()
-    found = [next((k for k, s in enumerate(lines, 1) if rule in s), None) for rule in rules]
-    return rules, found
+    from .io.sourcelines import SourceLines
+
+    where = SourceLines(text)
+    start = where.line((), "supports") or 1
+    return rules, [where.containing(rule, start) for rule in rules]
 
 
 def supports_for(frame: Frame, model, rules: Sequence[str] = (), *,

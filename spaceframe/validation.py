@@ -5,7 +5,9 @@ Readers check the document (ids, types, counts) and build a :class:`Frame`;
 that are not finite, members that join a joint to itself or have no length,
 separate joints at one point, and members given twice.  Every reader calls it
 last, so every model, whatever its file format, passes the same checks with
-the same messages.
+the same messages.  The errors name the items and their kind, never a file:
+the reader adds the file and line (:func:`spaceframe.io.sourcelines.checked`),
+so this module imports nothing from :mod:`spaceframe.io`.
 """
 
 from __future__ import annotations
@@ -13,11 +15,9 @@ from __future__ import annotations
 import dataclasses
 import warnings
 from itertools import compress
-from typing import Callable
-
 import numpy as np
 
-from .errors import ModelError, SpaceframeError, SpaceframeWarning, where
+from .errors import ModelError, SpaceframeWarning
 from .model import Frame
 from .tolerances import DEFAULT, Tolerances
 
@@ -27,8 +27,7 @@ __all__ = ["check_frame"]
 _LISTED = 5
 
 
-def check_frame(frame: Frame, *, tol: Tolerances = DEFAULT,
-                locate: Callable[[str, str], int | None] | None = None) -> Frame:
+def check_frame(frame: Frame, *, tol: Tolerances = DEFAULT) -> Frame:
     """Check a frame's geometry; return it, with repeated members counted once.
 
     The checks, in order (the first failure is raised):
@@ -59,12 +58,6 @@ def check_frame(frame: Frame, *, tol: Tolerances = DEFAULT,
     tol : Tolerances, optional
         ``tol.short_member`` and ``tol.coincident`` are used, both relative to
         the model's size.
-    locate : callable ``(kind, id) -> int or None``, optional
-        Finds the source line of ``("joint" | "member", id)`` when a message
-        needs it.  Readers pass one that searches the text they have already
-        read.  Without it the line comes from ``frame.lines`` or, failing
-        that, from searching ``frame.source`` again (see
-        :func:`spaceframe.io.find_line`).
 
     Returns
     -------
@@ -75,21 +68,24 @@ def check_frame(frame: Frame, *, tol: Tolerances = DEFAULT,
     Raises
     ------
     ModelError
-        For the first failed check among 1-4, naming the file, the line where
-        known, the joint or member ids, what is wrong and what to do.
+        For the first failed check among 1-4, naming the joint or member ids,
+        what is wrong and what to do.  It carries the ``item`` and its
+        ``kind`` (``"joint"`` or ``"member"``) and no file: this module knows
+        no files.  Readers add the file and line
+        (:func:`spaceframe.io.sourcelines.checked`).
 
     Warns
     -----
     SpaceframeWarning
-        For repeated members, naming each repeat and the member it repeats.
+        For repeated members, naming each repeat and the member it repeats;
+        it carries the first repeat as ``item`` (``kind`` ``"member"``).
 
     Notes
     -----
     Cost O(n log n + m log m) for n joints and m members: the coincidence test
     builds a k-d tree of the joints [2]_ and asks it for the pairs within the
     tolerance; repeated members are found by sorting a key made from the two
-    end indices.  Lines are looked up only for the items named in a message,
-    so a valid model costs no text search at all.
+    end indices.
 
     References
     ----------
@@ -105,52 +101,42 @@ def check_frame(frame: Frame, *, tol: Tolerances = DEFAULT,
     >>> check_frame(f) is f
     True
     """
-    line = _line_finder(frame, locate)
-    _check_finite(frame, line)
+    _check_finite(frame)
     size = frame.size()
-    _check_members(frame, tol, size, line)
-    _check_coincident(frame, tol, size, line)
-    return _drop_repeated_members(frame, line)
+    _check_members(frame, tol, size)
+    _check_coincident(frame, tol, size)
+    return _drop_repeated_members(frame)
 
 
-def _line_finder(frame: Frame, locate) -> Callable[[str, str], int | None]:
-    """Return ``line(kind, id)``: from ``frame.lines``, ``locate``, or the source file."""
-    def line(kind: str, item: str) -> int | None:
-        known = frame.line_of(kind, item)
-        if known is not None:
-            return known
-        if locate is not None:
-            return locate(kind, item)
-        if frame.source is None:
-            return None
-        from .io import find_line     # the error path only; io imports this module
-        try:
-            return find_line(frame.source, kind, item)
-        except (SpaceframeError, OSError):
-            return None
-    return line
+def _message(*parts) -> tuple[str, tuple]:
+    """Join message parts; a part ``(kind, id)`` is the id, quoted, marked for its line note.
+
+    Returns the text and the marks ``(offset, kind, id)`` of
+    :class:`~spaceframe.errors.ModelError`, where a reader that knows the file
+    notes ``" (line N)"``.
+    """
+    text, marks = "", []
+    for part in parts:
+        if isinstance(part, tuple):
+            text += repr(part[1])
+            marks.append((len(text), part[0], part[1]))
+        else:
+            text += part
+    return text, tuple(marks)
 
 
-def _line_note(line: int | None) -> str:
-    return f" (line {line})" if line is not None else ""
-
-
-def _error(frame: Frame, message: str, *, line: int | None, item: str) -> ModelError:
-    return ModelError(message, path=frame.source, line=line, item=item)
-
-
-def _check_finite(frame: Frame, line) -> None:
+def _check_finite(frame: Frame) -> None:
     bad = np.flatnonzero(~np.isfinite(frame.coords).all(axis=1))
     if bad.size == 0:
         return
     jid = frame.joint_ids[bad[0]]
     more = f" ({bad.size - 1} more joints also)" if bad.size > 1 else ""
-    raise _error(frame, f"joint {jid!r} has a coordinate that is not a finite number "
-                        f"({frame.coords[bad[0]].tolist()}){more}; give every coordinate as a "
-                        f"finite number", line=line("joint", jid), item=jid)
+    raise ModelError(f"joint {jid!r} has a coordinate that is not a finite number "
+                     f"({frame.coords[bad[0]].tolist()}){more}; give every coordinate as a "
+                     f"finite number", item=jid, kind="joint")
 
 
-def _check_members(frame: Frame, tol: Tolerances, size: float, line) -> None:
+def _check_members(frame: Frame, tol: Tolerances, size: float) -> None:
     if frame.n_members == 0:
         return
     a, b = frame.ends[:, 0], frame.ends[:, 1]
@@ -158,9 +144,9 @@ def _check_members(frame: Frame, tol: Tolerances, size: float, line) -> None:
     if loops.size:
         k = loops[0]
         mid, jid = frame.member_ids[k], frame.joint_ids[a[k]]
-        raise _error(frame, f"member {mid!r} has both ends at joint {jid!r}; a member joins two "
-                            f"different joints: correct one end or delete the member",
-                     line=line("member", mid), item=mid)
+        raise ModelError(f"member {mid!r} has both ends at joint {jid!r}; a member joins two "
+                         f"different joints: correct one end or delete the member",
+                         item=mid, kind="member")
     limit = tol.short_member * size
     lengths = frame.lengths()
     short = np.flatnonzero(lengths <= limit)
@@ -169,15 +155,15 @@ def _check_members(frame: Frame, tol: Tolerances, size: float, line) -> None:
         mid = frame.member_ids[k]
         ja, jb = frame.joint_ids[a[k]], frame.joint_ids[b[k]]
         u = frame.units
-        raise _error(frame, f"member {mid!r} from joint {ja!r} to joint {jb!r} has length "
-                            f"{lengths[k]:.3g} {u}, at or below the zero-length tolerance "
-                            f"of {limit:.3g} {u} ({tol.short_member:g} x the model size, "
-                            f"{size:.6g} {u}); joints {ja!r} and {jb!r} are at one point: move one "
-                            f"of them, or merge them and delete the member",
-                     line=line("member", mid), item=mid)
+        raise ModelError(f"member {mid!r} from joint {ja!r} to joint {jb!r} has length "
+                         f"{lengths[k]:.3g} {u}, at or below the zero-length tolerance "
+                         f"of {limit:.3g} {u} ({tol.short_member:g} x the model size, "
+                         f"{size:.6g} {u}); joints {ja!r} and {jb!r} are at one point: move one "
+                         f"of them, or merge them and delete the member",
+                         item=mid, kind="member")
 
 
-def _check_coincident(frame: Frame, tol: Tolerances, size: float, line) -> None:
+def _check_coincident(frame: Frame, tol: Tolerances, size: float) -> None:
     if frame.n_joints < 2:
         return
     from scipy.spatial import cKDTree
@@ -191,15 +177,16 @@ def _check_coincident(frame: Frame, tol: Tolerances, size: float, line) -> None:
     dist = float(np.linalg.norm(frame.coords[j] - frame.coords[i]))
     more = f" ({len(pairs) - 1} more such pairs)" if len(pairs) > 1 else ""
     u = frame.units
-    raise _error(frame, f"joints {ja!r}{_line_note(line('joint', ja))} and {jb!r} are "
-                        f"{dist:.3g} {u} apart, within the coincident-joint tolerance of "
-                        f"{limit:.3g} {u} ({tol.coincident:g} x the model size, {size:.6g} {u})"
-                        f"{more}; two separate joints at one point make a false "
-                        f"mechanism: merge them into one joint (and point their members at it) "
-                        f"or move one of them", line=line("joint", jb), item=jb)
+    text, marks = _message(
+        "joints ", ("joint", ja),
+        f" and {jb!r} are {dist:.3g} {u} apart, within the coincident-joint tolerance of "
+        f"{limit:.3g} {u} ({tol.coincident:g} x the model size, {size:.6g} {u}){more}; two "
+        f"separate joints at one point make a false mechanism: merge them into one joint (and "
+        f"point their members at it) or move one of them")
+    raise ModelError(text, item=jb, kind="joint", marks=marks)
 
 
-def _drop_repeated_members(frame: Frame, line) -> Frame:
+def _drop_repeated_members(frame: Frame) -> Frame:
     m, n = frame.n_members, frame.n_joints
     if m < 2:
         return frame
@@ -217,18 +204,16 @@ def _drop_repeated_members(frame: Frame, line) -> Frame:
     dropped, kept_as = dropped[by_index], kept_as[by_index]
 
     ids, jids = frame.member_ids, frame.joint_ids
-    first_line = line("member", ids[dropped[0]])
-    notes = []
+    parts = []
     for d, k in zip(dropped[:_LISTED], kept_as[:_LISTED]):
-        dl = first_line if d == dropped[0] else line("member", ids[d])
-        notes.append(f"member {ids[d]!r}{_line_note(dl)} repeats member {ids[k]!r}"
-                     f"{_line_note(line('member', ids[k]))} between joints "
-                     f"{jids[lo[k]]!r} and {jids[hi[k]]!r}")
+        parts += ["; " if parts else "", "member ", ("member", ids[d]), " repeats member ",
+                  ("member", ids[k]), f" between joints {jids[lo[k]]!r} and {jids[hi[k]]!r}"]
     if len(dropped) > _LISTED:
-        notes.append(f"and {len(dropped) - _LISTED} more")
-    warnings.warn(f"{where(frame.source, first_line)}{'; '.join(notes)}; two bars between the same "
-                  f"pins act as one bar, so each repeat is counted once: delete the repeats",
-                  SpaceframeWarning, stacklevel=3)
+        parts.append(f"; and {len(dropped) - _LISTED} more")
+    text, marks = _message(*parts, "; two bars between the same pins act as one bar, so each "
+                                   "repeat is counted once: delete the repeats")
+    warnings.warn(SpaceframeWarning(text, item=ids[dropped[0]], kind="member", marks=marks),
+                  stacklevel=3)
     keep = np.ones(m, dtype=bool)
     keep[dropped] = False
     return dataclasses.replace(frame, member_ids=tuple(compress(ids, keep)),

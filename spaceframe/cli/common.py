@@ -8,7 +8,7 @@ import warnings
 
 import click
 
-from ..errors import SpaceframeError, SpaceframeWarning
+from ..errors import OutputExistsError, SpaceframeError, SpaceframeWarning
 
 __all__ = ["run_guarded", "debug_option", "force_option", "supports_option", "reading_options",
            "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
@@ -80,7 +80,8 @@ def run_guarded(job, *, debug: bool = False):
     except SpaceframeError as exc:
         if debug:
             raise
-        click.echo(f"spaceframe: error: {exc}", err=True)
+        with_flag = " with --force" if isinstance(exc, OutputExistsError) and not exc.option else ""
+        click.echo(f"spaceframe: error: {exc}{with_flag}", err=True)
         sys.exit(EXIT_BAD_INPUT)
     except (KeyboardInterrupt, click.exceptions.Exit, click.ClickException, SystemExit):
         raise

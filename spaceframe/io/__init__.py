@@ -21,6 +21,7 @@ from .csvpair import read_csv_pair
 from .drawing import DRAWING_SUFFIXES, read_drawing
 from .ifc import IFC_SUFFIXES, dump_ifc, read_ifc
 from .mesh import MESH_SUFFIXES, read_mesh
+from .output import check_output
 
 __all__ = ["load", "load_planar", "save", "find_line", "READERS", "LINE_FINDERS", "WRITERS"]
 
@@ -136,25 +137,14 @@ def save(frame: Frame, path, *, overwrite: bool = False, inputs=()) -> None:
     Raises
     ------
     ModelError
-        For another suffix, a path that is one of the inputs, or an existing
-        file without ``overwrite``.
+        For another suffix, a path that is one of the inputs (see
+        :func:`~spaceframe.io.output.check_output`).
+    OutputExistsError
+        For an existing file without ``overwrite``.
     """
-    target = os.fspath(path)
-    writer = WRITERS.get(Path(target).suffix.lower())
-    if writer is None:
-        raise ModelError("a model is written as .toml, .json, .npz (binary, for large "
-                         "frames) or .ifc (a structural analysis model); give the output one of "
-                         "those suffixes", path=target)
-    for source in inputs:
-        source = os.fspath(source)
-        if os.path.realpath(source) == os.path.realpath(target) or (
-                os.path.exists(target) and os.path.samefile(source, target)):
-            raise ModelError("is an input of this command and is never overwritten; write to "
-                             "another file", path=target)
-    if os.path.exists(target) and not overwrite:
-        raise ModelError("already exists and is not overwritten; choose another name, or pass "
-                         "--force to replace it", path=target)
-    writer(frame, target, overwrite=overwrite)
+    target = check_output(path, inputs=inputs, overwrite=overwrite, suffixes=tuple(WRITERS),
+                          what="a model")
+    WRITERS[Path(target).suffix.lower()](frame, target, overwrite=overwrite)
 
 
 def find_line(path, kind: str, item: str) -> int | None:
@@ -170,7 +160,8 @@ def find_line(path, kind: str, item: str) -> int | None:
 
     Notes
     -----
-    Reads the file again and searches it; meant for messages only.
+    Reads the file again and searches it (:mod:`spaceframe.io.sourcelines`);
+    meant for messages only.
     """
     finder = LINE_FINDERS.get(Path(os.fspath(path)).suffix.lower())
     if finder is None:

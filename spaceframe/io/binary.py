@@ -9,9 +9,9 @@ property (``member_property:<name>``).  It is read with
 ``numpy.load(..., allow_pickle=False)``: nothing in it can run code.  A
 ``format`` entry names the layout so later versions can read older files.
 
-The same checks as for text models run on reading (:func:`check_frame`), so
-a hand-made archive with a member to a missing joint is refused with a
-message, not a traceback.
+The same checks as for text models run on reading
+(:func:`~spaceframe.validation.check_frame`), so a hand-made archive with a
+member to a missing joint is refused with a message, not a traceback.
 """
 
 from __future__ import annotations
@@ -24,7 +24,8 @@ import numpy as np
 from ..errors import ModelError
 from ..model import UNITS, Frame
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .output import write_file
+from .sourcelines import checked
 
 __all__ = ["read_npz", "dump_npz", "FORMAT"]
 
@@ -87,7 +88,7 @@ def read_npz(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   member_tags=tags["member"], member_properties=props)
     if len(frame.member_ids) != m:  # pragma: no cover - Frame checks the lengths
         raise ModelError("the archive's member arrays differ in length", path=source)
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)
 
 
 def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
@@ -96,9 +97,9 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
     Never writes over the file the frame came from, nor over an existing file
     unless ``overwrite``.
     """
-    from .native import _check_writable  # the one rule for where a model may be written
+    from .native.write import check_model_output
 
-    target = _check_writable(frame, path, overwrite)
+    target = check_model_output(frame, path, overwrite)
     arrays = {
         "format": np.array(FORMAT), "dimension": np.array(frame.dimension),
         "name": np.array(frame.name), "units": np.array(frame.units),
@@ -113,10 +114,5 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
         arrays[f"member_tag:{name}"] = np.array(labels, dtype=str)
     for name, values in frame.member_properties.items():
         arrays[f"member_property:{name}"] = np.asarray(values, float)
-    tmp = target + ".part.npz"
-    try:
-        np.savez(tmp, **arrays)
-        os.replace(tmp, target)
-    finally:
-        if os.path.exists(tmp):
-            os.remove(tmp)
+    write_file(target, lambda fh: np.savez(fh, **arrays), binary=True, overwrite=overwrite,
+               option="overwrite=True")

@@ -15,13 +15,13 @@ file, the line and the joint, and says what to do.
 from __future__ import annotations
 
 import csv
-import difflib
 import os
 
 import numpy as np
 
 from ..errors import ModelError
 from ..model import Frame
+from ..suggest import did_you_mean
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["read_candidate_list"]
@@ -81,9 +81,8 @@ def read_candidate_list(path, frame: Frame, *, tol: Tolerances = DEFAULT):
         for col in (cs, ce):
             jid = cells[col]
             if jid not in index:
-                close = difflib.get_close_matches(jid, frame.joint_ids, n=1)
-                hint = f" (did you mean {close[0]!r}?)" if close else ""
-                raise ModelError(f"joint {jid!r} is not in {model}{hint}; use the id of a "
+                raise ModelError(f"joint {jid!r} is not in {model}"
+                                 f"{did_you_mean(jid, frame.joint_ids)}; use the id of a "
                                  f"joint of the model", path=source, line=line, item=jid)
             pair.append(index[jid])
         a, b = pair

@@ -32,7 +32,7 @@ from ..errors import ModelError
 from ..model import Frame
 from ..supports import restraint_rows
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 
 __all__ = ["read_csv_pair", "partner"]
 
@@ -155,4 +155,4 @@ def read_csv_pair(path, *, tol: Tolerances = DEFAULT, units: str | None = None) 
                   restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
                   dimension=dimension, name=jfile.stem, units=units, source=str(jfile),
                   lines=lines)
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)

@@ -60,7 +60,7 @@ import numpy as np
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 from .drawing import _split_frame, split_at_junctions
 from .mesh import frame_from_edges
 
@@ -147,7 +147,7 @@ def read_ifc(path, *, tol: Tolerances = DEFAULT, merge=None, split=True) -> Fram
     name = model.get("name") or _project_name(f) or Path(source).stem
     if dimension == 2:
         frame = _as_plane(frame, source)
-    return check_frame(_renamed(frame, name), tol=tol)
+    return checked(_renamed(frame, name), tol=tol)
 
 
 def _length_unit(f, source: str) -> tuple[str, float]:
@@ -511,8 +511,9 @@ def dump_ifc(frame: Frame, path, *, overwrite: bool = False) -> None:
     Raises
     ------
     ModelError
-        For a missing ifcopenshell (naming the extra to install) or an
-        existing file without ``overwrite``.
+        For a missing ifcopenshell (naming the extra to install), a
+        coordinate that is not finite, or an existing file without
+        ``overwrite`` (:func:`~spaceframe.io.native.write.check_model_output`).
 
     Notes
     -----
@@ -520,9 +521,10 @@ def dump_ifc(frame: Frame, path, *, overwrite: bool = False) -> None:
     where they have them, else derived from the frame's name and the ids, so
     the same frame gives the same file.
     """
-    from .output import check_output, write_text
+    from .native.write import check_model_output
+    from .output import write_text
 
-    target = check_output(path, overwrite=overwrite)
+    target = check_model_output(frame, path, overwrite)
     ifcopenshell = _ifcopenshell(target)
     f = ifcopenshell.file(schema="IFC4")
     key = frame.name or Path(target).stem

@@ -34,7 +34,7 @@ import numpy as np
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import UNITS, Frame
 from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from .sourcelines import checked
 
 __all__ = ["read_mesh", "frame_from_edges", "file_units", "MESH_SUFFIXES"]
 
@@ -247,7 +247,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
                   joint_tags={k: [str(v[i]) for i in rep[keep]] for k, v in
                               (point_tags or {}).items()},
                   member_tags={k: [str(v[i]) for i in kept] for k, v in (edge_tags or {}).items()})
-    return check_frame(frame, tol=tol)
+    return checked(frame, tol=tol)
 
 
 def _point(x) -> str:

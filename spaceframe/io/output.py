@@ -15,11 +15,11 @@ from __future__ import annotations
 import os
 import tempfile
 from pathlib import Path
-from typing import Iterable
+from typing import IO, Callable, Iterable
 
 from ..errors import ModelError, OutputExistsError
 
-__all__ = ["check_output", "write_text"]
+__all__ = ["check_output", "write_text", "write_file"]
 
 
 def _same_file(a: str, b: str) -> bool:
@@ -31,8 +31,9 @@ def _same_file(a: str, b: str) -> bool:
         return False
 
 
-def check_output(path, *, inputs: Iterable = (), overwrite: bool = False,
-                 suffixes: Iterable[str] | None = None, what: str = "the output") -> str:
+def check_output(path, *, inputs: Iterable = (), source=None, overwrite: bool = False,
+                 suffixes: Iterable[str] | None = None, what: str = "the output",
+                 option: str | None = None) -> str:
     """Check that ``path`` may be written, and return it as a string.
 
     Parameters
@@ -42,12 +43,18 @@ def check_output(path, *, inputs: Iterable = (), overwrite: bool = False,
     inputs : iterable of path-like, optional
         Files the command reads; none of them is ever written over (``None``
         entries are skipped).
+    source : path-like, optional
+        The file the frame being written was read from; never written over
+        either, and named as such in the message.
     overwrite : bool, default False
         Whether an existing file (not an input) may be replaced.
     suffixes : iterable of str, optional
         The suffixes allowed (lower case, with the dot), e.g. ``(".gif", ".png")``.
     what : str
         What the file holds, for the message ("the picture", "the results").
+    option : str, optional
+        The caller's argument that allows replacing a file (``"overwrite=True"``),
+        named by the :class:`~spaceframe.errors.OutputExistsError`.
 
     Raises
     ------
@@ -63,8 +70,11 @@ def check_output(path, *, inputs: Iterable = (), overwrite: bool = False,
         if Path(target).suffix.lower() not in suffixes:
             raise ModelError(f"{what} is written as {_listing(suffixes)}; give the file one of "
                              f"those suffixes", path=target)
-    for source in inputs:
-        if source is not None and _same_file(os.fspath(source), target):
+    if source is not None and _same_file(os.fspath(source), target):
+        raise ModelError("is the file this frame was read from and is never overwritten; "
+                         "write to another file", path=target)
+    for given in inputs:
+        if given is not None and _same_file(os.fspath(given), target):
             raise ModelError("is an input of this command and is never overwritten; write to "
                              "another file", path=target)
     if os.path.isdir(target):
@@ -74,35 +84,61 @@ def check_output(path, *, inputs: Iterable = (), overwrite: bool = False,
         raise ModelError(f"the folder {folder} does not exist; create it or write elsewhere",
                          path=target)
     if os.path.exists(target) and not overwrite:
-        raise OutputExistsError(target)
+        raise OutputExistsError(target, option=option)
     return target
 
 
-def write_text(path, text: str, *, overwrite: bool = False) -> None:
-    """Write ``text`` (UTF-8, ``\\n`` line ends) to ``path`` safely.
+def write_text(path, text: str, *, overwrite: bool = False, option: str | None = None) -> None:
+    """Write ``text`` (UTF-8, ``\\n`` line ends) to ``path`` safely (see :func:`write_file`)."""
+    write_file(path, lambda fh: fh.write(text), overwrite=overwrite, option=option)
+
+
+def write_file(path, fill: Callable[[IO], object], *, binary: bool = False,
+               overwrite: bool = False, option: str | None = None) -> None:
+    """Write a file safely: ``fill(fh)`` writes the content to an open file.
 
     Without ``overwrite`` the file is created exclusively, so a file made by
-    someone else since the check is never replaced. With it, the text goes to
-    a temporary file in the same folder that is then moved over the old one.
+    someone else since the check is never replaced (a write that fails part
+    way removes what it made).  With it, the content goes to a temporary file
+    in the same folder that is then moved over the old one, so an interrupted
+    write leaves the old file whole.
+
+    Parameters
+    ----------
+    path : path-like
+    fill : callable ``(file) -> object``
+        Writes the content (``fh.write(text)``, ``numpy.savez(fh, ...)``).
+    binary : bool, default False
+        Open the file in binary mode; else as UTF-8 text with ``\\n`` line ends.
+    overwrite : bool, default False
+    option : str, optional
+        As in :func:`check_output`.
 
     Raises
     ------
     OutputExistsError
-        When the file exists and ``overwrite`` is false.
+        When the file exists and ``overwrite`` is false (naming ``option``).
     """
     target = os.fspath(path)
+    kw = {} if binary else {"encoding": "utf-8", "newline": "\n"}
+    suffix = "b" if binary else ""
     if not overwrite:
         try:
-            with open(target, "x", encoding="utf-8", newline="\n") as fh:
-                fh.write(text)
+            fh = open(target, "x" + suffix, **kw)
         except FileExistsError:
-            raise OutputExistsError(target) from None
+            raise OutputExistsError(target, option=option) from None
+        try:
+            with fh:
+                fill(fh)
+        except BaseException:
+            os.unlink(target)
+            raise
         return
     folder = os.path.dirname(os.path.abspath(target))
     fd, tmp = tempfile.mkstemp(dir=folder, prefix=".spaceframe-", suffix=".tmp")
     try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
+        with os.fdopen(fd, "w" + suffix, **kw) as fh:
+            fill(fh)
         os.replace(tmp, target)
     except BaseException:
         if os.path.exists(tmp):

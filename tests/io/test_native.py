@@ -267,8 +267,10 @@ def test_valid_model_finds_no_lines(tmp_path, monkeypatch):
     """The success path never searches the text: line finding is for messages only."""
     def refuse(*args):
         raise AssertionError("a line was searched for on the success path")
-    monkeypatch.setattr(native, "toml_line", refuse)
-    monkeypatch.setattr(native, "json_line", refuse)
+    from spaceframe.io.sourcelines import SourceLines
+
+    monkeypatch.setattr(SourceLines, "_toml", refuse)
+    monkeypatch.setattr(SourceLines, "_json_matches", refuse)
     for name, text in (("p.toml", SAMPLE), ("p.json", SAMPLE_JSON)):
         (tmp_path / name).write_text(text, encoding="utf-8")
         assert spaceframe.load(tmp_path / name).n_members == 3

@@ -1,77 +1,16 @@
-"""The native model format: TOML, or the same structure written as JSON.
+"""Reading the native model format (TOML or JSON) into a checked :class:`Frame`.
 
-A model file, in TOML::
-
-    name = "Plant platform, south bay"
-    units = "m"          # m, mm, cm, ft or in; results do not depend on it
-    dimension = 3        # 3 = space frame; 2 = plane frame, coordinates [x, y]
-
-    [joints]             # id = [x, y, z]
-    A = [0.0, 0.0, 0.0]
-    B = [4.0, 0.0, 0.0]
-    C = [2.0, 0.0, 3.0]
-
-    [members]            # id = [end, end]
-    AB = ["A", "B"]
-    BC = ["B", "C"]
-    CA = ["C", "A"]
-
-    [supports]           # joint = what is held
-    A = "pin"            # every translation held
-    B = "yz"             # the axes held
-    C = [[0.0, 0.6, 0.8]]  # or direction vectors held (need not be unit length)
-
-The JSON form is one object with the same keys: ``{"name": ..., "joints":
-{"A": [0, 0, 0], ...}, "members": {"AB": ["A", "B"], ...}, "supports": {...}}``.
-
-Ids are strings.  ``dimension`` defaults to 3, ``units`` to ``"m"`` and
-``name`` to the file name without its suffix.  Named tags of joints and members (see :attr:`Frame.joint_tags`) are tables
-``[tags.joints.<attribute>]`` and ``[tags.members.<attribute>]`` of
-``label = [ids]``::
-
-    [tags.members.role]
-    chord = ["AB"]
-    web = ["BC", "CA"]
-
-    [tags.joints.frame]
-    "1" = ["A", "B", "C"]
-
-An item listed under no label of an attribute has the label ``""``; an id
-that is not in the model, or is listed under two labels of one attribute, is
-an error.
-
-Member properties (see :attr:`Frame.member_properties`) are tables
-``[properties.members.<name>]``; the one known is ``EA``, the axial
-stiffness in any consistent unit::
-
-    [properties.members.EA]
-    default = 2.0e5          # every member not named below
-    "role=chord" = 4.0e5     # every member tagged role = chord
-    AB = 1.0e5               # one member
-
-A member id wins over a selector, a selector over the default; a member left
-without a value is an error.
-
-The top-level keys ``groups``, ``loads`` and ``notes`` are reserved for later
-versions and accepted without a word; any other unknown key draws a
-:class:`SpaceframeWarning`.
-
-Reading is built for large models: arrays are made by NumPy from the parsed
-lists, ids are mapped to indices through one dict, and the type checks run
-over whole lists at C speed.  Source lines are never computed for a valid
-model: the parsers give none for values, so the text is searched for the one
-item a message is about, only when a message is raised.
+See :mod:`spaceframe.io.native` for the format.  Source lines come from
+:mod:`spaceframe.io.sourcelines`, only when a message needs one.
 """
 
 from __future__ import annotations
 
 import contextlib
-import difflib
 import gc
 import json
 import os
 import re
-import tempfile
 import tomllib
 import warnings
 from itertools import chain
@@ -79,14 +18,16 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import ModelError, SpaceframeWarning, where
-from ..model import UNITS, Frame
-from ..supports import AXES, restraint_rows
-from ..tolerances import DEFAULT, Tolerances
-from ..validation import check_frame
+from ...errors import ModelError, SpaceframeWarning, where
+from ...model import UNITS, Frame
+from ...suggest import closest, did_you_mean
+from ...supports import AXES, restraint_rows
+from ...tolerances import DEFAULT, Tolerances
+from ..sourcelines import MODEL_TABLES, SourceLines, checked, toml_key
+from .write import toml_id
 
-__all__ = ["read_toml", "read_json", "frame_from_document", "dump_toml", "dump_json",
-           "toml_line", "json_line", "KEYS", "RESERVED_KEYS"]
+__all__ = ["read_toml", "read_json", "frame_from_document", "toml_line", "json_line", "KEYS",
+           "RESERVED_KEYS", "PROPERTIES"]
 
 #: Top-level keys the format defines.
 KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
@@ -97,9 +38,7 @@ RESERVED_KEYS = ("groups", "loads", "notes")
 PROPERTIES = {"EA": "axial stiffness, in any consistent unit (only ratios are used)"}
 
 _KNOWN = frozenset(KEYS + RESERVED_KEYS)
-_SECTION = {"joint": "joints", "member": "members", "support": "supports"}
 _NUMBER = (int, float)
-
 
 # --------------------------------------------------------------------- reading
 
@@ -116,6 +55,8 @@ def read_toml(path, *, tol: Tolerances = DEFAULT) -> Frame:
     Returns
     -------
     frame : Frame
+        Checked by :func:`~spaceframe.validation.check_frame`, its messages
+        given the file and line (:func:`~spaceframe.io.sourcelines.checked`).
 
     Raises
     ------
@@ -154,16 +95,7 @@ def _parse_toml(text: str) -> dict:
 def read_json(path, *, tol: Tolerances = DEFAULT) -> Frame:
     """Read a JSON model file (the structure of the TOML format) into a :class:`Frame`.
 
-    Parameters
-    ----------
-    path : str or os.PathLike
-        The model file.
-    tol : Tolerances, optional
-        Passed to the support and geometry checks.
-
-    Returns
-    -------
-    frame : Frame
+    Parameters and result as for :func:`read_toml`.
 
     Raises
     ------
@@ -302,7 +234,7 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
                   dimension=dimension, name=name, units=units, source=source,
                   joint_tags=joint_tags, member_tags=member_tags,
                   member_properties=properties)
-    return check_frame(frame, tol=tol, locate=at.line)
+    return checked(frame, tol=tol, find=at.line)
 
 
 class _Where:
@@ -310,19 +242,18 @@ class _Where:
 
     def __init__(self, source: str | None, text: str | None, syntax: str):
         self.source, self.text, self.syntax = source, text, syntax
+        self.lines = SourceLines(text, syntax)
 
     def line(self, kind: str, item: str) -> int | None:
-        if self.text is None:
-            return None
-        find = json_line if self.syntax == "json" else toml_line
-        return find(self.text, kind, item)
+        return self.lines.item(kind, item)
 
     def error(self, message: str, kind: str | None = None, item: str | None = None, *,
               line: int | None = None) -> ModelError:
         if line is None and kind is not None:
             line = self.line(kind, item)
         return ModelError(message, path=self.source, line=line,
-                          item=None if kind == "key" else item)
+                          item=None if kind == "key" else item,
+                          kind=None if kind == "key" else kind)
 
     def warn(self, message: str, kind: str | None = None, item: str | None = None) -> None:
         line = self.line(kind, item) if kind is not None else None
@@ -342,22 +273,10 @@ class _Where:
         return f'"{key}": {value}' if self.syntax == "json" else f"{key} = {value}"
 
 
-def _closest(word: str, choices) -> str | None:
-    """The choice nearest to ``word`` (difflib's ratio at least 0.6), or None."""
-    close = difflib.get_close_matches(word, list(choices), n=1)
-    return close[0] if close else None
-
-
-def _did_you_mean(word: str, choices) -> str:
-    """``" (did you mean 'x'?)"`` for the nearest choice, or ``""``."""
-    close = _closest(word, choices)
-    return f" (did you mean {close!r}?)" if close is not None else ""
-
-
 def _warn_unknown_keys(doc: dict, at: _Where) -> None:
     for key in doc:
         if key not in _KNOWN:
-            close = _closest(key, KEYS + RESERVED_KEYS)
+            close = closest(key, KEYS + RESERVED_KEYS)
             if close is not None:
                 at.warn(f"unknown key {key!r}; did you mean {close!r}? It is ignored.", "key", key)
             else:
@@ -372,8 +291,7 @@ def _units(doc: dict, at: _Where) -> str:
     hint = ""
     if isinstance(units, str):
         lower = {u.lower(): u for u in UNITS}
-        hint = (f" (did you mean {lower[units.lower()]!r}?)" if units.lower() in lower
-                else _did_you_mean(units, UNITS))
+        hint = did_you_mean(lower.get(units.lower(), units), UNITS)
     raise at.error(f"unknown unit {units!r}{hint}; write units as one of "
                    f"{', '.join(UNITS)} (results do not depend on it), e.g. "
                    f"{at.setting('units', 'm')}", "key", "units")
@@ -403,7 +321,7 @@ def _section(doc: dict, name: str, at: _Where) -> dict:
     return value
 
 
-_SECTION_KIND = {v: k for k, v in _SECTION.items()}
+_SECTION_KIND = {v[0]: k for k, v in MODEL_TABLES.items() if v}
 
 
 def _coord_example(dimension: int) -> str:
@@ -489,7 +407,7 @@ def _bad_member(members: dict, index: dict, at: _Where) -> ModelError:
             if end not in index:
                 return at.error(f"member {mid!r} names joint {end!r}, which is not in "
                                 f"{at.ref('joints')}; add the joint or correct the id"
-                                f"{_did_you_mean(end, index)}", "member", mid)
+                                f"{did_you_mean(end, index)}", "member", mid)
     return at.error("a member's ends could not be read; check [members]")
 
 
@@ -503,7 +421,7 @@ def _restraints(supports: dict, index: dict, dimension: int, tol: Tolerances,
             j = index.get(jid)
             if j is None:
                 raise at.error(f"support on joint {jid!r}, which is not in {at.ref('joints')}; "
-                               f"add the joint or correct the id{_did_you_mean(jid, index)}",
+                               f"add the joint or correct the id{did_you_mean(jid, index)}",
                                "support", jid)
             before = len(caught)
             try:
@@ -543,7 +461,7 @@ def _tags(doc: dict, joint_ids: tuple, member_ids: tuple,
                      for attr, table in attrs.items()}
     for key in tags:
         if key not in ("joints", "members"):
-            raise at.error(f"unknown tag section [tags.{key}]{_did_you_mean(key, _SECTION_KIND)}; "
+            raise at.error(f"unknown tag section [tags.{key}]{did_you_mean(key, _SECTION_KIND)}; "
                            f"tags are [tags.joints.<attribute>] or [tags.members.<attribute>]",
                            line=_tags_line(at, key))
     return out["joints"], out["members"]
@@ -597,7 +515,7 @@ def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> 
                     raise ModelError(f"[properties.members.{name}] selector {key!r} matches no "
                                      f"member: no member has tag {attr.strip()!r} = "
                                      f"{label.strip()!r}; correct the selector or remove "
-                                     f"the line{_did_you_mean(key, known)}",
+                                     f"the line{did_you_mean(key, known)}",
                                      path=at.source, line=line, item=key)
                 values[np.array(labels) == label.strip()] = value
             else:
@@ -605,7 +523,7 @@ def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> 
                 if k is None:
                     raise ModelError(f"[properties.members.{name}] names member {key!r}, which "
                                      f"is not in {at.ref('members')}; correct the id or remove "
-                                     f"the line{_did_you_mean(key, index)}", path=at.source,
+                                     f"the line{did_you_mean(key, index)}", path=at.source,
                                      line=line, item=key)
                 values[k] = value
         if np.isnan(values).any():
@@ -618,18 +536,6 @@ def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> 
     return out
 
 
-def _property_rows(frame: Frame) -> list[tuple[str, list[tuple[str, float]]]]:
-    """``(name, [(key, value)])`` to write each member property: a default, then exceptions."""
-    rows = []
-    for name, values in frame.member_properties.items():
-        vals, counts = np.unique(values, return_counts=True)
-        default = float(vals[np.argmax(counts)])
-        items = [("default", default)] + [(mid, float(v)) for mid, v in
-                                          zip(frame.member_ids, values) if v != default]
-        rows.append((name, items))
-    return rows
-
-
 def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> tuple[str, ...]:
     """One label per item (``""`` where none) from ``{label: [ids]}``."""
     labels = [""] * len(index)
@@ -637,7 +543,7 @@ def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> t
     for label, items in table.items():
         here = _tags_line(at, kind, attr, label)
         if not (isinstance(items, list) and all(isinstance(i, str) for i in items)):
-            shown = at.pair(_toml_id(str(label)), '["A", "B"]')
+            shown = at.pair(toml_id(str(label)), '["A", "B"]')
             raise at.error(f"[tags.{kind}.{attr}] label {label!r}: give a list of {kind[:-1]} "
                            f"ids in quotes, e.g. {shown}", line=here)
         for item in items:
@@ -645,7 +551,7 @@ def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> t
             if k is None:
                 raise ModelError(f"[tags.{kind}.{attr}] label {label!r} lists {kind[:-1]} "
                                  f"{item!r}, which is not in {at.ref(kind)}; correct the id or "
-                                 f"remove it from the list{_did_you_mean(item, index)}",
+                                 f"remove it from the list{did_you_mean(item, index)}",
                                  path=at.source, line=here, item=item)
             if item in given and given[item] != label:
                 raise ModelError(f"[tags.{kind}.{attr}] lists {kind[:-1]} {item!r} under both "
@@ -659,34 +565,8 @@ def _tag_labels(kind: str, attr: str, table: dict, index: dict, at: _Where) -> t
 def _tags_line(at: _Where, kind: str, attr: str | None = None,
                label: str | None = None, *, root: str = "tags") -> int | None:
     """The line of ``label`` under ``[<root>.<kind>.<attr>]`` (or of the header), where found."""
-    if at.text is None:
-        return None
-    lines = at.text.splitlines()
-    if at.syntax == "json":
-        start, found = 0, None
-        for key in (root, kind, attr, label):
-            if key is None:
-                break
-            m = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:").search(
-                at.text, start)
-            if m is None:
-                break
-            start, found = m.end(), at.text.count("\n", 0, m.start()) + 1
-        return found
-    want = [root, kind] + ([attr] if attr is not None else [])
-    header = None
-    for k, text in enumerate(lines, 1):
-        m = re.match(r"^\s*\[([^\[\]]+)\]\s*(?:#.*)?$", text)
-        if m:
-            parts = [_unquote(p.strip()) for p in re.findall(r'"[^"]*"|\'[^\']*\'|[^.]+',
-                                                           m.group(1))]
-            if parts == want:
-                header = k
-            elif header is not None:
-                break
-        elif header is not None and label is not None and _toml_key(text) == label:
-            return k
-    return header
+    table = (root, kind) + ((attr,) if attr is not None else ())
+    return at.lines.near(table, label)
 
 
 # ------------------------------------------------------------ reading errors
@@ -727,21 +607,22 @@ def _toml_syntax_error(message: str, text: str, source: str) -> ModelError:
         line, column = max(1, len(text.splitlines())), None
         place = "at the end of the file"
     lines = text.splitlines()
+    found = SourceLines(text, "toml")
 
     if reason == "Cannot overwrite a value":
         key_line = next((k for k in range(min(line, len(lines)), 0, -1)
-                         if _toml_key(lines[k - 1]) is not None), None)
+                         if toml_key(lines[k - 1]) is not None), None)
         if key_line is not None:
-            key, section = _toml_key(lines[key_line - 1]), _toml_section_of(lines, key_line)
-            first = next((k for k in _toml_lines(lines, section, key) if k != key_line), None)
+            key, table = toml_key(lines[key_line - 1]), found.table_at(key_line)
+            first = next((k for k in found.every(table, key) if k != key_line), None)
+            section = ".".join(table) or None
             shown = f"[{section}]" if section is not None else None
             return ModelError(_given_twice(section, shown, key, first), path=source,
                               line=key_line, item=key)
     twice = _TOML_TWICE.match(reason)
     if twice:
         name = ".".join(p.strip().strip("'\"") for p in twice.group(1).split(",") if p.strip())
-        first = next((k for k, s in enumerate(lines, 1) if _toml_header(s) == name and k != line),
-                     None)
+        first = next((k for k in found.tables(name.split(".")) if k != line), None)
         also = f" (first at line {first})" if first else ""
         return ModelError(f"section [{name}] appears twice{also}; put all its entries under one "
                           f"[{name}] header", path=source, line=line, item=name)
@@ -771,7 +652,8 @@ def _json_repeat_error(doc, repeat: tuple[dict, str], text: str, source: str) ->
     section = None
     if obj is not doc and isinstance(doc, dict):
         section = next((name for name, value in doc.items() if value is obj), "")
-    found = _json_lines(text, section, key) if section != "" else []
+    found = (SourceLines(text, "json").every((section,) if section else (), key)
+             if section != "" else [])
     first, second = (found + [None, None])[:2]
     shown = f'"{section}"' if section else ("one object" if section == "" else None)
     return ModelError(_given_twice(section, shown, key, first), path=source, line=second,
@@ -790,58 +672,6 @@ def _given_twice(section: str | None, shown: str | None, key: str, first: int | 
     return f"key {key!r} is given twice" + (f" in {shown}" if shown else "") + f"{also}; keep one"
 
 
-# ----------------------------------------------------------------- locating
-
-_TOML_HEADER = re.compile(r"""^\s*\[\s*([A-Za-z0-9_-]+|"[^"]*"|'[^']*')\s*\]\s*(?:#.*)?$""")
-_TOML_KEY = re.compile(r"""^\s*("(?:[^"\\]|\\.)*"|'[^']*'|[A-Za-z0-9_-]+)\s*=""")
-
-
-def _unquote(token: str) -> str:
-    if token.startswith('"'):
-        try:
-            return json.loads(token)
-        except ValueError:
-            return token[1:-1]
-    if token.startswith("'"):
-        return token[1:-1]
-    return token
-
-
-def _toml_header(line: str) -> str | None:
-    m = _TOML_HEADER.match(line)
-    return _unquote(m.group(1)) if m else None
-
-
-def _toml_key(line: str) -> str | None:
-    m = _TOML_KEY.match(line)
-    return _unquote(m.group(1)) if m else None
-
-
-def _toml_section_of(lines: list[str], line: int) -> str | None:
-    for k in range(line, 0, -1):
-        header = _toml_header(lines[k - 1])
-        if header is not None:
-            return header
-    return None
-
-
-def _toml_lines(lines: list[str], section: str | None, key: str) -> list[int]:
-    """1-based lines where ``key = ...`` stands in ``[section]`` (None: the top level).
-
-    At the top level a header ``[key]`` counts too, so a misspelt section is found.
-    """
-    found, current = [], None
-    for k, text in enumerate(lines, 1):
-        header = _toml_header(text)
-        if header is not None:
-            current = header
-            if section is None and header == key:
-                found.append(k)
-        elif current == section and _toml_key(text) == key:
-            found.append(k)
-    return found
-
-
 def toml_line(text: str, kind: str, item: str) -> int | None:
     """The 1-based line of an item in TOML model text, or None if it cannot be found.
 
@@ -856,235 +686,16 @@ def toml_line(text: str, kind: str, item: str) -> int | None:
 
     Notes
     -----
-    A line scan, O(length of text); used only when a message is raised.
+    :meth:`SourceLines.item <spaceframe.io.sourcelines.SourceLines.item>`:
+    a line scan, O(length of text); used only when a message is raised.
     """
-    found = _toml_lines(text.splitlines(), _SECTION.get(kind), item)
-    return found[0] if found else None
-
-
-def _json_lines(text: str, section: str | None, key: str) -> list[int]:
-    """1-based lines of ``"key":`` after ``"section":`` (None: anywhere), in order."""
-    start = 0
-    if section is not None:
-        head = re.search(re.escape(json.dumps(section, ensure_ascii=False)) + r"\s*:", text)
-        if head is None:
-            return []
-        start = head.end()
-    pattern = re.compile(re.escape(json.dumps(key, ensure_ascii=False)) + r"\s*:")
-    return [text.count("\n", 0, m.start()) + 1 for m in pattern.finditer(text, start)]
+    return SourceLines(text, "toml").item(kind, item)
 
 
 def json_line(text: str, kind: str, item: str) -> int | None:
     """The 1-based line of an item in JSON model text, or None if it cannot be found.
 
-    Parameters
-    ----------
-    text : str
-        The model file's text.
-    kind : {"joint", "member", "support", "key"}
-        ``"key"`` is a top-level key such as ``dimension``.
-    item : str
-        The id or key.
-
-    Notes
-    -----
-    A regular-expression search for ``"item":`` after the section's key,
-    O(length of text); used only when a message is raised.
+    Parameters and cost as :func:`toml_line`: a search for ``"item":`` after
+    the section's key.
     """
-    found = _json_lines(text, _SECTION.get(kind), item)
-    return found[0] if found else None
-
-
-# --------------------------------------------------------------------- writing
-
-_BARE = re.compile(r"[A-Za-z0-9_-]+")
-
-
-def _quote(text: str) -> str:
-    """A double-quoted string valid in both TOML and JSON."""
-    return json.dumps(text, ensure_ascii=False).replace("\x7f", "\\u007f")
-
-
-def _toml_id(text: str) -> str:
-    return text if _BARE.fullmatch(text) else _quote(text)
-
-
-def _numbers(row) -> str:
-    return "[" + ", ".join(repr(float(x)) for x in row) + "]"
-
-
-def _support_specs(frame: Frame) -> list[tuple[str, object]]:
-    """``(joint id, spec)`` in joint order: ``"pin"``, axis letters, or direction vectors."""
-    d = frame.dimension
-    order = np.argsort(frame.restraint_joint, kind="stable")
-    rj, rd = frame.restraint_joint[order], frame.restraint_dir[order]
-    cuts = np.flatnonzero(np.diff(rj)) + 1
-    specs = []
-    for joint, rows in zip(rj[np.r_[0, cuts]] if rj.size else [], np.split(rd, cuts)):
-        on_axis = (np.count_nonzero(rows, axis=1) == 1) & (rows.max(axis=1) == 1.0)
-        if on_axis.all():
-            axes = sorted({int(np.argmax(r)) for r in rows})
-            spec = "pin" if len(axes) == d else "".join(AXES[a] for a in axes)
-        else:
-            spec = rows
-        specs.append((frame.joint_ids[joint], spec))
-    return specs
-
-
-_EXISTS = "already exists and is not overwritten; choose another name, or pass overwrite=True"
-
-
-def _check_writable(frame: Frame, path, overwrite: bool) -> str:
-    target = os.fspath(path)
-    if frame.source is not None:
-        same = (os.path.exists(target) and os.path.exists(frame.source)
-                and os.path.samefile(target, frame.source))
-        if same or os.path.realpath(target) == os.path.realpath(frame.source):
-            raise ModelError("is the file this frame was read from and is never overwritten; "
-                             "write to another file", path=target)
-    if os.path.isdir(target):
-        raise ModelError("is a directory; give a file name to write", path=target)
-    if os.path.exists(target) and not overwrite:
-        raise ModelError(_EXISTS, path=target)
-    bad = np.flatnonzero(~np.isfinite(frame.coords).all(axis=1))
-    if bad.size:
-        raise ModelError(f"joint {frame.joint_ids[bad[0]]!r} has a coordinate that is not finite; "
-                         f"a model file holds finite numbers only", path=target,
-                         item=frame.joint_ids[bad[0]])
-    return target
-
-
-def _write(target: str, text: str, overwrite: bool) -> None:
-    if not overwrite:
-        try:
-            with open(target, "x", encoding="utf-8", newline="\n") as fh:
-                fh.write(text)
-        except FileExistsError:     # made since the check in _check_writable
-            raise ModelError(_EXISTS, path=target) from None
-        return
-    folder = os.path.dirname(os.path.abspath(target))
-    fd, tmp = tempfile.mkstemp(dir=folder, prefix=".spaceframe-", suffix=".tmp")
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-        os.replace(tmp, target)
-    except BaseException:
-        os.unlink(tmp)
-        raise
-
-
-def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
-    """Write a frame as a TOML model file that :func:`read_toml` reads back.
-
-    The output is deterministic: items in the frame's order, coordinates as
-    the shortest decimal that reads back to the same double, ids bare where
-    TOML allows (letters, digits, ``_`` and ``-``) and quoted otherwise.
-
-    Parameters
-    ----------
-    frame : Frame
-    path : str or os.PathLike
-        The file to write.
-    overwrite : bool, optional
-        Replace an existing file.  Default False.  The file the frame was
-        read from is never replaced.
-
-    Raises
-    ------
-    ModelError
-        If ``path`` is the frame's source, exists and ``overwrite`` is False,
-        is a directory, or a coordinate is not finite.
-    """
-    target = _check_writable(frame, path, overwrite)
-    out = [f"name = {_quote(frame.name)}", f"units = {_quote(frame.units)}",
-           f"dimension = {frame.dimension}", "", "[joints]"]
-    out += [f"{_toml_id(j)} = {_numbers(x)}" for j, x in zip(frame.joint_ids, frame.coords)]
-    out += ["", "[members]"]
-    ids = frame.joint_ids
-    out += [f"{_toml_id(mid)} = [{_quote(ids[a])}, {_quote(ids[b])}]"
-            for mid, (a, b) in zip(frame.member_ids, frame.ends.tolist())]
-    out += ["", "[supports]"]
-    for jid, spec in _support_specs(frame):
-        value = (_quote(spec) if isinstance(spec, str)
-                 else "[" + ", ".join(_numbers(r) for r in spec) + "]")
-        out.append(f"{_toml_id(jid)} = {value}")
-    for kind, attr, groups in _tag_groups(frame):
-        out += ["", f"[tags.{kind}.{_toml_id(attr)}]"]
-        out += [f"{_toml_id(label)} = [{', '.join(map(_quote, items))}]"
-                for label, items in groups]
-    for name, items in _property_rows(frame):
-        out += ["", f"[properties.members.{_toml_id(name)}]"]
-        out += [f"{_toml_id(key)} = {float(v)!r}" for key, v in items]
-    _write(target, "\n".join(out) + "\n", overwrite)
-
-
-def _tag_groups(frame: Frame) -> list[tuple[str, str, list[tuple[str, list[str]]]]]:
-    """``(kind, attribute, [(label, [ids])])`` for every tag, labels in order of first use."""
-    found = []
-    for kind, tags, ids in (("joints", frame.joint_tags, frame.joint_ids),
-                            ("members", frame.member_tags, frame.member_ids)):
-        for attr, labels in tags.items():
-            groups: dict[str, list[str]] = {}
-            for item, label in zip(ids, labels):
-                if label:
-                    groups.setdefault(label, []).append(item)
-            found.append((kind, attr, list(groups.items())))
-    return found
-
-
-def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
-    """Write a frame as a JSON model file that :func:`read_json` reads back.
-
-    The output is deterministic: one item per line, in the frame's order,
-    coordinates as the shortest decimal that reads back to the same double.
-
-    Parameters
-    ----------
-    frame : Frame
-    path : str or os.PathLike
-        The file to write.
-    overwrite : bool, optional
-        Replace an existing file.  Default False.  The file the frame was
-        read from is never replaced.
-
-    Raises
-    ------
-    ModelError
-        If ``path`` is the frame's source, exists and ``overwrite`` is False,
-        is a directory, or a coordinate is not finite.
-    """
-    target = _check_writable(frame, path, overwrite)
-    ids = frame.joint_ids
-
-    def block(name, rows):
-        if not rows:
-            return f'  "{name}": {{}}'
-        return f'  "{name}": {{\n' + ",\n".join(f"    {k}: {v}" for k, v in rows) + "\n  }"
-
-    joints = [(_quote(j), _numbers(x)) for j, x in zip(ids, frame.coords)]
-    members = [(_quote(mid), f"[{_quote(ids[a])}, {_quote(ids[b])}]")
-               for mid, (a, b) in zip(frame.member_ids, frame.ends.tolist())]
-    supports = [(_quote(jid), _quote(spec) if isinstance(spec, str)
-                 else "[" + ", ".join(_numbers(r) for r in spec) + "]")
-                for jid, spec in _support_specs(frame)]
-    head = [f'  "name": {_quote(frame.name)}', f'  "units": {_quote(frame.units)}',
-            f'  "dimension": {frame.dimension}']
-    body = head + [block("joints", joints), block("members", members),
-                   block("supports", supports)]
-    tag_groups = _tag_groups(frame)
-    if tag_groups:
-        sections: dict[str, list[str]] = {}
-        for kind, attr, groups in tag_groups:
-            inner = ",\n".join(f"      {_quote(label)}: [{', '.join(map(_quote, items))}]"
-                               for label, items in groups)
-            sections.setdefault(kind, []).append(f"    {_quote(attr)}: {{\n{inner}\n    }}"
-                                                 if groups else f"    {_quote(attr)}: {{}}")
-        body.append('  "tags": {\n' + ",\n".join(f'   "{kind}": {{\n' + ",\n".join(v)
-                                                 + "\n   }" for kind, v in sections.items())
-                    + "\n  }")
-    prop_rows = _property_rows(frame)
-    if prop_rows:
-        inner = ",\n".join(f"    {_quote(name)}: {{" + ", ".join(
-            f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
-        body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
-    _write(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite)
+    return SourceLines(text, "json").item(kind, item)
