@@ -105,6 +105,7 @@ def test_units_reach_text_json_and_the_converted_file(tmp_path):
     assert bad.exit_code == 2 and "$INSUNITS = 4" in bad.stderr
 
 
+@pytest.mark.filterwarnings("ignore:.*T-junctions")
 def test_insunits_table_agrees_with_ezdxf(tmp_path):
     # reference library: ezdxf.units.conversion_factor(code, metres)
     metres = {"m": 1.0, "cm": 0.01, "mm": 0.001, "ft": 0.3048, "in": 0.0254}
@@ -145,6 +146,7 @@ def test_no_split_and_short_web_give_their_own_advice(tmp_path):
     assert ok.exit_code == 1 and "25 members" in ok.stdout
 
 
+@pytest.mark.filterwarnings("ignore:.*T-junctions")
 def test_crossing_with_no_end_stays_unjoined(tmp_path):
     path = write_truss(tmp_path / "x.dxf", cross=True)
     with pytest.warns(SpaceframeWarning, match=r"cross without a joint.*\(1000, 1000\)"):
