@@ -54,7 +54,7 @@ import numpy as np
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
-from .mesh import file_units, frame_from_edges
+from .mesh import _point, file_units, frame_from_edges
 
 __all__ = ["read_drawing", "split_at_junctions", "DRAWING_SUFFIXES", "INSUNITS"]
 
@@ -385,10 +385,6 @@ def _svg_selected(source: str, data: bytes, layers) -> bytes:
     return ET.tostring(root)
 
 
-def _point(x) -> str:
-    return "(" + ", ".join(f"{v:.6g}" for v in x) + ")"
-
-
 def _segment_distance(p: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Distance from point ``p`` to each segment ``a[i]-b[i]``."""
     ab = b - a
@@ -430,7 +426,8 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
         if kind is None or gap > near:
             continue
         if kind == "unread":
-            found.append(("layer", p, gap, f"a line on layer {unread_layers[k]!r} "
+            on = f"on layer {unread_layers[k]!r}" if unread_layers[k] else "left out by --layers"
+            found.append(("layer", p, gap, f"a line {on} "
                           f"({_point(unread[k, 0])} to {_point(unread[k, 1])})",
                           str(unread_layers[k])))
             continue
@@ -455,10 +452,11 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
     advice = []
     kinds = {k for k, *_ in found}
     if "layer" in kinds:
-        names = sorted({name for k, *_, name in found if k == "layer"})
-        advice.append(f"the lines are on different layers and layer(s) {', '.join(names)} are "
-                      f"not read: add them to --layers (or [drawing] layers), or move the lines "
-                      f"onto one layer")
+        names = sorted({name for k, *_, name in found if k == "layer"} - {""})
+        which = f"layer(s) {', '.join(names)} are" if names else "the other lines' group, " \
+            "colour or class is"
+        advice.append(f"the lines are on different layers and {which} not read: add them to "
+                      f"--layers (or [drawing] layers), or move the lines onto one layer")
     if "split" in kinds:
         advice.append("an end lies on another line part-way (a T-junction) and splitting is "
                       "off: leave out --no-split (or [drawing] split = false) so that the line "

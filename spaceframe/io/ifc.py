@@ -62,7 +62,7 @@ from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 from .drawing import _split_frame, split_at_junctions
-from .mesh import frame_from_edges
+from .mesh import _point, frame_from_edges
 
 __all__ = ["read_ifc", "dump_ifc", "IFC_SUFFIXES"]
 
@@ -429,10 +429,6 @@ def _as_plane(frame: Frame, source: str) -> Frame:
 
 def _renamed(frame: Frame, name: str) -> Frame:
     return dataclasses.replace(frame, name=name)
-
-
-def _point(x) -> str:
-    return "(" + ", ".join(f"{v:.6g}" for v in x) + ")"
 
 
 # ------------------------------------------------------------------ writing

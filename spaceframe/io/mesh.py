@@ -251,7 +251,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
 
 
 def _point(x) -> str:
-    return "(" + ", ".join(f"{v:.6g}" for v in x) + ")"
+    return "(" + ", ".join(f"{v + 0.0:.6g}" for v in x) + ")"      # no "-0"
 
 
 def _polygon_edges(faces) -> np.ndarray:
