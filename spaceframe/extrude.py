@@ -266,7 +266,7 @@ def _direction(doc: dict, probe: Spec) -> np.ndarray:
                           f"[0.0, 1.0, 0.0] (the frame stands in the plane y = 0); got {raw!r}",
                           None, "direction")
     vec = vec / np.linalg.norm(vec)
-    if abs(vec @ _NORMAL) < 1e-3:
+    if abs(vec @ _NORMAL) < DEFAULT.in_plane_direction:
         raise probe.error(f"direction {raw!r} lies in the frame's own plane (x, z), so the frames "
                           f"would fall onto one another; give a direction with a y component, "
                           f"e.g. [0.0, 1.0, 0.0]", None, "direction")

@@ -15,7 +15,7 @@ import numpy as np
 
 from .errors import ModelError
 
-__all__ = ["Frame", "UNITS"]
+__all__ = ["Frame", "UNITS", "bounding_diagonal"]
 
 #: Units of length a model may declare.  Results never depend on them.
 UNITS = ("m", "mm", "cm", "ft", "in")
@@ -144,10 +144,12 @@ class Frame:
         return np.linalg.norm(self.coords[self.ends[:, 1]] - self.coords[self.ends[:, 0]], axis=1)
 
     def size(self) -> float:
-        """Diagonal of the joints' bounding box (0 for fewer than two distinct joints)."""
-        if self.n_joints == 0:
-            return 0.0
-        return float(np.linalg.norm(self.coords.max(axis=0) - self.coords.min(axis=0)))
+        """The model's size: the diagonal of the joints' bounding box.
+
+        0 for fewer than two distinct joints.  Every relative tolerance of
+        length (:mod:`spaceframe.tolerances`) is a fraction of it.
+        """
+        return bounding_diagonal(self.coords)
 
     def tag(self, kind: str, name: str) -> tuple[str, ...] | None:
         """Labels of attribute ``name`` for ``kind`` ``"joint"`` or ``"member"``, or None."""
@@ -198,3 +200,15 @@ class Frame:
                    restraint_joint=np.array(rj, dtype=np.int64),
                    restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
                    dimension=dimension, **kw)
+
+
+def bounding_diagonal(points) -> float:
+    """Diagonal of the bounding box of ``points`` ``(n, d)``; 0 when there are none.
+
+    :meth:`Frame.size` is this of the joints; a reader uses it on the
+    vertices it has before there is a frame.
+    """
+    points = np.asarray(points, dtype=float)
+    if len(points) == 0:
+        return 0.0
+    return float(np.linalg.norm(points.max(axis=0) - points.min(axis=0)))

@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .model import Frame
+from .tolerances import DISPLAY
 
 __all__ = ["AuditResult", "RankGap", "CAUTION"]
 
@@ -17,9 +18,6 @@ __all__ = ["AuditResult", "RankGap", "CAUTION"]
 CAUTION = ("This is a check of an idealised pin-jointed model only: it does not size members or "
            "connections. Results must be checked by a competent engineer against the codes in "
            "force where the frame will be built.")
-
-#: Entries of a mode or state below this fraction of its largest are left out of the JSON.
-REPORT_FLOOR = 1e-6
 
 
 @dataclass(frozen=True)
@@ -42,6 +40,11 @@ class RankGap:
     narrow : bool
         True when the decision rests on a narrow margin (see
         :class:`spaceframe.tolerances.Tolerances`).
+    shift : float or None
+        The sparse engine's final shift ``tau`` of the inertia count, divided
+        by ``s_max**2``: ``tolerance**2`` unless the factorisation had to move
+        it, and then ``sqrt(shift)`` is the relative threshold the count used.
+        None for the dense engine (and where no count was needed).
     """
 
     tolerance: float
@@ -50,6 +53,7 @@ class RankGap:
     ratio: float | None
     method: str
     narrow: bool
+    shift: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -152,14 +156,14 @@ class AuditResult:
         """No internal mechanism: the frame holds its shape (it may still move as one body)."""
         return self.internal_mechanisms == 0
 
-    def mode_joints(self, i: int, *, floor: float = REPORT_FLOOR) -> list[tuple[str, np.ndarray]]:
+    def mode_joints(self, i: int, *, floor: float = DISPLAY.floor) -> list[tuple[str, np.ndarray]]:
         """Joints that move in mode ``i``, largest movement first, with their vectors."""
         u = self.mode_displacements[i]
         size = np.linalg.norm(u, axis=1)
         order = np.argsort(-size, kind="stable")
         return [(self.frame.joint_ids[j], u[j]) for j in order if size[j] > floor]
 
-    def state_members(self, i: int, *, floor: float = REPORT_FLOOR) -> list[tuple[str, float]]:
+    def state_members(self, i: int, *, floor: float = DISPLAY.floor) -> list[tuple[str, float]]:
         """Members that carry state ``i``, largest force first, with their forces."""
         t = self.self_stress_forces[i]
         order = np.argsort(-np.abs(t), kind="stable")
@@ -171,7 +175,7 @@ class AuditResult:
         modes = []
         for i, kind in enumerate(self.mode_kinds):
             u = self.mode_displacements[i]
-            moving = np.flatnonzero(np.linalg.norm(u, axis=1) > REPORT_FLOOR)
+            moving = np.flatnonzero(np.linalg.norm(u, axis=1) > DISPLAY.floor)
             entry = {"kind": kind}
             if i < len(self.mode_info):
                 info = self.mode_info[i]
@@ -188,12 +192,12 @@ class AuditResult:
                     np.any(self.mode_prestress[i]):
                 t = self.mode_prestress[i]
                 entry["prestress"] = {f.member_ids[k]: _num(t[k])
-                                      for k in np.flatnonzero(np.abs(t) > REPORT_FLOOR)}
+                                      for k in np.flatnonzero(np.abs(t) > DISPLAY.floor)}
             entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
             modes.append(entry)
         states = []
         for t in self.self_stress_forces:
-            carrying = np.flatnonzero(np.abs(t) > REPORT_FLOOR)
+            carrying = np.flatnonzero(np.abs(t) > DISPLAY.floor)
             states.append({"forces": {f.member_ids[k]: _num(t[k]) for k in carrying}})
         g = self.gap
         return {
@@ -221,7 +225,7 @@ class AuditResult:
                  "description": info.description, "joints": list(info.joints),
                  "displacements": {f.joint_ids[j]: [_num(x) for x in u[j]]
                                    for j in np.flatnonzero(np.linalg.norm(u, axis=1)
-                                                           > REPORT_FLOOR)}}
+                                                           > DISPLAY.floor)}}
                 for ratio, info, u in zip(
                     self.soft_ratios if self.soft_ratios is not None else (),
                     self.soft_info,
@@ -237,6 +241,7 @@ class AuditResult:
                 "smallest_nonzero": g.smallest_nonzero,
                 "ratio": None if g.ratio is None or not np.isfinite(g.ratio) else g.ratio,
                 "narrow": g.narrow,
+                "shift": None if g.shift is None else float(f"{g.shift:.6g}"),
             },
             "warnings": list(self.warnings),
             "caution": CAUTION,
@@ -244,6 +249,6 @@ class AuditResult:
 
 
 def _num(x: float) -> float:
-    """Round for output: six decimals on values scaled to at most 1."""
-    v = round(float(x), 6)
+    """Round for output: ``DISPLAY.decimals`` decimals on values scaled to at most 1."""
+    v = round(float(x), DISPLAY.decimals)
     return 0.0 if v == 0 else v

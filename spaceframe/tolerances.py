@@ -1,14 +1,110 @@
 """Every tolerance spaceframe uses, in one place, with the inequality it tests.
 
 All tests are relative, so an audit gives the same answer whatever the unit
-of length (mm or m) and whatever the size of the frame.
+of length (mm or m) and whatever the size of the frame (the one exception,
+``parallel_lines``, says so).  ``size`` is always :meth:`spaceframe.model.Frame.size`,
+the diagonal of the joints' bounding box.
+
+Three small frozen dataclasses:
+
+- :class:`Tolerances`: the numerical decisions (rank, model checks, the
+  tests inside the analysis).  ``DEFAULT`` is the instance every function
+  takes unless given another (``tol=``).
+- :class:`Limits`: sizes that choose a method (dense or sparse engine, whether
+  redundancy shares are computed); ``Tolerances.limits``.
+- :class:`Display`: what the views and the readable accounts show (which
+  joints count as moving, what is left out as zero, rounding); ``DISPLAY``.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Tolerances", "DEFAULT"]
+__all__ = ["Tolerances", "Limits", "Display", "DEFAULT", "DISPLAY"]
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Sizes at which the analysis changes method.
+
+    None of them changes a count: each chooses how a result is computed, or
+    whether an optional one (redundancy shares) is.
+
+    Attributes
+    ----------
+    dense_engine : int
+        The rank engine is the dense SVD when ``members * free_coordinates
+        <= dense_engine``, the sparse one otherwise (``method="auto"``).
+        Default ``100_000``: up to there the SVD takes well under a second.
+    redundancy_auto : int
+        With ``redundancy=None`` the sparse engine computes every member's
+        redundancy share when ``free_coordinates <= redundancy_auto`` (one
+        solve per free coordinate).  Default ``3_000``.
+    redundancy_max : int
+        Redundancy shares asked for are computed when ``free_coordinates <=
+        redundancy_max`` and left out (None) above.  Default ``20_000``.
+    dense_soft : int
+        Soft modes come from a dense symmetric eigensolver when
+        ``free_coordinates <= dense_soft``, from block inverse iteration
+        above.  Default ``1_500``.
+    common_prestress : int
+        The search for one state of self-stress that stiffens every internal
+        mechanism at once runs when ``internal_mechanisms <= common_prestress``
+        (otherwise ``prestress_stable`` stays undetermined).  Default ``12``.
+    """
+
+    dense_engine: int = 100_000
+    redundancy_auto: int = 3_000
+    redundancy_max: int = 20_000
+    dense_soft: int = 1_500
+    common_prestress: int = 12
+
+
+@dataclass(frozen=True)
+class Display:
+    """Thresholds of what the readable accounts, the JSON and the pictures show.
+
+    Modes are scaled so that their largest joint movement is 1 and states of
+    self-stress so that their largest force is 1: these fractions are of that.
+
+    Attributes
+    ----------
+    moving : float
+        A joint moves in a mode when its movement exceeds ``moving`` times the
+        largest: ``|u_j| > moving * max_i |u_i|`` (the mode's joint list and
+        description, highlighted joints and members in pictures, the report
+        and the interactive view).  Default ``0.05``.
+    floor : float
+        An entry is left out as zero when ``|x| <= floor`` (of the largest, 1):
+        the joints of a mode's displacements and the members of a state's
+        forces in the JSON and text, the members drawn as carrying a state in
+        pictures and counted in the report.  Default ``1e-6``, the last digit
+        kept by ``decimals``.
+    decimals : int
+        Movements, forces, directions and redundancy shares in the JSON and
+        the report are rounded, ``round(x, decimals)``: a difference with
+        ``|x - y| < 0.5 * 10**-decimals`` may not show.  Default ``6``.
+    force_decimals : int
+        The report's per-member force colours are rounded,
+        ``round(t, force_decimals)``: a difference with ``|t - u| < 0.5 *
+        10**-force_decimals`` may not show.  Default ``3``.
+    zero_coordinate : float
+        A point printed in a sentence (a rotation axis) shows a coordinate as
+        0 when ``|p| <= zero_coordinate * size``; a support glyph counts its
+        joint as level with the frame's centre along the held direction when
+        ``|side| < zero_coordinate * extent``.  Default ``1e-9``.
+    axis_plane : float
+        A plane is named by an axis (``horizontal plane z = 2.4``, ``the
+        plane y = 0``) when its unit normal ``n`` has ``|n_a| > axis_plane``,
+        and called vertical when ``|n_z| < 1 - axis_plane``.  Default ``0.999``.
+    """
+
+    moving: float = 0.05
+    floor: float = 1e-6
+    decimals: int = 6
+    force_decimals: int = 3
+    zero_coordinate: float = 1e-9
+    axis_plane: float = 0.999
 
 
 @dataclass(frozen=True)
@@ -28,8 +124,9 @@ class Tolerances:
         extrapolated ``7e-6 * s_max`` at 1,000,000.  ``1e-6`` sits between.
     narrow_gap : float
         A warning is given when the smallest singular value judged non-zero
-        is less than ``narrow_gap`` times the largest judged zero (or, when
-        nothing is judged zero, than ``narrow_gap * rank * s_max``).
+        is less than ``narrow_gap`` times the largest judged zero,
+        ``s_nonzero < narrow_gap * s_zero`` (tested only when both exist:
+        with nothing judged zero, ``near_threshold`` alone applies).
         Default ``100``: the decision then rests on less than two decades.
     near_threshold : float
         A warning is also given when a singular value on either side of the
@@ -45,8 +142,9 @@ class Tolerances:
         ``<= short_member * size``.  Default ``1e-9``.
     restraint_dependence : float
         Restraint directions at one joint count as independent while the
-        smallest singular value of their unit vectors exceeds this.
-        Default ``1e-9``.
+        smallest singular value of their unit vectors exceeds this,
+        ``s_min > restraint_dependence``; a direction that would bring it
+        lower is dropped with a warning.  Default ``1e-9``.
     merge : float
         Imported geometry (meshes, line files, drawings) gives each vertex or
         line end on its own; two of them become one joint when their distance
@@ -57,9 +155,10 @@ class Tolerances:
         absolute distance instead.
     near_miss : float
         In a drawing, a line end that joins no other line but lies within
-        ``near_miss * size`` of another end or line (and farther than the merge
-        distance) is a gap the drafter most likely did not mean; it is
-        reported as an error.  Default ``0.01``.
+        ``near_miss * size`` of another line (``distance <= near_miss * size``;
+        farther than the merge distance, or it would have joined) is a gap the
+        drafter most likely did not mean; it is reported as an error.
+        Default ``0.01``.
     select : float
         A support selection rule ``z = min`` or ``x = 0`` picks the joints
         with ``|coordinate - value| <= select * size`` unless the rule gives
@@ -67,9 +166,115 @@ class Tolerances:
     panel_plane : float
         Four joints bound a planar panel (a bracing candidate) when the two
         lines through opposite corners pass within ``panel_plane * L`` of each
-        other, ``L`` the longer of the two diagonals, and cross inside both.
+        other (``gap <= panel_plane * L``), ``L`` the longer of the two
+        diagonals, and cross inside both.  A whole frame lies in one plane when
+        every joint has ``distance <= panel_plane * extent`` from its
+        least-squares plane.
         Default ``1e-4``: a panel out of plane by 0.1 mm in 1 m is still one
         panel, a twisted one (a warped roof bay) is not.
+    s_max_estimate : float
+        Relative accuracy asked of the Lanczos estimate of the largest
+        eigenvalue ``lambda_max = s_max**2`` of ``K = C.T C`` in the sparse
+        engine (ARPACK stops when its Ritz value ``theta`` has
+        ``|lambda_max - theta| <= s_max_estimate * |theta|``).  Default
+        ``1e-2``: the threshold ``rank * s_max`` moves by half a percent at most.
+    refine : float
+        The sparse engine's projection onto the states of self-stress takes
+        one step of iterative refinement when the solve of ``K x = C.T y``
+        leaves ``||C.T y - K x|| > refine * ||C.T y||``.  Default ``1e-10``.
+    echelon_zero : float
+        In a canonical basis (each vector's largest entry 1), an entry with
+        ``|e| < echelon_zero`` is set to exactly 0, so that rounding noise
+        does not show as a tiny movement or force.  Default ``1e-12``.
+    independent : float
+        Choosing the internal mechanisms of the local basis, a candidate mode
+        ``v`` is taken when what is left of it after projection on the modes
+        already taken, ``r``, has ``||r|| > independent * ||v||``.  Default
+        ``1e-8``.
+    translation_rank : float
+        The axis translations expressed in free coordinates span the
+        directions whose singular values have ``s > translation_rank * s_1``.
+        Default ``1e-12``.
+    principal_cosine : float
+        A permitted rigid-body motion is a pure translation when its principal
+        angle to the span of translations has ``cos >= 1 - principal_cosine``.
+        Default ``1e-9``.
+    in_span : float
+        A rotation ``v`` about an axis through the centroid is among the
+        permitted rigid-body motions ``R`` when ``||v - R R.T v|| <= in_span *
+        ||v||``, and is kept as a new one when what is left of it after the
+        rotations already kept exceeds ``in_span * ||v||``.  Default ``1e-9``.
+    direction_rank : float
+        The unit direction vectors of the members at a joint (singular values
+        ``s_1 >= s_2 >= s_3``) span exactly a plane when ``s_2 > direction_rank``
+        and ``s_3 < direction_rank * s_1``, and a line when ``s_2 <=
+        direction_rank``.  Default ``1e-6``.
+    pure_translation : float
+        A rigid-body mode fitted as ``u = t + omega x (x - c)`` is a slide
+        when ``|omega| * size < pure_translation * |t|``, a rotation
+        otherwise.  Default ``1e-6``.
+    on_axis : float
+        A joint lies on a rotation axis (or at the point a plane frame turns
+        about) when its distance from it is ``<= on_axis * size``.  Default
+        ``1e-6``.
+    rigid_inside : float
+        The permitted rigid-body motions ``G`` (``r`` orthonormal columns) lie
+        in the mechanism space ``M`` found when ``||G - M M.T G||_F <=
+        rigid_inside * sqrt(r)``; otherwise the engine has failed.  Default
+        ``1e-6``.
+    axis_restraint : float
+        A restraint direction ``h`` is an axis when it has one non-zero
+        component with ``abs(|h_a| - 1) <= axis_restraint``; a joint held only
+        along axes keeps the other axes as its free coordinates.  Default
+        ``1e-15``.
+    key : float
+        A member is key (carries no force in any state of self-stress) when
+        both seeded probes projected onto the self-stress space have
+        ``|t_e| <= key * max |t|`` on it.  Default ``1e-8``.
+    stiffening : float
+        The product-force test: a mode's product forces ``p`` have a
+        stiffening component when ``||P p|| > stiffening * ||p||`` (``P`` the
+        projection onto the states of self-stress); one state ``t`` stiffens
+        all modes when the smallest eigenvalue of their geometric stiffness
+        matrix exceeds ``stiffening`` times its largest entry.  Default ``1e-8``.
+    soft : float
+        A held mode is reported as soft when its stiffness ``lambda`` (an
+        eigenvalue of ``K = C.T diag(EA / L) C``) has ``lambda < soft * k``,
+        ``k`` the frame's typical joint stiffness (the median diagonal entry
+        of ``K``).  Default ``1e-3``
+        (0.1 %: the bending of a whole truss sits near 0.2 % and is not a
+        weakness).
+    soft_shift : float
+        The soft-mode iteration factorises ``K + soft_shift * k * I`` (``k`` as
+        for ``soft``): positive definite although ``K`` is singular on the
+        mechanisms, and a shift ``soft_shift * k << soft * k``, far below the
+        stiffness of any mode worth reporting.  Default ``1e-10``.
+    in_plane_direction : float
+        An extrusion direction ``v`` (unit) lies in the plane frame's own plane
+        when ``|v . n| < in_plane_direction``, ``n`` the plane's normal; it is
+        rejected.  Default ``1e-3``.
+    crossing_margin : float
+        Two straight lines cross (a drawing's line work; a bracing panel's
+        diagonals) when the crossing point's parameter ``t`` along each has
+        ``crossing_margin < t < 1 - crossing_margin``: not at an end.
+        Default ``1e-9``.
+    parallel_lines : float
+        Two lines of a drawing ``r`` and ``s`` (plane vectors) are tested for a
+        crossing only when ``|r x s| > parallel_lines``.  Absolute, in the
+        drawing's units squared.  Default ``1e-12``.
+    parallel_diagonals : float
+        Bracing panels: two diagonals ``d1``, ``d2`` are parallel (three
+        corners in a line, no panel) when ``|d1 x d2| <= parallel_diagonals *
+        |d1| |d2|``.  Default ``1e-6``.
+    acts : float
+        Bracing: a candidate acts on a mode when the mode stretches it by
+        ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
+        (modes are scaled so that it is 1).  Default ``0.01``.
+    hint_stretch : float
+        Bracing, for a mode no candidate acts on: a member from its most
+        moving joint ``j`` to a nearby joint ``q`` would act on it when
+        ``|w . (u_q - u_j)| > hint_stretch``, ``w`` the unit vector from ``j``
+        to ``q`` (the mode's largest movement 1).  Default ``0.1``.
     held_stiffness : float
         An IFC boundary condition that gives a translational spring instead of
         a fixed translation holds that direction when its stiffness ``k``
@@ -78,6 +283,8 @@ class Tolerances:
         a steel tube of 10 cm^2 and 5 m (4e7 N/m), so such a support moves far
         less than any member stretches; softer springs are left free (a
         pin-jointed audit has no springs).
+    limits : Limits
+        The sizes that choose a method (each tested as ``size <= limit``).
     """
 
     rank: float = 1e-6
@@ -90,7 +297,31 @@ class Tolerances:
     near_miss: float = 0.01
     select: float = 1e-6
     panel_plane: float = 1e-4
+    s_max_estimate: float = 1e-2
+    refine: float = 1e-10
+    echelon_zero: float = 1e-12
+    independent: float = 1e-8
+    translation_rank: float = 1e-12
+    principal_cosine: float = 1e-9
+    in_span: float = 1e-9
+    direction_rank: float = 1e-6
+    pure_translation: float = 1e-6
+    on_axis: float = 1e-6
+    rigid_inside: float = 1e-6
+    axis_restraint: float = 1e-15
+    key: float = 1e-8
+    stiffening: float = 1e-8
+    soft: float = 1e-3
+    soft_shift: float = 1e-10
+    in_plane_direction: float = 1e-3
+    crossing_margin: float = 1e-9
+    parallel_lines: float = 1e-12
+    parallel_diagonals: float = 1e-6
+    acts: float = 0.01
+    hint_stretch: float = 0.1
     held_stiffness: float = 1e10
+    limits: Limits = Limits()
 
 
 DEFAULT = Tolerances()
+DISPLAY = Display()

@@ -334,7 +334,6 @@ FRAMES = {
 
 @pytest.mark.parametrize("case", sorted(FRAMES))
 def test_audit_matches_dense(case):
-    pytest.importorskip("spaceframe.analysis.audit")
     import spaceframe
 
     f = FRAMES[case]()

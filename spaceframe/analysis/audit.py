@@ -50,12 +50,14 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         The rank engine (see :mod:`spaceframe.analysis.nullspace`).
     redundancy : bool or None, keyword-only
         Compute every member's redundancy share.  None (default): where it is
-        cheap (the dense engine, or at most 3,000 free coordinates, one solve
-        each); True: always up to 20,000 free coordinates; False: never.
+        cheap (the dense engine, or at most ``tol.limits.redundancy_auto``
+        free coordinates, one solve each); True: always up to
+        ``tol.limits.redundancy_max`` free coordinates; False: never.
     soft : bool, keyword-only
         Look for soft modes (:mod:`spaceframe.analysis.soft`; default True).
     tol : Tolerances, keyword-only
-        ``tol.rank`` is the relative singular value threshold.
+        ``tol.rank`` is the relative singular value threshold; every other
+        test and limit of the audit is a field of it too.
 
     Returns
     -------
@@ -92,23 +94,23 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
        Solids Struct. 14(2), 161-172, 1978.
     """
     d = frame.dimension
-    dofs = free_dofs(frame)
+    dofs = free_dofs(frame, tol=tol)
     C = compatibility_matrix(frame, dofs)
     decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
                            method=method, tol=tol)
     k = decision.mechanisms.shape[1]
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    _check_rigid_inside(decision.mechanisms, rigid)
-    internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of())
-    rigid = order_rigid(rigid, dofs, frame.coords)
+    _check_rigid_inside(decision.mechanisms, rigid, tol)
+    internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of(), tol=tol)
+    rigid = order_rigid(rigid, dofs, frame.coords, tol=tol)
 
     mech = np.hstack([internal, rigid])
     modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))
     if k:
         modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
     hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
-    info = describe_modes(frame, modes, hints)
-    modes, info = gather_leans(frame, modes, info, hints)
+    info = describe_modes(frame, modes, hints, tol=tol)
+    modes, info = gather_leans(frame, modes, info, hints, tol=tol)
     # group the internal modes by kind (local kinds first), fewest joints first within a kind
     ni = internal.shape[1]
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
@@ -117,26 +119,26 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     # one projection serves the key-member probes and the product-force test
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
-    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:])
+    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
-                      projected=both[:, :2])
-    stress = canonical_basis(decision.self_stress)[:, :self_stress_cap].T
+                      projected=both[:, :2], tol=tol)
+    stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
     q = stress.shape[0]
     sm = soft_modes(C, frame.lengths(), decision.mechanisms, dofs.joint_of(),
                     ea=frame.member_properties.get("EA"),
-                    perm=getattr(decision.project, "perm", None)) if soft else None
+                    perm=getattr(decision.project, "perm", None), tol=tol) if soft else None
     soft_u = to_joint_displacements(sm.vectors, dofs) if sm and sm.vectors.shape[1] else \
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u))
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
     # a soft mode worth a designer's attention is a local weakness, not the frame's
     # global flexibility: keep those moving at most a quarter of the joints
     local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]
     soft_u, soft_info = soft_u[local], tuple(soft_info[i] for i in local)
     soft_ratio = sm.ratios[local] if sm else np.zeros(0)
     if redundancy is None:
-        redundancy = decision.method == "dense" or C.shape[1] <= 3000
+        redundancy = decision.method == "dense" or C.shape[1] <= tol.limits.redundancy_auto
     shares = redundancy_shares(decision.self_stress_count, decision.project) \
         if redundancy else None
 
@@ -165,10 +167,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         warnings=tuple(warnings))
 
 
-def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray) -> None:
+def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances) -> None:
     """The permitted rigid-body motions must lie in the mechanism space found."""
     k, r = mech.shape[1], rigid.shape[1]
-    if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid)) > 1e-6 * np.sqrt(r)):
+    if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid))
+              > tol.rigid_inside * np.sqrt(r)):
         raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
                               "not found among the mechanisms; rerun with method='dense' and "
                               "report the model")
@@ -194,4 +197,4 @@ def _gap(decision, tol: Tolerances):
             warnings.append(f"a singular value {label} ({v:.3g} of the largest) lies within a "
                             f"factor {tol.near_threshold:g} of the threshold {tol.rank:g}")
     return RankGap(tolerance=tol.rank, largest_zero=lz, smallest_nonzero=sn, ratio=ratio,
-                   method=decision.method, narrow=narrow), warnings
+                   method=decision.method, narrow=narrow, shift=decision.shift), warnings

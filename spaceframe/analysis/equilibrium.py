@@ -63,13 +63,14 @@ class FreeDofs:
         return np.repeat(np.arange(len(self.count)), self.count)
 
 
-def free_dofs(frame: Frame) -> FreeDofs:
+def free_dofs(frame: Frame, *, tol: Tolerances = DEFAULT) -> FreeDofs:
     """Orthonormal bases of the directions each joint is free to move in.
 
     An unsupported joint keeps the global axes.  A joint held along axes keeps
     the remaining axes exactly.  A joint held along other directions gets the
     orthogonal complement of them, from an SVD, with each vector's largest
     component made positive so that the result is deterministic.
+    ``tol.axis_restraint`` decides which restraint directions are axes.
 
     Notes
     -----
@@ -86,7 +87,7 @@ def free_dofs(frame: Frame) -> FreeDofs:
         for s, e in zip(starts, np.r_[starts[1:], len(rj)]):
             j, held = int(rj[s]), rd[s:e]
             basis[j] = 0.0
-            free = _complement(held, d)
+            free = _complement(held, d, tol)
             basis[j, :, :free.shape[1]] = free
             count[j] = free.shape[1]
     offset = np.zeros(n + 1, dtype=np.int64)
@@ -94,9 +95,9 @@ def free_dofs(frame: Frame) -> FreeDofs:
     return FreeDofs(basis=basis, count=count, offset=offset)
 
 
-def _complement(held: np.ndarray, d: int) -> np.ndarray:
+def _complement(held: np.ndarray, d: int, tol: Tolerances) -> np.ndarray:
     """Orthonormal basis ``(d, d - k)`` of the directions orthogonal to ``held``."""
-    axis_rows = np.isclose(np.abs(held), 1.0, rtol=0, atol=1e-15).any(axis=1) & \
+    axis_rows = np.isclose(np.abs(held), 1.0, rtol=0, atol=tol.axis_restraint).any(axis=1) & \
         (np.count_nonzero(held, axis=1) == 1)
     if axis_rows.all():
         held_axes = set(np.argmax(np.abs(held), axis=1).tolist())

@@ -32,13 +32,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..model import Frame
+from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
-__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "gather_leans", "MOVING",
-           "KINDS"]
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "gather_leans", "KINDS"]
 
-#: A joint "moves" in a mode when its movement exceeds this fraction of the largest.
-MOVING = 0.05
 #: A mode moving at most this many joints is "local".
 LOCAL_JOINTS = 3
 #: The kinds of mode, in the order they are tested.
@@ -56,7 +54,7 @@ class ModeInfo:
     kind : str
         One of :data:`KINDS`.
     joints : tuple of str
-        Joints that move more than :data:`MOVING` of the largest movement,
+        Joints that move more than ``Display.moving`` of the largest movement,
         largest first.
     members : tuple of str
         Members with an end at a moving joint.
@@ -76,7 +74,8 @@ class ModeInfo:
     description: str
 
 
-def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
+def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
+                tol: Tolerances = DEFAULT):
     """Split the mechanism space into local internal modes and rigid-body modes.
 
     Parameters
@@ -88,6 +87,8 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
         ``span(mech)``).
     joint_of : (N,) int
         Joint of each free coordinate.
+    tol : Tolerances, keyword-only
+        ``tol.independent``: how much of a mode must be new to be taken.
 
     Returns
     -------
@@ -104,7 +105,7 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
     k, r = mech.shape[1], rigid.shape[1]
     if k == 0:
         return mech, rigid
-    E = canonical_basis(mech)
+    E = canonical_basis(mech, tol=tol)
     spread = np.array([_joint_count(E[:, i], joint_of) for i in range(k)])
     order = np.lexsort((np.arange(k), spread))
     Q = rigid.copy()
@@ -115,19 +116,22 @@ def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray):
         v = E[:, i]
         res = v - Q @ (Q.T @ v) if Q.shape[1] else v
         nrm = np.linalg.norm(res)
-        if nrm > 1e-8 * np.linalg.norm(v):
+        if nrm > tol.independent * np.linalg.norm(v):
             chosen.append(i)
             Q = np.hstack([Q, (res / nrm)[:, None]])
     return E[:, chosen], rigid
 
 
-def order_rigid(rigid: np.ndarray, dofs, coords: np.ndarray | None = None) -> np.ndarray:
+def order_rigid(rigid: np.ndarray, dofs, coords: np.ndarray | None = None, *,
+                tol: Tolerances = DEFAULT) -> np.ndarray:
     """Rigid-body modes as pure translations first, then the rest (rotations).
 
     The translations permitted are the intersection of the rigid-body space
     with the span of the axis translations (principal vectors with cosine 1,
     Björck & Golub's principal angles); they come out along principal
     directions.  Each mode gets a deterministic sign (largest entry positive).
+    ``tol.translation_rank``, ``tol.principal_cosine`` and ``tol.in_span``
+    decide the translations and the rotations about axes.
 
     Returns
     -------
@@ -140,24 +144,24 @@ def order_rigid(rigid: np.ndarray, dofs, coords: np.ndarray | None = None) -> np
     slot = np.arange(dofs.total) - dofs.offset[joint]
     T = dofs.basis[joint, :, slot]            # (N, d): axis translations in free coordinates
     u, s, _ = np.linalg.svd(T, full_matrices=False)
-    T = u[:, s > 1e-12 * max(s.max(initial=0.0), 1e-300)]
+    T = u[:, s > tol.translation_rank * max(s.max(initial=0.0), 1e-300)]
     if T.shape[1]:
         a, cos, _ = np.linalg.svd(rigid.T @ T, full_matrices=True)
-        nt = int(np.sum(cos >= 1 - 1e-9))
+        nt = int(np.sum(cos >= 1 - tol.principal_cosine))
         R = rigid @ a
     else:
         nt, R = 0, rigid
     # echelon form within each block: the translations come out along the axes where the
     # supports allow that, and the sign and order are deterministic
-    turns = _axis_turns(R[:, nt:], dofs, coords) if coords is not None else R[:, nt:]
-    out = np.hstack([canonical_basis(R[:, :nt]), turns])
+    turns = _axis_turns(R[:, nt:], dofs, coords, tol) if coords is not None else R[:, nt:]
+    out = np.hstack([canonical_basis(R[:, :nt], tol=tol), turns])
     for i in range(out.shape[1]):
         v = out[:, i]
         out[:, i] = v * np.sign(v[np.argmax(np.abs(v))]) / np.linalg.norm(v)
     return out
 
 
-def _axis_turns(R: np.ndarray, dofs, coords: np.ndarray) -> np.ndarray:
+def _axis_turns(R: np.ndarray, dofs, coords: np.ndarray, tol: Tolerances) -> np.ndarray:
     """Rotations about axes parallel to x, y, z through the centroid, where the block has them.
 
     Each such rotation lying in ``span(R)`` is taken (Gram-Schmidt, in axis order); the rest
@@ -166,7 +170,7 @@ def _axis_turns(R: np.ndarray, dofs, coords: np.ndarray) -> np.ndarray:
     r = R.shape[1]
     d = coords.shape[1]
     if r == 0 or d != 3:
-        return canonical_basis(R)
+        return canonical_basis(R, tol=tol)
     joint = dofs.joint_of()
     slot = np.arange(dofs.total) - dofs.offset[joint]
     x = coords - coords.mean(axis=0)
@@ -176,28 +180,29 @@ def _axis_turns(R: np.ndarray, dofs, coords: np.ndarray) -> np.ndarray:
         v = np.einsum("nd,nd->n", dofs.basis[joint, :, slot], spin[joint]) \
             if dofs.total else np.zeros(0)
         nv = np.linalg.norm(v)
-        if nv == 0 or np.linalg.norm(v - R @ (R.T @ v)) > 1e-9 * nv:
+        if nv == 0 or np.linalg.norm(v - R @ (R.T @ v)) > tol.in_span * nv:
             continue
         for q in kept:
             v = v - q * (q @ v)
-        if np.linalg.norm(v) > 1e-9 * nv:
+        if np.linalg.norm(v) > tol.in_span * nv:
             kept.append(v / np.linalg.norm(v))
     if not kept:
-        return canonical_basis(R)
+        return canonical_basis(R, tol=tol)
     K = np.array(kept).T
     rest = R - K @ (K.T @ R)
     u, s, _ = np.linalg.svd(rest, full_matrices=False)
-    return np.hstack([K, canonical_basis(u[:, :r - K.shape[1]])])
+    return np.hstack([K, canonical_basis(u[:, :r - K.shape[1]], tol=tol)])
 
 
 def _joint_count(v, joint_of):
     size = np.zeros(joint_of.max() + 1 if len(joint_of) else 0)
     np.add.at(size, joint_of, v * v)
     size = np.sqrt(size)
-    return int(np.sum(size > MOVING * size.max())) if size.size and size.max() > 0 else 0
+    return int(np.sum(size > DISPLAY.moving * size.max())) if size.size and size.max() > 0 else 0
 
 
-def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[str, ...]):
+def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[str, ...], *,
+                   tol: Tolerances = DEFAULT):
     """Classify and describe each mode.
 
     Parameters
@@ -207,20 +212,23 @@ def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[st
         Joint movements of each mode.
     kinds_hint : tuple of str
         ``"internal"`` or ``"rigid-body"`` for each mode.
+    tol : Tolerances, keyword-only
+        ``tol.direction_rank``, ``tol.pure_translation`` and ``tol.on_axis``
+        (see :class:`~spaceframe.tolerances.Tolerances`).
 
     Returns
     -------
     tuple of ModeInfo
     """
-    ctx = _Context(frame)
+    ctx = _Context(frame, tol)
     return tuple(ctx.describe(u, hint) for u, hint in zip(displacements, kinds_hint))
 
 
 class _Context:
     """What the descriptions need of the frame, computed once."""
 
-    def __init__(self, frame: Frame):
-        self.frame = frame
+    def __init__(self, frame: Frame, tol: Tolerances = DEFAULT):
+        self.frame, self.tol = frame, tol
         n, d = frame.n_joints, frame.dimension
         self.d = d
         X = frame.coords
@@ -268,7 +276,8 @@ class _Context:
         if self.d != 3 or len(ms) < 2:
             return None
         _, s, vt = np.linalg.svd(self.w[ms])
-        if s[1] > 1e-6 and (len(s) < 3 or s[2] < 1e-6 * s[0]):
+        eps = self.tol.direction_rank
+        if s[1] > eps and (len(s) < 3 or s[2] < eps * s[0]):
             return vt[2]
         return None
 
@@ -276,7 +285,7 @@ class _Context:
         f = self.frame
         size = np.linalg.norm(u, axis=1)
         top = size.max() if size.size else 0.0
-        moving = np.flatnonzero(size > MOVING * top)
+        moving = np.flatnonzero(size > DISPLAY.moving * top)
         moving = moving[np.argsort(-size[moving], kind="stable")]
         jids = tuple(f.joint_ids[j] for j in moving)
         mem = sorted({int(m) for j in moving for m in self.members_at(j)})
@@ -357,7 +366,7 @@ class _Context:
             sol, *_ = np.linalg.lstsq(rows.reshape(-1, 3), u.reshape(-1), rcond=None)
             t, om = sol[:2], np.array([sol[2]])
         spin = np.linalg.norm(om) * self.size
-        if spin < 1e-6 * max(np.linalg.norm(t), 1e-300):
+        if spin < self.tol.pure_translation * max(np.linalg.norm(t), 1e-300):
             direction = t / np.linalg.norm(t)
             building = " (along the building)" if self.extrusion is not None and \
                 abs(direction @ self.extrusion) >= 0.98 else ""
@@ -384,7 +393,7 @@ class _Context:
         X = self.frame.coords
         r = X - p
         dist = np.linalg.norm(r - np.outer(r @ axis, axis), axis=1)
-        idx = np.flatnonzero(dist <= 1e-6 * self.size)
+        idx = np.flatnonzero(dist <= self.tol.on_axis * self.size)
         idx = idx[np.argsort(r[idx] @ axis)]
         return [self.frame.joint_ids[j] for j in idx]
 
@@ -392,7 +401,7 @@ class _Context:
         X = self.frame.coords
         dist = np.linalg.norm(X - p, axis=1)
         j = int(np.argmin(dist))
-        return self.frame.joint_ids[j] if dist[j] <= 1e-6 * self.size else None
+        return self.frame.joint_ids[j] if dist[j] <= self.tol.on_axis * self.size else None
 
     # -- internal ----------------------------------------------------------
     def _internal(self, u, moving, jids, direction, parallel, frames):
@@ -416,7 +425,7 @@ class _Context:
         # collinear members: free sideways
         if n_mov == 1:
             ms = self.members_at(moving[0])
-            if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=1e-6) == 1:
+            if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
                 return "local", (f"Joint {jids[0]} lies on a straight line of members and is "
                                  f"free sideways to them ({_dir_words(direction)}).")
         # a row of frames leaning together along the extrusion: every moving joint moves
@@ -449,7 +458,8 @@ class _Context:
                          f"({_dir_words(direction)} mostly), with no member changing length.")
 
 
-def gather_leans(frame: Frame, modes: np.ndarray, info: tuple, hints: tuple):
+def gather_leans(frame: Frame, modes: np.ndarray, info: tuple, hints: tuple, *,
+                 tol: Tolerances = DEFAULT):
     """Present several lean modes as one lean of the whole row and racking modes.
 
     When ``q > 1`` modes each move a row of frames the same way along the
@@ -467,7 +477,7 @@ def gather_leans(frame: Frame, modes: np.ndarray, info: tuple, hints: tuple):
     idx = [i for i, inf in enumerate(info) if inf.kind == "lean"]
     if len(idx) < 2:
         return modes, info
-    ctx = _Context(frame)
+    ctx = _Context(frame, tol)
     V = modes[idx].copy()
     for a in range(len(V)):
         if np.sum(V[a] @ ctx.extrusion) < 0:
@@ -492,7 +502,7 @@ def _dir_words(v, *, along=False):
 
 
 def _xyz(p, size=1.0):
-    p = np.where(np.abs(p) <= 1e-9 * size, 0.0, p)
+    p = np.where(np.abs(p) <= DISPLAY.zero_coordinate * size, 0.0, p)
     return ", ".join(f"{c:.3g}" for c in p)
 
 

@@ -47,10 +47,7 @@ import scipy.sparse.linalg as spla
 from ..errors import SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 
-__all__ = ["RankDecision", "decide_rank", "canonical_basis", "DENSE_LIMIT"]
-
-#: The dense engine is used when members × free coordinates is at most this.
-DENSE_LIMIT = 100_000
+__all__ = ["RankDecision", "decide_rank", "canonical_basis"]
 
 _SEED = 20261201
 _BLOCK = 16  # right-hand sides per solve: SuperLU's multi-vector solve grows faster past this
@@ -93,6 +90,11 @@ class RankDecision:
         ``Y - C K^+ C.T Y``: the part of a member force vector that needs no
         load.  ``project.redundancy()`` gives the diagonal of that projector
         (or None where it would cost too much).
+    shift : float or None
+        The sparse engine's final shift ``tau`` of the inertia count, divided
+        by ``s_max**2``: ``tol.rank**2`` unless the factorisation had to move
+        it (then ``sqrt(shift)`` is the relative singular value threshold the
+        count used).  None for the dense engine and where no count was made.
     """
 
     rank: int
@@ -105,6 +107,7 @@ class RankDecision:
     smallest_nonzero: float | None
     method: str
     project: object = None
+    shift: float | None = None
 
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
@@ -123,7 +126,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         Compute at most this many states of self-stress (their number is
         always exact).  Default 16.
     method : {"auto", "dense", "sparse"}, keyword-only
-        ``"auto"`` takes the dense engine when ``m * n <= DENSE_LIMIT``.
+        ``"auto"`` takes the dense engine when ``m * n <= tol.limits.dense_engine``.
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative threshold on singular values.
 
@@ -141,7 +144,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     C = sp.csr_matrix(C)
     m, n = C.shape
     if method == "auto":
-        method = "dense" if m * n <= DENSE_LIMIT else "sparse"
+        method = "dense" if m * n <= tol.limits.dense_engine else "sparse"
     if method == "dense":
         return _dense(C, self_stress_cap, tol)
     if method == "sparse":
@@ -180,7 +183,7 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
         stress = np.eye(m, min(cap, m))
         return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse",
                             project=_EveryMember(m))
-    lam_max = _largest_eigenvalue(K)
+    lam_max = _largest_eigenvalue(K, tol)
     s_max = float(np.sqrt(lam_max))
     threshold = tol.rank * s_max
     tau = threshold ** 2
@@ -195,7 +198,7 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
     mech = basis[:, :k][inv]
     largest_zero = float(np.max(np.linalg.norm(C @ mech, axis=0))) if k else None
     smallest = float(np.sqrt(max(ritz[k], 0.0))) if rank and len(ritz) > k else None
-    project = _Projector(C, Kp, lu, perm, mech)
+    project = _Projector(C, Kp, lu, perm, mech, tol)
     q = min(cap, m - rank)
     if q > 0:
         stress, _ = np.linalg.qr(project(np.random.default_rng(_SEED + 1).standard_normal((m, q))))
@@ -204,16 +207,17 @@ def _sparse(C, joint_of, cap, tol) -> RankDecision:
     return RankDecision(rank=rank, mechanisms=mech, self_stress=stress,
                         self_stress_count=m - rank,
                         s_max=s_max, threshold=threshold, largest_zero=largest_zero,
-                        smallest_nonzero=smallest, method="sparse", project=project)
+                        smallest_nonzero=smallest, method="sparse", project=project,
+                        shift=tau / lam_max)
 
 
-def _largest_eigenvalue(K) -> float:
-    """Largest eigenvalue of the semi-definite ``K``, to about two digits (Lanczos)."""
+def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
+    """Largest eigenvalue of the semi-definite ``K``, to ``tol.s_max_estimate`` (Lanczos)."""
     n = K.shape[0]
     if n <= 3:
         return float(np.linalg.eigvalsh(K.toarray())[-1])
     v0 = np.random.default_rng(_SEED).standard_normal(n)
-    return float(spla.eigsh(K, k=1, which="LA", tol=1e-2, ncv=min(n, 10), v0=v0,
+    return float(spla.eigsh(K, k=1, which="LA", tol=tol.s_max_estimate, ncv=min(n, 10), v0=v0,
                             return_eigenvectors=False)[0])
 
 
@@ -249,7 +253,8 @@ def _shifted_ldl(Kp, tau):
     With the diagonal as pivot throughout, ``U = D L.T`` and the signs of
     ``diag(U)`` are the inertia of ``Kp - tau I``.  SuperLU may still swap
     rows where a pivot is exactly zero; then the shift is moved a little and
-    the factorisation repeated.
+    the factorisation repeated; the shift used is returned with it (and
+    recorded in :attr:`RankDecision.shift`).
     """
     n = Kp.shape[0]
     eye = sp.identity(n, format="csc")
@@ -326,13 +331,14 @@ class _Projector:
     of ``y`` by member elongations is orthogonal to every column of ``C``.
     ``C.T y`` lies in the range of ``K``; the solve with the factorisation of
     ``K - tau I`` is followed by a step of iterative refinement where the
-    residual exceeds 1e-10 of the right-hand side, and by the removal of any
+    residual exceeds ``tol.refine`` of the right-hand side, and by the removal of any
     mechanism component (``C`` maps it to zero anyway).  Columns are taken
     ``_BLOCK`` at a time.
     """
 
-    def __init__(self, C, Kp, lu, perm, mech):
+    def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
         self.C, self.Kp, self.lu, self.perm, self.mech = C, Kp, lu, perm, mech
+        self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
         self.inv = np.empty_like(perm)
         self.inv[perm] = np.arange(len(perm))
 
@@ -346,7 +352,7 @@ class _Projector:
             y = Y[:, lo:lo + _BLOCK]
             rhs = (C.T @ y)[self.perm]
             x = lu.solve(np.asfortranarray(rhs))
-            if np.linalg.norm(rhs - Kp @ x) > 1e-10 * np.linalg.norm(rhs):
+            if np.linalg.norm(rhs - Kp @ x) > self.refine * np.linalg.norm(rhs):
                 x += lu.solve(np.asfortranarray(rhs - Kp @ x))
             x = x[self.inv]
             if mech.shape[1]:
@@ -354,7 +360,7 @@ class _Projector:
             T[:, lo:lo + _BLOCK] = y - C @ x
         return T[:, 0] if flat else T
 
-    def redundancy(self, *, max_solves: int = 20_000):
+    def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.
 
         ``r_e = 1 - c_e K^+ c_e.T`` for each member row ``c_e`` of ``C``.  The
@@ -362,10 +368,12 @@ class _Projector:
         block solve each, with mechanism components removed before and after)
         and folded into ``h = diag(C K^+ C.T)`` at once, so memory stays
         O(n x batch).  Returns None when that needs more than ``max_solves``
-        right-hand sides.  Cost: ``n`` solves and O(nnz(C) n).
+        right-hand sides (default ``tol.limits.redundancy_max``).  Cost: ``n``
+        solves and O(nnz(C) n).
         """
         C, lu, mech = self.C, self.lu, self.mech
         m, n = C.shape
+        max_solves = self.max_solves if max_solves is None else max_solves
         if n > max_solves:
             return None
         Cc = C.tocsc()
@@ -385,7 +393,7 @@ class _Projector:
         return np.clip(1.0 - h, 0.0, 1.0)
 
 
-def canonical_basis(B: np.ndarray) -> np.ndarray:
+def canonical_basis(B: np.ndarray, *, tol: Tolerances = DEFAULT) -> np.ndarray:
     """A deterministic basis of the column space of ``B``.
 
     The reduced echelon form: a column-pivoted QR of ``B.T`` picks one pivot
@@ -398,6 +406,8 @@ def canonical_basis(B: np.ndarray) -> np.ndarray:
     Parameters
     ----------
     B : (N, k) float, full column rank
+    tol : Tolerances, keyword-only
+        Entries below ``tol.echelon_zero`` (of the column's largest) become 0.
 
     Returns
     -------
@@ -416,5 +426,5 @@ def canonical_basis(B: np.ndarray) -> np.ndarray:
     piv = piv[:k]
     E = np.linalg.solve(Q[piv, :].T, Q.T).T  # E[piv] = I
     E /= np.max(np.abs(E), axis=0)[None, :]
-    E[np.abs(E) < 1e-12] = 0.0
+    E[np.abs(E) < tol.echelon_zero] = 0.0
     return E

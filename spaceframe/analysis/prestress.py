@@ -37,14 +37,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..model import Frame
+from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["PrestressResult", "prestress_test", "product_forces", "STIFFENED", "NOT_STIFFENED"]
 
 STIFFENED = "first-order, stiffened by prestress"
 NOT_STIFFENED = "not stiffened by any prestress"
-
-#: ``|P p| > STIFFENING * |p|`` counts as a stiffening component.
-STIFFENING = 1e-8
 
 
 @dataclass(frozen=True)
@@ -85,7 +83,8 @@ def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
 
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,
-                   projected: np.ndarray | None = None) -> PrestressResult:
+                   projected: np.ndarray | None = None,
+                   tol: Tolerances = DEFAULT) -> PrestressResult:
     """Apply the product-force test to internal mechanisms.
 
     Parameters
@@ -98,6 +97,9 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     projected : (m, k) float, optional
         ``project(product_forces(frame, modes))`` when the caller has already
         computed it (with other columns in the same solves).
+    tol : Tolerances, keyword-only
+        ``tol.stiffening`` decides a stiffening component;
+        ``tol.limits.common_prestress`` caps the search for one state for all.
 
     Returns
     -------
@@ -117,24 +119,25 @@ def prestress_test(frame: Frame, modes: np.ndarray, project, *,
     P = project(p) if projected is None else projected
     orders, stress = [], np.zeros((k, m))
     for i in range(k):
-        if np.linalg.norm(P[:, i]) > STIFFENING * max(np.linalg.norm(p[:, i]), 1e-300):
+        if np.linalg.norm(P[:, i]) > tol.stiffening * max(np.linalg.norm(p[:, i]), 1e-300):
             orders.append(STIFFENED)
             stress[i] = P[:, i] / np.max(np.abs(P[:, i]))
         else:
             orders.append(NOT_STIFFENED)
     if NOT_STIFFENED in orders:
         return PrestressResult(tuple(orders), stress, False, None)
-    certificate = _common_prestress(du, L, P, project) if k <= 12 else None
+    certificate = _common_prestress(du, L, P, tol.stiffening) \
+        if k <= tol.limits.common_prestress else None
     return PrestressResult(tuple(orders), stress, True if certificate is not None else None,
                            certificate)
 
 
-def _common_prestress(du, L, P, project):
+def _common_prestress(du, L, P, stiffening):
     """A state of self-stress stiffening every mode at once, or None."""
     k = du.shape[0]
     candidates = [P.sum(axis=1)] + [P[:, i] for i in range(k)]
     for t in candidates:
         M = np.einsum("amd,bmd,m->ab", du, du, t / L)
-        if np.linalg.eigvalsh((M + M.T) / 2)[0] > STIFFENING * np.abs(M).max():
+        if np.linalg.eigvalsh((M + M.T) / 2)[0] > stiffening * np.abs(M).max():
             return t / np.max(np.abs(t))
     return None

@@ -32,10 +32,9 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["key_members", "probes", "redundancy_shares", "KEY"]
+from ..tolerances import DEFAULT, Tolerances
 
-#: A member is key when every probe's force on it is at most KEY times the probe's largest.
-KEY = 1e-8
+__all__ = ["key_members", "probes", "redundancy_shares"]
 
 _SEED = 20261202
 
@@ -46,7 +45,7 @@ def probes(m: int) -> np.ndarray:
 
 
 def key_members(m: int, self_stress_count: int, project, *,
-                projected: np.ndarray | None = None) -> np.ndarray:
+                projected: np.ndarray | None = None, tol: Tolerances = DEFAULT) -> np.ndarray:
     """Indices of the members that carry no force in any state of self-stress.
 
     Parameters
@@ -58,6 +57,8 @@ def key_members(m: int, self_stress_count: int, project, *,
         Projection onto the self-stress space.
     projected : (m, 2) float, optional
         ``project(probes(m))``, where the caller computed it already.
+    tol : Tolerances, keyword-only
+        A member is key when both probes have ``|t_e| <= tol.key * max |t|``.
 
     Returns
     -------
@@ -72,17 +73,18 @@ def key_members(m: int, self_stress_count: int, project, *,
         return np.arange(m)
     t = project(probes(m)) if projected is None else projected
     scale = np.abs(t).max(axis=0)
-    return np.flatnonzero(np.all(np.abs(t) <= KEY * scale, axis=1))
+    return np.flatnonzero(np.all(np.abs(t) <= tol.key * scale, axis=1))
 
 
-def redundancy_shares(self_stress_count: int, project, *, max_solves: int = 20_000):
+def redundancy_shares(self_stress_count: int, project, *, max_solves: int | None = None):
     """Redundancy share of every member, ``(m,) float``, or None when too costly.
 
     Notes
     -----
     Dense engine: from the orthonormal self-stress basis, O(m s).  Sparse
     engine: one solve per free coordinate (see the projector's
-    ``redundancy``), skipped beyond ``max_solves`` coordinates.
+    ``redundancy``), skipped beyond ``max_solves`` coordinates (default: the
+    engine's ``tol.limits.redundancy_max``).
     """
     r = project.redundancy(max_solves=max_solves)
     if r is not None and self_stress_count == 0:

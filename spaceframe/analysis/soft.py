@@ -11,7 +11,7 @@ from the model's ``[properties.members.EA]`` table, and is uniform when the
 model gives none (then only ``1 / L`` weights the members).
 
 The eigenvalues come from a block inverse iteration with the factorisation of
-``K + delta I`` (``delta = 1e-10`` of the typical stiffness), the mechanisms
+``K + delta I`` (``delta``: ``Tolerances.soft_shift`` of the typical stiffness), the mechanisms
 projected out at every step, followed by Rayleigh-Ritz; small frames use a
 dense symmetric eigensolver.
 """
@@ -24,11 +24,9 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-__all__ = ["SoftModes", "soft_modes", "SOFT"]
+from ..tolerances import DEFAULT, Tolerances
 
-#: A mode is reported as soft when its stiffness is below this fraction of the typical
-#: (0.1 %: the bending of a whole truss sits near 0.2 % and is not a weakness).
-SOFT = 1e-3
+__all__ = ["SoftModes", "soft_modes"]
 
 _SEED = 20261203
 
@@ -45,7 +43,7 @@ class SoftModes:
         The modes in free coordinates (unit length).
     checked : int
         How many of the softest modes were computed (those below
-        :data:`SOFT` are kept).
+        ``Tolerances.soft`` are kept).
     """
 
     ratios: np.ndarray
@@ -53,9 +51,9 @@ class SoftModes:
     checked: int
 
 
-def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = SOFT,
-               ea=None, perm=None) -> SoftModes:
-    """The ``count`` softest modes above the mechanisms, kept where softer than ``fraction``.
+def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None,
+               tol: Tolerances = DEFAULT) -> SoftModes:
+    """The ``count`` softest modes above the mechanisms, kept where softer than ``tol.soft``.
 
     Parameters
     ----------
@@ -70,6 +68,10 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
     perm : (N,) int, optional
         A fill-reducing ordering already computed for ``C.T C`` (it has the
         same pattern); computed when absent.
+    tol : Tolerances, keyword-only
+        ``tol.soft``: the stiffness ratio below which a mode is soft;
+        ``tol.soft_shift``; ``tol.limits.dense_soft``: the largest problem
+        solved densely.
 
     Notes
     -----
@@ -88,7 +90,7 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
     typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
     if typical == 0:
         return empty
-    if N <= 1500:
+    if N <= tol.limits.dense_soft:
         vals, vecs = np.linalg.eigh(K.toarray())
         if k:  # drop the mechanism directions
             keep = np.argsort(np.linalg.norm(mech.T @ vecs, axis=0))[:N - k]
@@ -96,13 +98,13 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, fraction: float = 
             vals, vecs = vals[keep], vecs[:, keep]
         vals, vecs = vals[:width], vecs[:, :width]
     else:
-        vals, vecs = _iterate(K, typical, mech, joint_of, width, perm)
+        vals, vecs = _iterate(K, tol.soft_shift * typical, mech, joint_of, width, perm)
     ratios = vals / typical
-    soft = ratios < fraction
+    soft = ratios < tol.soft
     return SoftModes(ratios[soft], vecs[:, soft], width)
 
 
-def _iterate(K, typical, mech, joint_of, width, perm, iterations: int = 4):
+def _iterate(K, delta, mech, joint_of, width, perm, iterations: int = 4):
     from .nullspace import _ordering
 
     N = K.shape[0]
@@ -111,7 +113,7 @@ def _iterate(K, typical, mech, joint_of, width, perm, iterations: int = 4):
     inv = np.empty_like(perm)
     inv[perm] = np.arange(N)
     Kp = K[perm][:, perm].tocsc()
-    lu = spla.splu((Kp + 1e-10 * typical * sp.identity(N, format="csc")).tocsc(),
+    lu = spla.splu((Kp + delta * sp.identity(N, format="csc")).tocsc(),
                    permc_spec="NATURAL", diag_pivot_thresh=0.0,
                    options=dict(SymmetricMode=True))
     M = mech[perm]

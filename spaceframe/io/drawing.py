@@ -52,7 +52,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame
+from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .mesh import _point, file_units, frame_from_edges
 
@@ -139,7 +139,7 @@ def read_drawing(path, *, tol: Tolerances = DEFAULT, layers=None, merge=None, sp
                          f"member as a line{hint}", path=source)
     points = segments.reshape(-1, 2)
     edges = np.arange(len(points)).reshape(-1, 2)
-    size = float(np.linalg.norm(points.max(axis=0) - points.min(axis=0)))
+    size = bounding_diagonal(points)
     limit = tol.merge * size if merge is None else float(merge)
     layer_of = drawn.layers[drawn.chosen]
     tags = {"layer": layer_of} if layer_of.any() else {}
@@ -150,7 +150,7 @@ def read_drawing(path, *, tol: Tolerances = DEFAULT, layers=None, merge=None, sp
         frame = _split_frame(frame, limit, tol)
     _check_near_misses(frame, tol, limit, split, drawn.segments[~drawn.chosen],
                        drawn.layers[~drawn.chosen])
-    _warn_crossings(frame)
+    _warn_crossings(frame, tol)
     return frame
 
 
@@ -289,8 +289,9 @@ def _lines(source: str, suffix: str, layers) -> _Lines:
     if suffix == ".svg":
         chosen = np.ones(len(segs), dtype=bool)
         if layers:
-            mine = {tuple(np.round(x, 9).ravel()) for x in _straight(picked, source)[0]}
-            chosen = np.array([tuple(np.round(x, 9).ravel()) in mine for x in segs], dtype=bool)
+            # the same parser on the same numbers: the chosen segments compare equal
+            mine = {tuple(x.ravel()) for x in _straight(picked, source)[0]}
+            chosen = np.array([tuple(x.ravel()) in mine for x in segs], dtype=bool)
         segs = (segs - offset) * scale
         segs[:, :, 1] *= -1.0
     else:
@@ -470,7 +471,7 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
                      f"{listed}{more}; " + "; ".join(advice), path=frame.source)
 
 
-def _warn_crossings(frame: Frame) -> None:
+def _warn_crossings(frame: Frame, tol: Tolerances) -> None:
     a, b = frame.coords[frame.ends[:, 0]], frame.coords[frame.ends[:, 1]]
     m = len(a)
     crossings = []
@@ -484,8 +485,8 @@ def _warn_crossings(frame: Frame) -> None:
         with np.errstate(divide="ignore", invalid="ignore"):
             t = (q[:, 0] * s[:, 1] - q[:, 1] * s[:, 0]) / denom
             u = (q[:, 0] * r[1] - q[:, 1] * r[0]) / denom
-        eps = 1e-9
-        hit = (~shared) & (np.abs(denom) > 1e-12) & (t > eps) & (t < 1 - eps) & (u > eps) & \
+        eps = tol.crossing_margin
+        hit = (~shared) & (np.abs(denom) > tol.parallel_lines) & (t > eps) & (t < 1 - eps) & (u > eps) & \
               (u < 1 - eps)
         for k in np.flatnonzero(hit):
             crossings.append((frame.member_ids[i], frame.member_ids[j[k]], a[i] + t[k] * r))

@@ -58,7 +58,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame
+from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 from .drawing import _split_frame, split_at_junctions
@@ -146,7 +146,7 @@ def read_ifc(path, *, tol: Tolerances = DEFAULT, merge=None, split=True) -> Fram
         frame = _architectural(f, source, tol, merge, split, units, scale)
     name = model.get("name") or _project_name(f) or Path(source).stem
     if dimension == 2:
-        frame = _as_plane(frame, source)
+        frame = _as_plane(frame, source, tol)
     return checked(_renamed(frame, name), tol=tol)
 
 
@@ -268,7 +268,7 @@ def _structural(f, source, tol, merge, split, units, scale) -> Frame:
         raise ModelError("holds structural members but no IfcStructuralPointConnection; the "
                          "joints must be point connections", path=source)
     everything = np.concatenate([coords, points.reshape(-1, 3)])
-    size = float(np.linalg.norm(everything.max(axis=0) - everything.min(axis=0)))
+    size = bounding_diagonal(everything)
     limit = tol.merge * size if merge is None else float(merge)
     from scipy.spatial import cKDTree
 
@@ -300,8 +300,8 @@ def _split_keeping_supports(frame: Frame, limit: float, tol: Tolerances) -> Fram
     cut = _split_frame(frame, limit, tol, what="member",
                        ids=lambda mid, q, n: mid if n == 1 else f"{mid}.{q + 1}")
     # the rebuilt frame numbers joints by first use: map back to the connections' ids
-    index = {tuple(np.round(x, 12)): i for i, x in enumerate(frame.coords)}
-    old = np.array([index[tuple(np.round(x, 12))] for x in cut.coords], dtype=np.int64)
+    index = {tuple(x): i for i, x in enumerate(frame.coords.tolist())}   # the same numbers
+    old = np.array([index[tuple(x)] for x in cut.coords.tolist()], dtype=np.int64)
     return Frame(joint_ids=frame.joint_ids, coords=frame.coords, member_ids=cut.member_ids,
                  ends=old[cut.ends], restraint_joint=frame.restraint_joint,
                  restraint_dir=frame.restraint_dir, units=frame.units, source=frame.source,
@@ -399,7 +399,7 @@ def _architectural(f, source, tol, merge, split, units, scale) -> Frame:
                          "analysis model, or give the elements an Axis representation",
                          path=source)
     points = np.concatenate(segments)
-    size = float(np.linalg.norm(points.max(axis=0) - points.min(axis=0)))
+    size = bounding_diagonal(points)
     limit = tol.merge * size if merge is None else float(merge)
     tags = _tags(kept, kept_ids)
     tags["ifc_class"] = [e.is_a() for e in kept]
@@ -412,9 +412,13 @@ def _architectural(f, source, tol, merge, split, units, scale) -> Frame:
     return frame
 
 
-def _as_plane(frame: Frame, source: str) -> Frame:
-    """A plane frame written in the x-z plane, read back with coordinates ``[x, z]``."""
-    if frame.n_joints and np.ptp(frame.coords[:, 1]) > 1e-9 * max(frame.size(), 1e-300):
+def _as_plane(frame: Frame, source: str, tol: Tolerances) -> Frame:
+    """A plane frame written in the x-z plane, read back with coordinates ``[x, z]``.
+
+    Its joints are in that plane when their y coordinates differ by no more
+    than ``tol.coincident * size``.
+    """
+    if frame.n_joints and np.ptp(frame.coords[:, 1]) > tol.coincident * frame.size():
         raise ModelError("says it is a plane frame (SpaceframeModel dimension = 2) but its "
                          "joints are not in one x-z plane; remove the property or correct "
                          "the model", path=source)
@@ -466,7 +470,8 @@ def _support_condition(f, rows: np.ndarray, label: str):
     """
     eye = np.eye(3)
     along = [int(np.argmax(np.abs(r))) for r in rows]
-    if all(np.allclose(np.abs(r), eye[a], atol=1e-12) for r, a in zip(rows, along)):
+    if all(np.all(np.abs(np.abs(r) - eye[a]) <= DEFAULT.axis_restraint)
+           for r, a in zip(rows, along)):
         held, system = set(along), None
     else:
         q, _ = np.linalg.qr(np.column_stack([*rows, eye]).astype(float))

@@ -32,7 +32,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import UNITS, Frame
+from ..model import UNITS, Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 
@@ -200,8 +200,7 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
     points = np.asarray(points, dtype=float).reshape(-1, dimension)
     edges = np.asarray(edges, dtype=np.int64).reshape(-1, 2)
     used = np.unique(edges)
-    size = float(np.linalg.norm(points[used].max(axis=0) - points[used].min(axis=0))) \
-        if used.size else 0.0
+    size = bounding_diagonal(points[used])
     limit = tol.merge * size if merge is None else float(merge)
     pairs = cKDTree(points).query_pairs(limit, output_type="ndarray") if len(points) > 1 \
         else np.zeros((0, 2), dtype=np.int64)

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..results import AuditResult
 from .render import PALETTE, _lines, _pyvista, support_glyphs
-from .scene import AMPLITUDE, phases, scene_of, view_direction
+from .scene import AMPLITUDE, moving_joints, phases, scene_of, view_direction
 
 __all__ = ["DeskViewer"]
 
@@ -87,9 +87,7 @@ class DeskViewer:
         colours = np.tile(_rgb(PALETTE["member"][0]), (n, 1)).astype(float)
         if self.mode:
             u = self.scene.modes[self.mode - 1]
-            size = np.linalg.norm(u, axis=1)
-            moving = size > 0.05 * size.max() if size.max() > 0 else np.zeros(len(u), bool)
-            hit = moving[self.scene.ends].any(axis=1)
+            hit = moving_joints(u)[self.scene.ends].any(axis=1)
             colours[hit] = _rgb(PALETTE["moving_member"][0])
         return colours
 

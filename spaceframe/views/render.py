@@ -24,7 +24,8 @@ import numpy as np
 
 from ..errors import SpaceframeError
 from ..results import AuditResult
-from .scene import AMPLITUDE, Scene, phases, scene_of, view_direction
+from .scene import (AMPLITUDE, Scene, carrying_members, moving_joints, phases, scene_of,
+                    view_direction)
 
 __all__ = ["mode_frames", "state_picture", "write_frames", "support_glyphs", "PALETTE", "SIZE"]
 
@@ -203,8 +204,7 @@ def _animate(stage: _Stage, scene: Scene, mode, motion, n, on_frame):
     pv, p, e = stage.pv, stage.plotter, stage.e
     moving = np.zeros(len(scene.coords), bool)
     if motion is not None:
-        size = np.linalg.norm(motion, axis=1)
-        moving = size > 0.05 * size.max()
+        moving = moving_joints(motion)
     touched = moving[scene.ends].any(axis=1)
     if motion is not None:
         stage.ghost()
@@ -264,7 +264,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
 
     scene = scene_of(result)
     t = np.asarray(result.self_stress_forces[state], float)
-    carrying = np.abs(t) > 1e-6
+    carrying = carrying_members(t)
     title = f"State of self-stress {state + 1} of {result.self_stress_states}: " \
             f"{result.frame.name or 'frame'}"
     caption = (f"{int(carrying.sum())} members carry forces with no load applied; colour says "

@@ -20,7 +20,8 @@ import numpy as np
 from .. import __version__
 from ..errors import SpaceframeError
 from ..results import AuditResult
-from .scene import AMPLITUDE, GLYPH, scene_of, view_direction
+from ..tolerances import DISPLAY
+from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of, view_direction
 from .text import verdict
 
 __all__ = ["render_report", "report_document", "asset"]
@@ -67,13 +68,9 @@ def report_document(result: AuditResult, bracing=None) -> dict:
     """
     s = scene_of(result)
     f = result.frame
-    moving = []
-    for u in s.modes:
-        size = np.linalg.norm(u, axis=1)
-        moving.append([bool(v) for v in size > 0.05 * size.max()] if size.max() > 0
-                      else [False] * len(size))
+    moving = [moving_joints(u).tolist() for u in s.modes]
     glyph_dirs = [(end - start) / np.linalg.norm(end - start) for start, end, _ in s.glyphs()]
-    r6 = lambda a: np.round(np.asarray(a, float), 6).tolist()  # noqa: E731
+    r6 = lambda a: np.round(np.asarray(a, float), DISPLAY.decimals).tolist()  # noqa: E731
     audit = result.to_dict()
     # the geometry below carries every movement and force as arrays: the audit's
     # per-item dictionaries would only double the file for a large frame
@@ -102,7 +99,8 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
             "moving": moving,
-            "forces": [np.round(np.asarray(t, float), 3).tolist() for t in result.self_stress_forces],
+            "forces": [np.round(np.asarray(t, float), DISPLAY.force_decimals).tolist()
+                       for t in result.self_stress_forces],
             "views": [r6(view_direction(s.coords, u)) for u in s.modes],
             "rest_view": r6(view_direction(s.coords)),
         },
@@ -114,10 +112,11 @@ def _state_summary(result: AuditResult, i: int, most: int = 4) -> dict:
     """A state of self-stress for the tables: how many members, the largest of each sign."""
     t = result.self_stress_forces[i]
     ids = result.frame.member_ids
-    carrying = np.abs(t) > 1e-6
-    tension = [k for k in np.argsort(-t, kind="stable") if t[k] > 1e-6]
-    compression = [k for k in np.argsort(t, kind="stable") if t[k] < -1e-6]
-    pick = lambda ks: [[ids[k], round(float(t[k]), 6)] for k in ks[:most]]  # noqa: E731
+    carrying = carrying_members(t)
+    tension = [k for k in np.argsort(-t, kind="stable") if carrying[k] and t[k] > 0]
+    compression = [k for k in np.argsort(t, kind="stable") if carrying[k] and t[k] < 0]
+    places = DISPLAY.decimals
+    pick = lambda ks: [[ids[k], round(float(t[k]), places)] for k in ks[:most]]  # noqa: E731
     return {"members": int(carrying.sum()), "tension": pick(tension),
             "more_tension": max(0, len(tension) - most), "compression": pick(compression),
             "more_compression": max(0, len(compression) - most)}

@@ -13,8 +13,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..results import AuditResult
+from ..tolerances import DISPLAY
 
-__all__ = ["Scene", "scene_of", "phases", "view_direction", "AMPLITUDE"]
+__all__ = ["Scene", "scene_of", "phases", "view_direction", "moving_joints", "carrying_members",
+           "AMPLITUDE"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
 AMPLITUDE = 0.12
@@ -70,7 +72,7 @@ class Scene:
         for j, d in self.supports:
             p = self.coords[j]
             side = np.dot(p - centre, d)
-            if abs(side) < 1e-9 * self.extent:
+            if abs(side) < DISPLAY.zero_coordinate * self.extent:
                 side = -1.0 if d[2] > 0.5 else 1.0  # vertical: below; otherwise outward
             sign = 1.0 if side > 0 else -1.0
             end = p + sign * GLYPH * self.extent * d
@@ -93,6 +95,23 @@ def scene_of(result: AuditResult) -> Scene:
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]
     return Scene(coords=coords, ends=np.asarray(f.ends, np.int64), extent=extent or 1.0,
                  modes=modes, supports=supports)
+
+
+def moving_joints(motion: np.ndarray) -> np.ndarray:
+    """Joints that move in ``motion`` ``(n, d)``, ``(n,) bool``.
+
+    ``|u_j| > moving * max |u|``, ``moving`` from :class:`~spaceframe.tolerances.Display`.
+    """
+    size = np.linalg.norm(motion, axis=1)
+    return size > DISPLAY.moving * size.max() if size.size else np.zeros(0, bool)
+
+
+def carrying_members(forces: np.ndarray) -> np.ndarray:
+    """Members that carry a state of self-stress ``forces`` ``(m,)``, ``(m,) bool``.
+
+    ``|t_e| > floor``, ``floor`` from :class:`~spaceframe.tolerances.Display`.
+    """
+    return np.abs(forces) > DISPLAY.floor
 
 
 def phases(n: int) -> np.ndarray:
