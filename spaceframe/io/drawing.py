@@ -394,8 +394,12 @@ def _segment_distance(p: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray
 
 
 def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
-                       unread: np.ndarray, unread_layers: np.ndarray) -> None:
+                       unread: np.ndarray, unread_layers: np.ndarray, *, what: str = "line",
+                       refuse: bool = True) -> None:
     """Refuse line ends that nearly meet a line, each with the advice that fits.
+
+    With ``refuse`` false the same message is a warning (IFC building models,
+    where an element may well stop short of its neighbour's axis).
 
     A dangling end (a joint with one member) is looked at against the other
     members and against the lines on layers that are not read; within
@@ -440,7 +444,7 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
             found.append(("merge", p, float(to_joint[q]),
                           f"joint {frame.joint_ids[q]} {_point(frame.coords[q])}", ""))
             continue
-        line = (f"line {frame.member_ids[k]} ({_point(a[k])} to {_point(b[k])})")
+        line = (f"{what} {frame.member_ids[k]} ({_point(a[k])} to {_point(b[k])})")
         ab = b[k] - a[k]
         t = float((p - a[k]) @ ab / (ab @ ab))
         kind = "split" if (not split and gap <= limit and 0 < t < 1) else "merge"
@@ -459,16 +463,19 @@ def _check_near_misses(frame: Frame, tol: Tolerances, limit: float, split: bool,
         advice.append(f"the lines are on different layers and {which} not read: add them to "
                       f"--layers (or [drawing] layers), or move the lines onto one layer")
     if "split" in kinds:
-        advice.append("an end lies on another line part-way (a T-junction) and splitting is "
-                      "off: leave out --no-split (or [drawing] split = false) so that the line "
-                      "is split there")
+        advice.append(f"an end lies on another {what} part-way (a T-junction) and splitting "
+                      f"is off: leave out --no-split (or [drawing] split = false) so that the "
+                      f"{what} is split there")
     if "merge" in kinds:
         worst = max(gap for k, _, gap, *_ in found if k == "merge")
-        advice.append(f"the gap is larger than the merge distance {limit:.3g}: extend each line "
-                      f"to meet the other, or give a merge distance of at least {worst:.3g} "
+        advice.append(f"the gap is larger than the merge distance {limit:.3g}: extend each "
+                      f"{what} to meet the other, or give a merge distance of at least {worst:.3g} "
                       f"(--merge, or [drawing] merge = ...)")
-    raise ModelError(f"{len(found)} line end(s) nearly but do not meet another line: "
-                     f"{listed}{more}; " + "; ".join(advice), path=frame.source)
+    message = (f"{len(found)} {what} end(s) nearly but do not meet another {what}: "
+               f"{listed}{more}; " + "; ".join(advice))
+    if refuse:
+        raise ModelError(message, path=frame.source)
+    warnings.warn(f"{where(frame.source)}{message}", SpaceframeWarning, stacklevel=4)
 
 
 def _warn_crossings(frame: Frame, tol: Tolerances) -> None:

@@ -20,8 +20,11 @@ Reading (:func:`read_ifc`) takes one of two kinds of model:
   ``IfcBeam`` and ``IfcColumn`` (its ``Axis`` representation, a polyline, or
   else the line an ``IfcExtrudedAreaSolid`` body is swept along) is a
   member; axis ends within the merge distance are one joint, and an end on
-  another axis's interior splits it (``split``).  There are no supports:
-  give them with selection rules, as for meshes.
+  another axis's interior splits it (``split``).  An axis end that stops
+  short of another axis or joint (within ``tol.near_miss * size``), as a beam
+  modelled to a column's face does, is named in a warning with the merge
+  distance that would join it.  There are no supports: give them with
+  selection rules, as for meshes.
 
 Placements (``IfcLocalPlacement`` chains) are applied.  Lengths are in the
 project's length unit: an ``IfcSIUnit`` metre with its prefix (none: m,
@@ -61,7 +64,7 @@ from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
-from .drawing import _split_frame, split_at_junctions
+from .drawing import _check_near_misses, _split_frame, split_at_junctions
 from .mesh import _point, frame_from_edges
 
 __all__ = ["read_ifc", "dump_ifc", "IFC_SUFFIXES"]
@@ -409,6 +412,8 @@ def _architectural(f, source, tol, merge, split, units, scale) -> Frame:
     if split:
         frame = _split_frame(frame, limit, tol, what="axis",
                              ids=lambda mid, q, n: mid if n == 1 else f"{mid}.{q + 1}")
+    _check_near_misses(frame, tol, limit, split, np.zeros((0, 2, 3)), np.zeros(0, dtype=object),
+                       what="axis", refuse=False)
     return frame
 
 

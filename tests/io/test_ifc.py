@@ -297,3 +297,22 @@ def test_member_end_at_no_connection_exits_2(tmp_path):
     assert res.exit_code == 2 and "at no IfcStructuralPointConnection" in res.stderr
     with pytest.raises(ModelError, match="--layers does not apply"):
         spaceframe.load(path, layers=["A"])
+
+
+def test_beam_stopping_short_of_a_column_is_named_and_merge_joins_it(tmp_path):
+    # a portal: two columns 4 m high, 6 m apart, and a beam modelled to the columns' faces,
+    # 0.05 m short of each column's axis (within the near-miss distance, 1 % of the 7.2 m
+    # diagonal).  As drawn the beam joins nothing; a merge distance of 0.06 joins it
+    f, _, body = _new_file(None)
+    _element(f, body, "IfcColumn", "C1", (0, 0, 0), (0, 0, 4), extruded=True)
+    _element(f, body, "IfcColumn", "C2", (6, 0, 0), (6, 0, 4), extruded=True)
+    _element(f, body, "IfcBeam", "B1", (0.05, 0, 4), (5.95, 0, 4), extruded=False)
+    path = tmp_path / "portal.ifc"
+    f.write(str(path))
+    # the beam's two ends and the two column tops: four loose ends, each 0.05 from a joint
+    with pytest.warns(spaceframe.SpaceframeWarning,
+                      match=r"4 axis end\(s\) nearly.*at least 0\.05"):
+        loose = spaceframe.load(path)
+    assert loose.n_joints == 6
+    joined = spaceframe.load(path, merge=0.06)
+    assert (joined.n_joints, joined.n_members) == (4, 3)
