@@ -1,20 +1,26 @@
 # Each target does its own set-up: a virtual environment in .venv with the
-# package installed (editable) and what the tests need.
+# package installed (editable) and what the target needs: the core for the demo,
+# every extra and the test tools for the tests and benchmarks.
 PYTHON ?= python3
 VENV   := .venv
 BIN    := $(VENV)/bin
+CORE   := $(VENV)/.core
 STAMP  := $(VENV)/.installed
 
 .PHONY: demo test bench clean
 
-$(STAMP): pyproject.toml
+$(CORE): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
 	$(BIN)/python -m pip install --quiet --upgrade pip
+	$(BIN)/python -m pip install --quiet -e .
+	touch $(CORE)
+
+$(STAMP): $(CORE)
 	$(BIN)/python -m pip install --quiet -e '.[test]'
 	touch $(STAMP)
 
 ## demo: audit the demo models (a held frame, then one with a sway mechanism)
-demo: $(STAMP)
+demo: $(CORE)
 	$(BIN)/spaceframe audit models/plant_platform.toml
 	$(BIN)/spaceframe audit models/canopy_sway.toml; test $$? -eq 1
 

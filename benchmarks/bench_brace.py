@@ -22,7 +22,8 @@ import numpy as np
 
 from spaceframe import Frame, audit
 from spaceframe.analysis.bracing import (braced_frame, find_candidates, greedy_basis,
-                                         reach_rows, _s_max)
+                                         reach_rows)
+from spaceframe.analysis.bracing.selection import _s_max
 from spaceframe.families import double_layer_grid
 
 TARGET = 10.0  # seconds, selection + re-audit, on the 2-core benchmark machine

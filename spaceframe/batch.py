@@ -52,7 +52,7 @@ Rows are in the order tasks complete, not the order of the variants.
 from __future__ import annotations
 
 import csv
-import difflib
+import dataclasses
 import io
 import json
 import os
@@ -62,11 +62,12 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 
-import numpy as np
-
+from . import edit
+from ._optional import require
 from .errors import ModelError, SpaceframeError, SpaceframeWarning
+from .io.output import check_output
 from .model import Frame
-from .suggest import closest
+from .suggest import closest, did_you_mean
 
 __all__ = ["Variant", "VariantSet", "Task", "COLUMNS", "BASE", "read_variants", "expand",
            "apply_variant", "audit_task", "error_row", "ResultsFile", "run_batch",
@@ -405,71 +406,52 @@ def apply_variant(frame: Frame, variant: Variant) -> Frame:
     def joint(jid, key):
         if jid not in jindex:
             raise fail(f"{key} names joint {jid!r}, which is not in {model}; correct the id"
-                       f"{_nearest(jid, jindex)}", jid)
+                       f"{did_you_mean(jid, jindex)}", jid)
         return jindex[jid]
 
     d = frame.dimension
-    coords = np.array(frame.coords)
     for jid, xyz in variant.move_joints:
         if len(xyz) != d:
             raise fail(f"move_joints gives joint {jid!r} {len(xyz)} coordinates; the model "
                        f"is {d}-dimensional, so give {d}", jid)
-        coords[joint(jid, "move_joints")] = xyz
+    moved = [joint(jid, "move_joints") for jid, _ in variant.move_joints]
+    changed = edit.move_joints(frame, moved, [xyz for _, xyz in variant.move_joints])
 
-    keep = np.ones(frame.n_members, dtype=bool)
+    removed = []
     for mid in variant.remove_members:
         if mid not in mindex:
             raise fail(f"remove_members names member {mid!r}, which is not in {model}; "
-                       f"correct the id{_nearest(mid, mindex)}", mid)
-        keep[mindex[mid]] = False
-    member_ids = [m for m, k in zip(frame.member_ids, keep) if k]
-    ends = [list(e) for e in frame.ends[keep].tolist()]
+                       f"correct the id{did_you_mean(mid, mindex)}", mid)
+        removed.append(mindex[mid])
     for mid, a, b in variant.add_members:
         if mid in mindex:
             raise fail(f"add_members: member id {mid!r} is already in {model}; give the new "
                        f"member another id", mid)
-        member_ids.append(mid)
-        ends.append([joint(a, "add_members"), joint(b, "add_members")])
-    added = len(variant.add_members)
+    # added before the removal, with the same result (added members come after the kept
+    # ones either way), so that their EA is the median of the model as given
+    changed = edit.add_members(changed, [mid for mid, _, _ in variant.add_members],
+                               [[joint(a, "add_members"), joint(b, "add_members")]
+                                for _, a, b in variant.add_members])
+    changed = edit.remove_members(changed, removed)
 
-    rj, rd = frame.restraint_joint, frame.restraint_dir
-    held = set(rj.tolist())
-    drop = set()
+    held = set(frame.restraint_joint.tolist())
+    freed = []
     for jid in variant.free_supports:
         j = joint(jid, "free_supports")
         if j not in held:
             raise fail(f"free_supports names joint {jid!r}, which has no support in {model}; "
                        f"name a supported joint", jid)
-        drop.add(j)
-    new_j, new_d = [], []
-    for jid, spec in variant.supports:
-        j = joint(jid, "supports")
-        drop.add(j)
-        rows = restraint_rows(spec, d, joint=jid, path=variant.source, line=variant.line)
-        new_j.extend([j] * len(rows))
-        new_d.extend(rows)
-    mask = np.array([j not in drop for j in rj.tolist()], dtype=bool)
-    rj = np.concatenate([rj[mask], np.array(new_j, dtype=np.int64)])
-    rd = np.concatenate([rd[mask], np.array(new_d, dtype=float).reshape(-1, d)])
-
-    member_tags = {k: tuple(v for v, kk in zip(labels, keep) if kk) + ("",) * added
-                   for k, labels in frame.member_tags.items()}
-    props = {k: np.concatenate([v[keep], np.full(added, float(np.median(v)))])
-             for k, v in frame.member_properties.items()}
-    changed = Frame(joint_ids=frame.joint_ids, coords=coords, member_ids=tuple(member_ids),
-                    ends=np.array(ends, dtype=np.int64).reshape(-1, 2), restraint_joint=rj,
-                    restraint_dir=rd, dimension=d, name=f"{frame.name} [{variant.name}]",
-                    units=frame.units, source=frame.source, joint_tags=frame.joint_tags,
-                    member_tags=member_tags, member_properties=props)
+        freed.append(j)
+    changed = edit.free_supports(changed, freed)
+    changed = edit.set_supports(changed, {
+        joint(jid, "supports"): restraint_rows(spec, d, joint=jid, path=variant.source,
+                                               line=variant.line)
+        for jid, spec in variant.supports})
+    changed = dataclasses.replace(changed, name=f"{frame.name} [{variant.name}]")
     try:
         return check_frame(changed)
     except ModelError as exc:
         raise fail(f"the changed frame is not valid: {exc}") from None
-
-
-def _nearest(word: str, choices) -> str:
-    close = difflib.get_close_matches(word, list(choices), n=1)
-    return f" (did you mean {close[0]!r}?)" if close else ""
 
 
 # ---------------------------------------------------------------- on a worker
@@ -544,28 +526,23 @@ class ResultsFile:
         cut off; a file with other columns is refused.
     force : bool
         Replace an existing file.
+    inputs : iterable of path-like, optional
+        The files the batch reads (models, the variants file): never written.
 
     Raises
     ------
-    SpaceframeError
-        For another suffix, an existing file without ``resume`` or ``force``,
-        or a file to resume that is not a results file of this format.
+    ModelError
+        For another suffix, a path that is an input or a folder, or a file to
+        resume that is not a results file of this format.
+    OutputExistsError
+        For an existing file without ``resume`` or ``force``.
     """
 
-    def __init__(self, path, *, resume: bool = False, force: bool = False):
-        self.path = os.fspath(path)
-        self.format = FORMATS.get(Path(self.path).suffix.lower())
-        if self.format is None:
-            raise ModelError("results are written as .csv or .jsonl (JSON lines); give the "
-                             "output one of those suffixes", path=self.path)
+    def __init__(self, path, *, resume: bool = False, force: bool = False, inputs=()):
+        self.path = self.check(path, resume=resume, force=force, inputs=inputs)
+        self.format = FORMATS[Path(self.path).suffix.lower()]
         self.done: set[tuple[str, str]] = set()
         exists = os.path.exists(self.path)
-        if exists and os.path.isdir(self.path):
-            raise ModelError("is a directory; give a file name for the results", path=self.path)
-        if exists and not (resume or force):
-            raise ModelError("already exists and is not overwritten; pass --resume to continue "
-                             "the batch it holds, --force to replace it, or choose another "
-                             "name", path=self.path)
         if exists and resume:
             self._read_done()
             self._file = open(self.path, "a", encoding="utf-8", newline="")
@@ -573,6 +550,15 @@ class ResultsFile:
             self._file = open(self.path, "w", encoding="utf-8", newline="")
             if self.format == "csv":
                 self._write(",".join(COLUMNS) + "\n")
+
+    @staticmethod
+    def check(path, *, resume: bool = False, force: bool = False, inputs=()) -> str:
+        """Check, before any work, that the results may go to ``path`` (see the class).
+
+        Returns the path as a string; raises as the class does.
+        """
+        return check_output(path, inputs=inputs, overwrite=resume or force, suffixes=FORMATS,
+                            what="a results file (CSV or JSON lines)")
 
     def _read_done(self) -> None:
         with open(self.path, "rb") as f:
@@ -638,7 +624,7 @@ class ResultsFile:
 
 def local_cluster(workers: int):
     """A local Dask cluster of ``workers`` single-threaded processes, on 127.0.0.1 only."""
-    from dask.distributed import LocalCluster
+    LocalCluster = require("dask.distributed").LocalCluster
 
     return LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                         host="127.0.0.1", dashboard_address=None)
@@ -671,7 +657,8 @@ def run_batch(tasks, results: ResultsFile, *, scheduler: str | None = None,
     SpaceframeError
         When the scheduler cannot be reached.
     """
-    from dask.distributed import Client, as_completed
+    distributed = require("dask.distributed")
+    Client, as_completed = distributed.Client, distributed.as_completed
 
     tasks = list(tasks)
     if not tasks:
@@ -685,8 +672,8 @@ def run_batch(tasks, results: ResultsFile, *, scheduler: str | None = None,
             try:
                 client = Client(scheduler, timeout="10s")
             except (OSError, TimeoutError, ValueError) as exc:
-                raise SpaceframeError(f"--scheduler {scheduler}: cannot reach a Dask scheduler "
-                                      f"there ({exc}); check the address "
+                raise SpaceframeError(f"cannot reach a Dask scheduler at {scheduler} "
+                                      f"({exc}); check the address "
                                       f"(tcp://HOST:PORT) and that the scheduler is "
                                       f"running") from None
         try:

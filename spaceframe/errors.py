@@ -9,8 +9,8 @@ without a traceback.
 
 from __future__ import annotations
 
-__all__ = ["SpaceframeError", "ModelError", "OutputExistsError", "InternalError",
-           "SpaceframeWarning", "where"]
+__all__ = ["SpaceframeError", "ModelError", "OutputExistsError", "MissingExtraError",
+           "InternalError", "SpaceframeWarning", "where"]
 
 
 def where(path: str | None = None, line: int | None = None) -> str:
@@ -69,6 +69,30 @@ class OutputExistsError(ModelError):
         how = f"pass {option}" if option else "allow replacing it"
         super().__init__(f"already exists and is not overwritten; choose another name, or {how}",
                          path=path)
+
+
+class MissingExtraError(SpaceframeError):
+    """An optional part of spaceframe is used but its libraries are not installed.
+
+    Raised on first use by :func:`spaceframe._optional.require`; the message
+    names the extra to install (``pip install 'spaceframe[pictures]'``).
+
+    Parameters
+    ----------
+    module : str
+        The module that could not be imported (the optional library, or one
+        it needs).
+    extra : str
+        The extra of the ``spaceframe`` package that installs it.
+    purpose : str
+        What needs it, as the start of a sentence ("pictures and animations").
+    """
+
+    def __init__(self, module: str, extra: str, purpose: str):
+        self.module, self.extra = module, extra
+        super().__init__(f"{purpose} need the optional package {module.split('.')[0]!r}, "
+                         f"which is not installed; install it with: "
+                         f"pip install 'spaceframe[{extra}]'")
 
 
 class InternalError(RuntimeError):

@@ -63,13 +63,13 @@ name in ``[ties]`` (purlin, ridge, ...), ``brace`` or ``post`` (feet:
 
 from __future__ import annotations
 
-import difflib
 import os
 import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 
+from . import edit
 from .errors import ModelError, SpaceframeWarning, where
 from .model import Frame
 from .selection import parse_selector, select
@@ -485,29 +485,41 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT,
     jrole0 = planar.joint_tags.get("role") or ("frame",) * n
     jtags = {"role": [r or "frame" for r in jrole0] * N,
              "frame": [str(k) for k in range(1, N + 1) for _ in range(n)], "bay": [""] * (N * n)}
+    jtags.update({k: tuple(v) * N for k, v in planar.joint_tags.items() if k not in jtags})
 
     def frame_joint(k: int, planar_index: int) -> int:
         return (k - 1) * n + planar_index
 
-    ends = [(planar.ends[None, :, :] + (np.arange(N) * n)[:, None, None]).reshape(-1, 2)]
+    ends = (planar.ends[None, :, :] + (np.arange(N) * n)[:, None, None]).reshape(-1, 2)
     mid = [f"F{k}.{mm}" for k in range(1, N + 1) for mm in planar.member_ids]
     mrole0 = planar.member_tags.get("role") or ("frame",) * m
     mtags = {"group": ["frame"] * (N * m), "role": [r or "frame" for r in mrole0] * N,
              "frame": [str(k) for k in range(1, N + 1) for _ in range(m)],
              "bay": [""] * (N * m)}
+    mtags.update({k: tuple(v) * N for k, v in planar.member_tags.items() if k not in mtags})
+    rj, rd = _supports_3d(planar, spec, tol, n)
+    frame = Frame(joint_ids=tuple(jid), coords=coords[0], member_ids=tuple(mid), ends=ends,
+                  restraint_joint=rj, restraint_dir=rd, dimension=3,
+                  name=spec.name or (f"{planar.name}, {N} frames" if planar.name else ""),
+                  units=planar.units, joint_tags=jtags, member_tags=mtags,
+                  member_properties={k: np.tile(v, N)
+                                     for k, v in planar.member_properties.items()})
+
+    # ties, braces and posts, added in one edit: ids, end joints and tags
+    new_ids, new_ends = [], []
+    new_tags = {"group": [], "role": [], "frame": [], "bay": []}
 
     def add_member(ident: str, a: int, b: int, group: str, role: str, frame: str, bay: str):
-        ends.append(np.array([[a, b]]))
-        mid.append(ident)
+        new_ids.append(ident)
+        new_ends.append((a, b))
         for key, value in (("group", group), ("role", role), ("frame", frame), ("bay", bay)):
-            mtags[key].append(value)
+            new_tags[key].append(value)
 
     def planar_index(jidx: str, section: str, key: str, nth: int = 1) -> int:
         if jidx not in index:
-            close = difflib.get_close_matches(jidx, list(index), n=1)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
             raise spec.error(f"{section} names planar joint {jidx!r}, which is not in the planar "
-                             f"frame{_from(planar)}{hint}; correct the id", section, key, nth,
+                             f"frame{_from(planar)}{did_you_mean(jidx, index)}; correct the id",
+                             section, key, nth,
                              item=jidx)
         return index[jidx]
 
@@ -539,6 +551,7 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT,
                                    frame_joint(k + 1, hi), "brace", "brace", "", str(k))
 
     feet: list[tuple[int, int]] = []
+    foot_ids, foot_tags = [], {"role": [], "frame": [], "bay": []}
     if spec.posts:
         for k in sorted(spec.posts["frames"]):
             for j in spec.posts["at"]:
@@ -547,27 +560,21 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT,
                 foot = np.array([[planar.coords[p, 0], 0.0, spec.posts["base"]]])
                 coords.append(foot + offsets[k - 1] * spec.direction)
                 feet.append((N * n + len(feet), k))
-                jid.append(f"F{k}.{j}.foot")
+                foot_ids.append(f"F{k}.{j}.foot")
                 for key, value in (("role", "foot"), ("frame", str(k)), ("bay", "")):
-                    jtags[key].append(value)
+                    foot_tags[key].append(value)
                 add_member(f"F{k}.{j}.post", feet[-1][0], top, "post", "post", str(k), "")
 
-    rj, rd = _supports_3d(planar, spec, tol, n)
+    frame = edit.add_joints(frame, foot_ids,
+                            np.concatenate(coords[1:]) if feet else np.zeros((0, 3)),
+                            tags=foot_tags)
+    frame = edit.add_members(frame, new_ids, np.array(new_ends, dtype=np.int64).reshape(-1, 2),
+                             tags=new_tags)
     if feet:
         foot_rows = restraint_rows(spec.posts["foot"], 3, joint="the posts' feet",
                                    path=spec.source, line=spec.posts["line"])
-        rj = np.concatenate([rj, np.repeat([f for f, _ in feet], len(foot_rows))])
-        rd = np.concatenate([rd, np.tile(foot_rows, (len(feet), 1))])
-
-    extra_tags = {k: tuple(v) * N for k, v in planar.member_tags.items()
-                  if k not in mtags}
-    for key, labels in extra_tags.items():
-        mtags[key] = list(labels) + [""] * (len(mid) - len(labels))
-    frame = Frame(joint_ids=tuple(jid), coords=np.concatenate(coords),
-                  member_ids=tuple(mid), ends=np.concatenate(ends), restraint_joint=rj,
-                  restraint_dir=rd, dimension=3,
-                  name=spec.name or (f"{planar.name}, {N} frames" if planar.name else ""),
-                  units=planar.units, joint_tags=jtags, member_tags=mtags)
+        frame = edit.add_restraints(frame, np.repeat([f for f, _ in feet], len(foot_rows)),
+                                    np.tile(foot_rows, (len(feet), 1)))
     from .validation import check_frame
     return check_frame(frame, tol=tol)
 

@@ -37,7 +37,6 @@ repeatable) and, for imported geometry, from a sidecar file beside the model,
 
 from __future__ import annotations
 
-import dataclasses
 import os
 import re
 import tomllib
@@ -47,6 +46,7 @@ from typing import Sequence
 
 import numpy as np
 
+from . import edit
 from .errors import ModelError
 from .model import Frame
 from .suggest import did_you_mean
@@ -249,10 +249,8 @@ def apply_rules(frame: Frame, rules: Sequence[str], *, tol: Tolerances = DEFAULT
             raise ModelError(f"support rule {rule!r}: {exc.reason}", path=path, line=line) from None
         for j in picked:
             held[int(j)] = rows
-    order = sorted(held)
-    rj = np.repeat(np.array(order, dtype=np.int64), [len(held[j]) for j in order])
-    rd = np.concatenate([held[j] for j in order]) if order else np.zeros((0, d))
-    return dataclasses.replace(frame, restraint_joint=rj, restraint_dir=rd)
+    unheld = edit.free_supports(frame, range(frame.n_joints))
+    return edit.set_supports(unheld, {j: held[j] for j in sorted(held)})
 
 
 def sidecar_path(model) -> Path:

@@ -12,11 +12,11 @@ so this module imports nothing from :mod:`spaceframe.io`.
 
 from __future__ import annotations
 
-import dataclasses
 import warnings
-from itertools import compress
+
 import numpy as np
 
+from .edit import remove_members
 from .errors import ModelError, SpaceframeWarning
 from .model import Frame
 from .tolerances import DEFAULT, Tolerances
@@ -214,11 +214,4 @@ def _drop_repeated_members(frame: Frame) -> Frame:
                                    "repeat is counted once: delete the repeats")
     warnings.warn(SpaceframeWarning(text, item=ids[dropped[0]], kind="member", marks=marks),
                   stacklevel=3)
-    keep = np.ones(m, dtype=bool)
-    keep[dropped] = False
-    return dataclasses.replace(frame, member_ids=tuple(compress(ids, keep)),
-                               ends=frame.ends[keep],
-                               member_tags={k: tuple(compress(v, keep))
-                                            for k, v in frame.member_tags.items()},
-                               member_properties={k: v[keep] for k, v in
-                                                  frame.member_properties.items()})
+    return remove_members(frame, dropped)

@@ -216,6 +216,39 @@ def test_demo_variants_file():
     assert len(variants) == 5 + 12  # base, four layouts, twelve bearings
 
 
+def test_variant_keeps_ea_tags_and_supports_field_by_field():
+    """Every change a variant can make, on a frame with tags and EA: the result written out by
+    hand (source: derived from the frame's own fields and spaceframe/edit.py's rule: an added
+    member has no tags and the median EA of the model as given, here median(1, 2, 3, 4, 5, 6)
+    x 1e5 = 3.5e5; supports of other joints keep their rows and their order)."""
+    from spaceframe.batch import Variant, apply_variant
+
+    from common.frames import assert_same_frame
+
+    joints, members, supports = SQUARE
+    ids, mids = list(joints), list(members)
+    ea = [1e5, 2e5, 3e5, 4e5, 5e5, 6e5]
+    role = ["chord", "post", "chord", "post", "brace", "brace"]
+    frame = Frame.from_arrays([joints[j] for j in ids],
+                              [[ids.index(a), ids.index(b)] for a, b in members.values()],
+                              joint_ids=ids, member_ids=mids, name="square",
+                              supports={0: "pin", 1: "y", 3: "x"},
+                              joint_tags={"level": ["0", "0", "1", "1"]},
+                              member_tags={"role": role},
+                              member_properties={"EA": ea})
+    v = Variant("all", remove_members=("BD",), add_members=(("X", "B", "D"),),
+                free_supports=("D",), supports=(("B", "xy"),), move_joints=(("C", (3.0, 3.5)),))
+    got = apply_variant(frame, v)
+    want = Frame(joint_ids=tuple(ids), coords=[[0, 0], [3, 0], [3, 3.5], [0, 3]],
+                 member_ids=("AB", "BC", "CD", "DA", "AC", "X"),
+                 ends=[[0, 1], [1, 2], [2, 3], [3, 0], [0, 2], [1, 3]],
+                 restraint_joint=[0, 0, 1, 1], restraint_dir=[[1, 0], [0, 1], [1, 0], [0, 1]],
+                 dimension=2, name="square [all]", joint_tags={"level": ("0", "0", "1", "1")},
+                 member_tags={"role": tuple(role[:5]) + ("",)},
+                 member_properties={"EA": ea[:5] + [3.5e5]})
+    assert_same_frame(got, want)
+
+
 @pytest.mark.filterwarnings("ignore:Port .* is already in use")
 def test_existing_scheduler_and_json_lines(tmp_path):
     """--scheduler uses a running scheduler (here one on 127.0.0.1 in this process); a .jsonl

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import SpaceframeError
+from ..errors import InternalError
 from ..model import Frame
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
@@ -65,8 +65,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
 
     Raises
     ------
-    SpaceframeError
-        When the engine cannot reach a consistent decision.
+    InternalError
+        When the engine breaks down or cannot reach a consistent decision
+        (not the input's fault); its ``partial`` holds the counts known by
+        then (joints, members, restraints, free coordinates, the Maxwell
+        number, and the rank and null-space sizes once decided).
 
     Examples
     --------
@@ -96,11 +99,20 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     d = frame.dimension
     dofs = free_dofs(frame, tol=tol)
     C = compatibility_matrix(frame, dofs)
-    decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
-                           method=method, tol=tol)
+    known = {"joints": frame.n_joints, "members": frame.n_members,
+             "restraints": frame.n_restraints, "free_coordinates": C.shape[1],
+             "maxwell": frame.n_members + frame.n_restraints - d * frame.n_joints}
+    try:
+        decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
+                               method=method, tol=tol)
+    except InternalError as exc:
+        exc.partial = {**known, **exc.partial}
+        raise
     k = decision.mechanisms.shape[1]
+    known.update(rank=decision.rank, mechanisms=k,
+                 self_stress_states=decision.self_stress_count, engine=decision.method)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    _check_rigid_inside(decision.mechanisms, rigid, tol)
+    _check_rigid_inside(decision.mechanisms, rigid, tol, known)
     internal, rigid = local_basis(decision.mechanisms, rigid, dofs.joint_of(), tol=tol)
     rigid = order_rigid(rigid, dofs, frame.coords, tol=tol)
 
@@ -146,7 +158,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     mechanisms = k
     s = decision.self_stress_count
     if mechanisms - s != d * joints - restraints - members:  # pragma: no cover - by construction
-        raise SpaceframeError("internal error: the extended Maxwell rule does not hold")
+        raise InternalError("the extended Maxwell rule does not hold between the counts",
+                            stage="counts", partial=known)
 
     gap, warnings = _gap(decision, tol)
     if q < s and self_stress_cap:
@@ -167,14 +180,16 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         warnings=tuple(warnings))
 
 
-def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances) -> None:
+def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances,
+                        known: dict) -> None:
     """The permitted rigid-body motions must lie in the mechanism space found."""
     k, r = mech.shape[1], rigid.shape[1]
     if r and (r > k or np.linalg.norm(rigid - mech @ (mech.T @ rigid))
               > tol.rigid_inside * np.sqrt(r)):
-        raise SpaceframeError("internal error: a rigid-body motion permitted by the supports was "
-                              "not found among the mechanisms; rerun with method='dense' and "
-                              "report the model")
+        raise InternalError("a rigid-body motion permitted by the supports was not found among "
+                            "the mechanisms; the dense engine (method='dense') may do for a "
+                            "small frame", stage="mechanism basis",
+                            partial={**known, "rigid_body_motions": r})
 
 
 def _gap(decision, tol: Tolerances):

@@ -44,7 +44,7 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from ..errors import SpaceframeError
+from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["RankDecision", "decide_rank", "canonical_basis"]
@@ -133,6 +133,14 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     Returns
     -------
     RankDecision
+
+    Raises
+    ------
+    SpaceframeError
+        For an unknown ``method``.
+    InternalError
+        When the sparse factorisation breaks down (stage ``"factorisation"``;
+        ``partial`` holds the number of free coordinates and of shifts tried).
 
     Notes
     -----
@@ -269,9 +277,11 @@ def _shifted_ldl(Kp, tau):
                 and np.array_equal(lu.perm_c, np.arange(n)):
             return lu, tau
         tau *= 1.37
-    raise SpaceframeError("the sparse engine could not factorise the stiffness matrix with "
-                          "diagonal pivots; rerun with method='dense' (small frames) and report "
-                          "the model")
+    raise InternalError(f"the sparse engine could not factorise the shifted stiffness matrix "
+                        f"K - tau I ({n} free coordinates) with diagonal pivots, after "
+                        f"{attempt + 1} shifts; the dense engine (method='dense') may do for "
+                        f"a small frame", stage="factorisation",
+                        partial={"free_coordinates": n, "shifts_tried": attempt + 1})
 
 
 def _subspace(Kp, lu, k, n, iterations: int = 3):

@@ -6,31 +6,16 @@ from pathlib import Path
 
 import click
 
-from .common import debug_option, force_option, run_guarded, supports_option
+from .common import (debug_option, force_option, model_argument, quiet_option, run_guarded,
+                     supports_option)
 
-__all__ = ["animate_command", "check_output"]
+__all__ = ["animate_command"]
 
 SUFFIXES = (".gif", ".mp4", ".png")
 
 
-def check_output(out: str, model: str, force: bool, suffixes) -> Path:
-    """The output path, refused when it is the input, has a wrong suffix or exists."""
-    from ..errors import SpaceframeError
-
-    path = Path(out)
-    if path.suffix.lower() not in suffixes:
-        raise SpaceframeError(f"{out}: the output must end in {', '.join(suffixes)}")
-    if Path(model).exists() and path.exists() and path.resolve() == Path(model).resolve():
-        raise SpaceframeError(f"{out} is the input model: choose another output file")
-    if path.exists() and not force:
-        raise SpaceframeError(f"{out} exists: choose another name, or give --force to replace it")
-    if not path.parent.exists():
-        raise SpaceframeError(f"{out}: the folder {path.parent} does not exist")
-    return path
-
-
 @click.command("animate")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("-o", "--output", "out", required=True, metavar="OUT",
               help="Picture to write: .gif (looping), .mp4, or .png (a strip of poses; one row "
                    "per mode).")
@@ -48,7 +33,7 @@ def check_output(out: str, model: str, force: bool, suffixes) -> Path:
               help="Poses per second of a .gif or .mp4.")
 @click.option("--size", default="800x480", show_default=True, metavar="WxH",
               help="Picture size in pixels.")
-@click.option("--quiet", is_flag=True, help="No progress display.")
+@quiet_option
 @supports_option
 @force_option
 @debug_option
@@ -63,6 +48,7 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
     def job():
         from .. import audit, load
         from ..errors import SpaceframeError
+        from ..io.output import check_output
         from ..selection import supports_for
         from ..views.progress import progress
         from ..views.render import mode_frames, state_picture, write_frames
@@ -70,7 +56,8 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
         if sum(x is not None and x is not False for x in (mode, state, every or None)) > 1:
             raise SpaceframeError("give one of --mode K, --all and --state K")
         wh = _size(size)
-        path = check_output(out, model, force, SUFFIXES)
+        path = Path(check_output(out, inputs=(model,), overwrite=force, suffixes=SUFFIXES,
+                                 what="a picture"))
         frame = supports_for(load(model), model, supports)
         result = audit(frame)
         if state is not None:

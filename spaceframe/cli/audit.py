@@ -7,7 +7,9 @@ import sys
 
 import click
 
-from .common import debug_option, reading_options, run_guarded, supports_option
+from .common import (debug_option, json_option, model_argument, reading_options,
+                     run_guarded,
+                     supports_option)
 
 __all__ = ["audit_command"]
 
@@ -16,9 +18,8 @@ EXIT_MECHANISM = 1
 
 
 @click.command("audit")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
-@click.option("--json", "as_json", is_flag=True,
-              help="Print one JSON document on stdout (warnings go to stderr).")
+@model_argument
+@json_option
 @click.option("--self-stress", "self_stress", default="16", show_default=True, metavar="N|all",
               help="How many states of self-stress to compute and list (their number is "
                    "always exact).")

@@ -7,7 +7,7 @@ import sys
 
 import click
 
-from .common import debug_option, force_option, run_guarded
+from .common import debug_option, force_option, quiet_option, run_guarded
 
 __all__ = ["batch_command"]
 
@@ -62,7 +62,7 @@ def _tasks(models, variants_path):
               help="Worker processes of the local cluster (default: one per CPU).")
 @click.option("--resume", is_flag=True,
               help="Continue an existing results file: skip every (model, variant) in it.")
-@click.option("--quiet", is_flag=True, help="No progress bar and no summary line.")
+@quiet_option
 @force_option
 @debug_option
 def batch_command(models, output, variants_path, scheduler, workers, resume, quiet, force,
@@ -74,6 +74,7 @@ def batch_command(models, output, variants_path, scheduler, workers, resume, qui
     Exit status: 0 when every row was written (whatever the verdicts), 2 for bad arguments.
     """
     def job():
+        from .._optional import require
         from ..batch import ResultsFile, run_batch
         from ..errors import ModelError, SpaceframeError
         from ..views.progress import progress
@@ -95,12 +96,11 @@ def batch_command(models, output, variants_path, scheduler, workers, resume, qui
             if not os.path.isfile(model):
                 raise ModelError("no such model file; check the path and its spelling",
                                  path=model)
-        for source in (*models, *([variants_path] if variants_path else [])):
-            if os.path.exists(output) and os.path.samefile(source, output):
-                raise ModelError("is an input of this command and is never overwritten; "
-                                 "write the results to another file", path=output)
+        require("dask.distributed")  # a missing extra is reported before any file is written
+        inputs = (*models, variants_path)
+        ResultsFile.check(output, resume=resume, force=force, inputs=inputs)
         tasks = _tasks(models, variants_path)
-        with ResultsFile(output, resume=resume, force=force) as results:
+        with ResultsFile(output, resume=resume, force=force, inputs=inputs) as results:
             todo = [t for t in tasks if t.key not in results.done]
             skipped = len(tasks) - len(todo)
             counts = {"held": 0, "mechanisms": 0, "errors": 0}
@@ -120,5 +120,6 @@ def batch_command(models, output, variants_path, scheduler, workers, resume, qui
                        + (f"; {skipped} already there, skipped" if skipped else ""), err=True)
         return written
 
-    run_guarded(job, debug=debug)
+    run_guarded(job, debug=debug,
+                replace_hint="give --resume to continue it, or --force to replace it")
     sys.exit(EXIT_WRITTEN)

@@ -6,12 +6,12 @@ from __future__ import annotations
 import csv
 import io
 import json
-import os
 import sys
 
 import click
 
-from .common import debug_option, force_option, run_guarded, supports_option
+from .common import (debug_option, force_option, json_option, model_argument, run_guarded,
+                     supports_option)
 
 __all__ = ["brace_command"]
 
@@ -48,20 +48,7 @@ def _joint_indices(frame, ids, option: str):
     return out
 
 
-def _check_output(path: str, force: bool, inputs) -> None:
-    from ..errors import ModelError
-
-    for source in inputs:
-        if source and os.path.exists(path) and os.path.samefile(source, path):
-            raise ModelError("is an input of this command and is never overwritten; write to "
-                             "another file", path=path)
-    if os.path.exists(path) and not force:
-        raise ModelError("already exists and is not overwritten; choose another name, or pass "
-                         "--force to replace it", path=path)
-
-
-def _csv_text(result) -> str:
-    doc = result.to_dict()
+def _csv_text(doc: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["item", "id", "start", "end", "joint", "direction",
@@ -77,9 +64,8 @@ def _csv_text(result) -> str:
 
 
 @click.command("brace")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
-@click.option("--json", "as_json", is_flag=True,
-              help="Print one JSON document on stdout (warnings go to stderr).")
+@model_argument
+@json_option
 @click.option("--csv", "csv_path", type=click.Path(path_type=str), metavar="FILE",
               help="Write the members and restraints to add as CSV.")
 @click.option("--write", "write_path", type=click.Path(path_type=str), metavar="OUT.toml",
@@ -133,16 +119,18 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
     def job():
         from .. import load
         from ..analysis.bracing import recommend_bracing
-        from ..io import save
+        from ..io import WRITERS, save
         from ..io.candidates import read_candidate_list
+        from ..io.output import check_output, write_text
         from ..selection import supports_for
+        from ..views.bracing_document import bracing_document
         from ..views.bracing_text import render_bracing
 
         frame = supports_for(load(model), model, supports)
         inputs = tuple(p for p in (model, candidates_path) if p)
-        for path in (csv_path, write_path):
+        for path, suffixes in ((csv_path, None), (write_path, WRITERS)):
             if path:
-                _check_output(path, force, inputs)
+                check_output(path, inputs=inputs, overwrite=force, suffixes=suffixes)
         listed = read_candidate_list(candidates_path, frame)[:2] if candidates_path else None
         boxes = [_box(b, frame.dimension) for b in exclude_box]
         panels = [set(_joint_indices(frame, [j.strip() for j in p.split(",") if j.strip()],
@@ -155,11 +143,11 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
             alternatives=alternatives)
         if write_path:
             save(result.braced, write_path, overwrite=force, inputs=inputs)
+        doc = bracing_document(result) if (csv_path or as_json) else None
         if csv_path:
-            with open(csv_path, "w", encoding="utf-8", newline="") as fh:
-                fh.write(_csv_text(result))
+            write_text(csv_path, _csv_text(doc), overwrite=force)
         if as_json:
-            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+            click.echo(json.dumps(doc, indent=1, allow_nan=False))
         else:
             click.echo(render_bracing(result), nl=False)
             for path, what in ((write_path, "braced model"), (csv_path, "list")):

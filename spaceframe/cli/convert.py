@@ -4,14 +4,15 @@ from __future__ import annotations
 
 import click
 
-from .common import (debug_option, force_option, reading_options, run_guarded,
+from .common import (debug_option, force_option, model_argument, reading_options,
+                     run_guarded,
                      supports_option)
 
 __all__ = ["convert_command"]
 
 
 @click.command("convert")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("-o", "--output", required=True, type=click.Path(path_type=str),
               help="The model file to write (.toml, .json, .npz or .ifc).")
 @supports_option
@@ -25,9 +26,12 @@ def convert_command(model, output, supports, reading, force, debug):
     """
     def job():
         from .. import load
-        from ..io import save
+        from ..io import WRITERS, save
+        from ..io.output import check_output
         from ..selection import supports_for
 
+        check_output(output, inputs=(model,), overwrite=force, suffixes=WRITERS,
+                     what="a model")
         frame = supports_for(load(model, **reading), model, supports)
         save(frame, output, overwrite=force, inputs=(model,))
         click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "

@@ -4,14 +4,14 @@ from __future__ import annotations
 
 import click
 
-from .common import debug_option, force_option, reading_options, run_guarded
+from .common import MODEL_PATH, debug_option, force_option, reading_options, run_guarded
 
 __all__ = ["extrude_command"]
 
 
 @click.command("extrude")
-@click.argument("planar", type=click.Path(dir_okay=True, path_type=str))
-@click.argument("spec", type=click.Path(dir_okay=True, path_type=str))
+@click.argument("planar", type=MODEL_PATH)
+@click.argument("spec", type=MODEL_PATH)
 @click.option("-o", "--output", required=True, type=click.Path(path_type=str),
               help="The 3D model file to write (.toml or .json).")
 @reading_options
@@ -26,8 +26,11 @@ def extrude_command(planar, spec, output, reading, force, debug):
     """
     def job():
         from ..extrude import extrude
-        from ..io import save
+        from ..io import WRITERS, save
+        from ..io.output import check_output
 
+        check_output(output, inputs=(planar, spec), overwrite=force, suffixes=WRITERS,
+                     what="a model")
         frame = extrude(planar, spec, reading=reading)
         save(frame, output, overwrite=force, inputs=(planar, spec))
         click.echo(f"wrote {output}: {frame.n_joints} joints, {frame.n_members} members, "

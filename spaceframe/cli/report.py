@@ -4,14 +4,13 @@ from __future__ import annotations
 
 import click
 
-from .animate import check_output
-from .common import debug_option, force_option, run_guarded, supports_option
+from .common import debug_option, force_option, model_argument, run_guarded, supports_option
 
 __all__ = ["report_command"]
 
 
 @click.command("report")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("-o", "--output", "out", required=True, metavar="OUT.html",
               help="The HTML file to write.")
 @click.option("--bracing/--no-bracing", default=True, show_default=True,
@@ -31,17 +30,19 @@ def report_command(model, out, bracing, supports, force, debug):
     """
     def job():
         from .. import audit, load
+        from ..io.output import check_output, write_text
         from ..selection import supports_for
         from ..views.report import render_report
 
-        path = check_output(out, model, force, (".html", ".htm"))
+        path = check_output(out, inputs=(model,), overwrite=force, suffixes=(".html", ".htm"),
+                            what="a report")
         frame = supports_for(load(model), model, supports)
         result = audit(frame)
         proposal = None
         if bracing and not result.stable:
             from ..analysis.bracing import recommend_bracing
             proposal = recommend_bracing(frame)
-        path.write_text(render_report(result, proposal), encoding="utf-8")
+        write_text(path, render_report(result, proposal), overwrite=force)
         click.echo(f"spaceframe: wrote {path}", err=True)
 
     run_guarded(job, debug=debug)

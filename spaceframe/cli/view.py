@@ -6,13 +6,13 @@ import os
 
 import click
 
-from .common import debug_option, run_guarded, supports_option
+from .common import debug_option, model_argument, run_guarded, supports_option
 
 __all__ = ["view_command"]
 
 
 @click.command("view")
-@click.argument("model", type=click.Path(dir_okay=True, path_type=str))
+@model_argument
 @click.option("--bracing/--no-bracing", default=True, show_default=True,
               help="For a frame with mechanisms, offer the bracing proposal as a switch.")
 @supports_option

@@ -51,6 +51,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
@@ -249,11 +250,9 @@ def _split_frame(frame: Frame, limit: float, tol: Tolerances, *, what: str = "li
 
 def _lines(source: str, suffix: str, layers) -> _Lines:
     """Every straight segment of the drawing, in drawing order, with its layer and the units."""
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading drawings needs the trimesh package: pip install trimesh",
-                         path=source) from None
+    trimesh = require("trimesh")
+    for helper in ("svg.path", "lxml.etree") if suffix == ".svg" else ():
+        require(helper)  # trimesh's SVG loader imports them when it runs
     found, how, scale = None, "", 1.0
     try:
         if suffix == ".svg":
@@ -279,9 +278,6 @@ def _lines(source: str, suffix: str, layers) -> _Lines:
                               f"(default m)", SpaceframeWarning, stacklevel=4)
     except ModelError:
         raise
-    except ImportError as exc:
-        raise ModelError(f"reading {suffix} drawings needs the package {exc.name}: pip install "
-                         f"{'svg.path' if exc.name == 'svg' else exc.name}", path=source) from None
     except Exception as exc:         # the loaders' own errors are many and unrelated
         raise ModelError(f"cannot be read as a {suffix[1:].upper()} drawing ({type(exc).__name__}:"
                          f" {exc}); check the file", path=source) from None

@@ -60,6 +60,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
@@ -71,7 +72,6 @@ __all__ = ["read_ifc", "dump_ifc", "IFC_SUFFIXES"]
 
 #: Suffixes read by :func:`read_ifc` and written by :func:`dump_ifc`.
 IFC_SUFFIXES = (".ifc",)
-_EXTRA = "pip install 'spaceframe[ifc]'"
 _TAGS = "SpaceframeTags"
 _MODEL = "SpaceframeModel"
 _ELEMENTS = ("IfcMember", "IfcBeam", "IfcColumn")
@@ -84,16 +84,15 @@ _METRES = {"m": 1.0, "cm": 0.01, "mm": 0.001, "ft": 0.3048, "in": 0.0254}
 
 
 def _ifcopenshell(source: str | None = None):
-    """The ifcopenshell module, or a clear message naming the extra that installs it."""
-    try:
-        import ifcopenshell
-        import ifcopenshell.util.element  # noqa: F401  (the helpers used below)
-        import ifcopenshell.util.placement  # noqa: F401
-        import ifcopenshell.util.unit  # noqa: F401
-    except ImportError:
-        raise ModelError(f"reading and writing IFC needs the optional extra ifc (the "
-                         f"ifcopenshell package): {_EXTRA}", path=source) from None
-    return ifcopenshell
+    """ifcopenshell and the helpers used here, through :func:`spaceframe._optional.require`.
+
+    A missing one is a :class:`~spaceframe.errors.MissingExtraError` naming the
+    extra ``ifc``.
+    """
+    for helper in ("ifcopenshell.util.element", "ifcopenshell.util.placement",
+                   "ifcopenshell.util.unit", "ifcopenshell.guid"):
+        require(helper)
+    return require("ifcopenshell")
 
 
 # ------------------------------------------------------------------ reading

@@ -31,6 +31,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
 from ..model import UNITS, Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
@@ -42,14 +43,6 @@ __all__ = ["read_mesh", "frame_from_edges", "file_units", "MESH_SUFFIXES"]
 MESH_SUFFIXES = (".stl", ".obj", ".ply", ".off", ".glb", ".gltf")
 #: Formats whose unit of length is fixed by their specification.
 _FIXED_UNITS = {".glb": "m", ".gltf": "m"}
-
-
-def _trimesh():
-    try:
-        import trimesh
-    except ImportError:
-        raise ModelError("reading meshes needs the trimesh package: pip install trimesh") from None
-    return trimesh
 
 
 def file_units(found: str | None, given: str | None, source: str, *, how: str = "") -> str:
@@ -285,7 +278,7 @@ def _warn_duplicate_faces(faces, points: np.ndarray, source: str) -> None:
 
 def _loaded_polygons(source: str, file_type: str) -> tuple[np.ndarray, list]:
     """Vertices and polygons as trimesh's loader gives them, scene transforms applied."""
-    trimesh = _trimesh()
+    trimesh = require("trimesh")
     if file_type in ("glb", "gltf"):
         try:
             scene = trimesh.load(source, process=False, force="scene")

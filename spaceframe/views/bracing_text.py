@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from ..analysis.bracing import BRACING_CAUTION
 from ..results import CAUTION
+from .bracing_document import bracing_document
 from .text import is_imported, joint_label, verdict
 
 __all__ = ["render_bracing"]
@@ -22,7 +23,7 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     max_rows : int
         Rows of each table shown (the JSON has all).
     """
-    f, doc = r.frame, r.to_dict()
+    f, doc = r.frame, bracing_document(r)
     units = f.units
     name = (lambda j: joint_label(f, j)) if is_imported(f) else str   # where, for imports
     lines = [f"Bracing recommendation: {f.name or '(unnamed frame)'}"
@@ -75,13 +76,14 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
         lines.append(f"Note: {note}")
     lines.append("")
     lines.append("After re-audit of the braced frame: " + verdict(r.after))
-    if r.remaining:
+    remaining = doc["remaining"]
+    if remaining:
         lines.append("")
-        lines.append(f"Left ({len(r.remaining)}), and what would remove them:")
-        for h in r.remaining[:max_rows]:
+        lines.append(f"Left ({len(remaining)}), and what would remove them:")
+        for h in remaining[:max_rows]:
             lines.append(f"  - {h}")
-        if len(r.remaining) > max_rows:
-            lines.append(f"  ... and {len(r.remaining) - max_rows} more (see --json)")
+        if len(remaining) > max_rows:
+            lines.append(f"  ... and {len(remaining) - max_rows} more (see --json)")
     lines.append("")
     lines.append("Caution: " + CAUTION + " " + BRACING_CAUTION)
     return "\n".join(lines) + "\n"

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .._optional import require
 from ..results import AuditResult
 from .render import PALETTE, _lines, _pyvista, support_glyphs
 from .scene import AMPLITUDE, moving_joints, phases, scene_of, view_direction
@@ -44,7 +45,7 @@ class DeskViewer:
             pv = _pyvista()
         else:
             os.environ.pop("VTK_DEFAULT_OPENGL_WINDOW", None)
-            import pyvista as pv
+            pv = require("pyvista")
         self.pv, self.result, self.bracing = pv, result, bracing
         self.scene = scene_of(result)
         self.mode, self.state, self.playing = 0, 0, False

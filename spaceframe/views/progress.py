@@ -9,6 +9,9 @@ from __future__ import annotations
 import sys
 from contextlib import contextmanager
 
+from .._optional import require
+from ..errors import MissingExtraError
+
 __all__ = ["progress"]
 
 
@@ -33,14 +36,12 @@ def progress(total: int, label: str, *, quiet: bool = False, stream=None):
         yield lambda: None
         return
     try:
-        from rich.console import Console
-        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, \
-            TimeRemainingColumn
-    except ImportError:  # the display is a courtesy; the work goes on without it
+        console, bars = require("rich.console"), require("rich.progress")
+    except MissingExtraError:  # the display is a courtesy; the work goes on without it
         yield lambda: None
         return
-    columns = (TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(),
-               TimeRemainingColumn())
-    with Progress(*columns, console=Console(file=stream), transient=True) as bar:
+    columns = (bars.TextColumn("{task.description}"), bars.BarColumn(),
+               bars.MofNCompleteColumn(), bars.TimeRemainingColumn())
+    with bars.Progress(*columns, console=console.Console(file=stream), transient=True) as bar:
         task = bar.add_task(label, total=total)
         yield lambda: bar.advance(task)

@@ -22,6 +22,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._optional import require
 from ..errors import SpaceframeError
 from ..results import AuditResult
 from .scene import (AMPLITUDE, Scene, carrying_members, moving_joints, phases, scene_of,
@@ -58,10 +59,7 @@ def _pyvista():
     if not os.environ.get("DISPLAY") and not os.environ.get("WAYLAND_DISPLAY"):
         # no window system: EGL renders straight into memory (Mesa's software driver will do)
         os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
-    try:
-        import pyvista
-    except ImportError:
-        raise SpaceframeError("pictures need pyvista (and VTK): pip install pyvista") from None
+    pyvista = require("pyvista")
     pyvista.OFF_SCREEN = True
     return pyvista
 
@@ -260,7 +258,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         raise SpaceframeError(
             f"state of self-stress {state + 1} does not exist: {q} computed"
             + (f" of {result.self_stress_states}" if q < result.self_stress_states else ""))
-    from matplotlib.colors import LinearSegmentedColormap
+    LinearSegmentedColormap = require("matplotlib.colors").LinearSegmentedColormap
 
     scene = scene_of(result)
     t = np.asarray(result.self_stress_forces[state], float)
@@ -310,21 +308,14 @@ def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float =
     """
     path = Path(path)
     suffix = path.suffix.lower()
-    try:
-        import imageio.v3 as iio
-    except ImportError:
-        raise SpaceframeError("writing pictures needs imageio: pip install imageio") from None
+    iio = require("imageio.v3")
     frames = [f for row in rows for f in row]
     if suffix == ".gif":
         # duration per picture in milliseconds; loop=0 repeats for ever
         iio.imwrite(path, np.stack(frames), extension=".gif", duration=1000.0 / fps, loop=0)
     elif suffix == ".mp4":
-        try:
-            import imageio_ffmpeg  # noqa: F401  (ships its own ffmpeg binary in the wheel)
-        except ImportError:
-            raise SpaceframeError("MP4 needs imageio-ffmpeg: pip install imageio-ffmpeg "
-                                  "(or write a .gif)") from None
-        import imageio.v2 as iio2
+        require("imageio_ffmpeg")  # ships its own ffmpeg binary in the wheel
+        iio2 = require("imageio.v2")
         with iio2.get_writer(path, fps=fps, codec="libx264", quality=7,
                              macro_block_size=16, format="FFMPEG") as w:
             for f in frames:
@@ -355,7 +346,8 @@ def _compose(view: np.ndarray, size, title: str, caption: str,
     ``scale`` (a colour map on [-1, 1]) adds a force scale at the top of the
     view: a bar from -1 (compression) to +1 (tension), labelled in words.
     """
-    from PIL import Image, ImageDraw, ImageFont
+    Image, ImageDraw, ImageFont = (require(f"PIL.{m}") for m in ("Image", "ImageDraw",
+                                                                   "ImageFont"))
 
     w, h = size
     img = Image.new("RGB", (w, h), PALETTE["background"][0])
@@ -387,7 +379,7 @@ def _compose(view: np.ndarray, size, title: str, caption: str,
 
 def _legend_layout(legend, w: int) -> list[tuple[float, int]]:
     """Where each legend entry starts: ``(x, row)``, filling rows of width ``w``."""
-    from PIL import ImageFont
+    ImageFont = require("PIL.ImageFont")
 
     small = ImageFont.load_default(size=12)
     out, x, row = [], 10.0, 0

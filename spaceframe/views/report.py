@@ -124,7 +124,9 @@ def _state_summary(result: AuditResult, i: int, most: int = 4) -> dict:
 
 def _bracing_document(b) -> dict:
     """What the page shows of a bracing proposal: members, restraints, the audit after."""
-    doc = b.to_dict()
+    from .bracing_document import bracing_document
+
+    doc = bracing_document(b)
     c = b.candidates
     for entry, i in zip(doc["added"], b.members_added):
         entry["joint_indices"] = [int(j) for j in c.ends[i]]

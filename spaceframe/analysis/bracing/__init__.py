@@ -1,0 +1,36 @@
+"""Bracing recommendations: the fewest, shortest members and restraints that remove every mechanism.
+
+The package has one module per step:
+
+- :mod:`.candidates`: what could be added.  One generator function per
+  origin of candidates (planar panels, wall panels on the ground, ties
+  between frames, tie panels, a user's list, pairs within a distance,
+  restraint directions), registered in :data:`GENERATORS`; the candidates
+  are records (:class:`MemberCandidate`, :class:`RestraintCandidate`) and,
+  gathered, the columns of a :class:`CandidateSet`.
+- :mod:`.selection`: the exact choice.  Each candidate's reach onto an
+  orthonormal basis of the mechanisms, one greedy pass of the linear matroid
+  in order of cost (Rado 1957; Edmonds 1971), the re-audit of the braced
+  frame; :func:`recommend_bracing` runs it all.
+- :mod:`.result`: :class:`BracingResult` and :func:`braced_frame` (the frame
+  with the chosen members and restraints, through :mod:`spaceframe.edit`).
+- :mod:`.frames`: the frames of a frame of frames, planar ids and bays.
+
+The analysis returns data (origins, joint indices, bay labels, remedies);
+the words (``"bottom-chord tie at L2, bay 3"``, hints, notes) and the JSON
+document are made in :mod:`spaceframe.views.bracing_document`.
+"""
+
+from .candidates import (GENERATORS, ORIGINS, CandidateOptions, CandidateSet, MemberCandidate,
+                         RestraintCandidate, Search, find_candidates, panel_diagonals,
+                         tie_candidates)
+from .result import ACTS, BRACING_CAUTION, BracingResult, LateralRestraint, Remedy, braced_frame
+from .selection import (PER_MODE, expand_elements, greedy_basis, lateral_restraint,
+                        matroid_elements, planar_plane, reach_rows, recommend_bracing, remedies)
+
+__all__ = ["recommend_bracing", "find_candidates", "panel_diagonals", "tie_candidates",
+           "planar_plane", "reach_rows", "greedy_basis", "matroid_elements", "expand_elements",
+           "remedies", "lateral_restraint", "braced_frame", "BracingResult", "Remedy",
+           "LateralRestraint", "CandidateSet", "CandidateOptions", "MemberCandidate",
+           "RestraintCandidate", "Search", "GENERATORS", "ORIGINS", "ACTS", "PER_MODE",
+           "BRACING_CAUTION"]

@@ -1,0 +1,136 @@
+"""Frames of a frame of frames: their order, the planar ids of their joints, the bays between.
+
+An extruded model (:func:`spaceframe.extrude.extrude`) tags every joint with
+the planar ``frame`` it belongs to and every tie or brace with its ``bay``.
+These helpers read those tags for the candidate search, the braced frame's
+new tags and the views' wording.  All return data (labels, indices), no
+sentences.
+"""
+
+from __future__ import annotations
+
+from collections import Counter, defaultdict
+
+import numpy as np
+
+from ...model import Frame
+from ...tolerances import DEFAULT
+
+__all__ = ["frame_labels", "planar_id", "frame_offset", "bay_between", "panel_bay",
+           "missing_ties", "tie_level"]
+
+
+def frame_labels(frame: Frame) -> list[tuple[str, np.ndarray]]:
+    """The frames of a frame of frames, in order along the building, and their joints.
+
+    Labels are the ``frame`` joint tag (empty: a joint of no frame); numeric
+    labels go in numeric order, others in order of first appearance.
+
+    Returns
+    -------
+    list of (label, (j,) int)
+        Empty for a frame without a ``frame`` joint tag.
+    """
+    jf = frame.joint_tags.get("frame")
+    if jf is None:
+        return []
+    joints = defaultdict(list)
+    for j, label in enumerate(jf):
+        if label:
+            joints[label].append(j)
+    labels = list(joints)
+    if all(label.isdigit() for label in labels):
+        labels.sort(key=int)
+    return [(label, np.array(joints[label], dtype=np.int64)) for label in labels]
+
+
+def planar_id(frame: Frame, j: int, label: str | None = None) -> str:
+    """The id of joint ``j`` in its planar frame: ``F3.U2`` of frame 3 is ``U2``.
+
+    ``label`` is the joint's frame label (default: its ``frame`` tag).
+    """
+    jid = frame.joint_ids[j]
+    if label is None:
+        jf = frame.joint_tags.get("frame")
+        label = jf[j] if jf is not None else ""
+    prefix = f"F{label}."
+    return jid[len(prefix):] if jid.startswith(prefix) else jid
+
+
+def frame_offset(frame: Frame, A, B, la: str, lb: str) -> np.ndarray:
+    """The translation from frame ``la`` (joints ``A``) to the next, ``lb`` (joints ``B``).
+
+    The median difference of joints with the same planar id, or, when the
+    frames share none, the difference of the frames' centroids.
+    """
+    X = frame.coords
+    ib = {planar_id(frame, j, lb): j for j in B.tolist()}
+    pairs = [(a, ib[p]) for a in A.tolist() if (p := planar_id(frame, a, la)) in ib]
+    if pairs:
+        a, b = np.array(pairs).T
+        return np.median(X[b] - X[a], axis=0)
+    return X[B].mean(axis=0) - X[A].mean(axis=0)
+
+
+def bay_between(jframe, a: int, b: int) -> str:
+    """The bay between the frames of joints ``a`` and ``b`` ('' in one frame or none).
+
+    ``jframe`` is the ``frame`` joint tag (or None).  Numeric labels: bay 2
+    runs from frame 2 to frame 3, as in the extrusion; frames further apart
+    give ``"2-4"``; other labels ``"la-lb"`` in sorted order.
+    """
+    if jframe is None or min(a, b) < 0 or not jframe[a] or not jframe[b] or jframe[a] == jframe[b]:
+        return ""
+    la, lb = jframe[a], jframe[b]
+    if la.isdigit() and lb.isdigit():
+        lo, hi = sorted((int(la), int(lb)))
+        return str(lo) if hi == lo + 1 else f"{lo}-{hi}"
+    return "-".join(sorted((la, lb)))
+
+
+def _member_index(frame: Frame) -> dict[tuple[int, int], int]:
+    return {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
+
+
+def panel_bay(frame: Frame, corners, member_at=None) -> str:
+    """The most common ``bay`` label of a panel's sides ('' when none).
+
+    A side that is a member gives its ``bay`` tag; one that is not (a tie
+    candidate) the bay between its ends' frames (:func:`bay_between`).
+    ``member_at`` (joint pair -> member index) may be passed to save
+    rebuilding it for many panels.
+    """
+    bay_tags, jframe = frame.member_tags.get("bay"), frame.joint_tags.get("frame")
+    if corners is None or (bay_tags is None and jframe is None):
+        return ""
+    member_at = _member_index(frame) if member_at is None else member_at
+    labels = []
+    for p, q in zip(corners, corners[1:] + corners[:1]):
+        k = member_at.get((min(p, q), max(p, q)))
+        if k is not None and bay_tags is not None and bay_tags[k]:
+            labels.append(bay_tags[k])
+        elif k is None and bay_between(jframe, p, q):
+            labels.append(bay_between(jframe, p, q))
+    return Counter(labels).most_common(1)[0][0] if labels else ""
+
+
+def missing_ties(frame: Frame, corners) -> list[tuple[int, int]]:
+    """The sides of a panel that no member joins (the ties a tie-panel diagonal needs)."""
+    existing = {frozenset(e) for e in frame.ends.tolist()}
+    sides = zip(corners, corners[1:] + corners[:1])
+    return [(p, q) for p, q in sides if p >= 0 and q >= 0 and frozenset((p, q)) not in existing]
+
+
+def tie_level(frame: Frame, a: int) -> str:
+    """``"bottom chord"`` when joint ``a`` is at the lowest level of its frame, else ``"upper"``.
+
+    The lowest level: within ``DEFAULT.select`` of the frame's size (its
+    largest extent) of the lowest joint of the same frame, feet of posts
+    (joint role ``foot``) left out.  Needs the ``frame`` joint tag.
+    """
+    jf = frame.joint_tags["frame"]
+    role = frame.joint_tags.get("role") or ("",) * frame.n_joints
+    own = [j for j in range(frame.n_joints) if jf[j] == jf[a] and role[j] != "foot"]
+    z = frame.coords[own, 2]
+    size = float(np.max(np.ptp(frame.coords, axis=0))) or 1.0
+    return "bottom chord" if frame.coords[a, 2] - z.min() <= DEFAULT.select * size else "upper"
