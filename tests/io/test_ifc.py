@@ -269,15 +269,10 @@ def test_brace_writes_bracing_members_into_ifc(tmp_path):
 
 
 def test_missing_ifcopenshell_names_the_extra(tmp_path, monkeypatch):
-    import builtins
-    real = builtins.__import__
-
-    def no_ifc(name, *args, **kw):
-        if name.startswith("ifcopenshell"):
-            raise ImportError(name)
-        return real(name, *args, **kw)
+    import sys
     path = structural_ifc(tmp_path / "g.ifc", double_layer_grid(1))
-    monkeypatch.setattr(builtins, "__import__", no_ifc)
+    for name in [n for n in sys.modules if n == "ifcopenshell" or n.startswith("ifcopenshell.")]:
+        monkeypatch.setitem(sys.modules, name, None)      # import now raises ImportError
     res = CliRunner().invoke(main, ["audit", str(path)])
     assert res.exit_code == 2 and "pip install 'spaceframe[ifc]'" in res.stderr
     res = CliRunner().invoke(main, ["convert", str(MODELS / "canopy_sway.toml"), "-o",
