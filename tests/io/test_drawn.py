@@ -196,3 +196,24 @@ def test_svg_view_box_and_width_give_the_units(tmp_path):
         np.ptp(frame.coords[:, 1]), 200.0)
     with pytest.raises(ModelError, match="--units says m"):
         spaceframe.load(svg, units="m")
+
+
+def test_bracing_csv_names_the_unit_of_its_lengths(tmp_path):
+    # the truss with one diagonal left out: a panel that racks, braced by its other diagonal
+    path = write_truss(tmp_path / "pratt.dxf")
+    with pytest.warns(SpaceframeWarning, match="T-junctions"):
+        frame = spaceframe.load(path)
+    diagonal = int(np.flatnonzero(np.isclose(frame.lengths(), np.hypot(2000.0, 2000.0)))[0])
+    native = tmp_path / "pratt.toml"
+    from spaceframe.edit import remove_members
+    from spaceframe.io import save
+    save(remove_members(frame, [diagonal]), native)
+    out = tmp_path / "braces.csv"
+    res = CliRunner().invoke(main, ["brace", str(native), "--supports", "pin at nearest 0 0",
+                                    "--supports", "y at nearest 12000 0", "--csv", str(out)])
+    assert res.exit_code == 0, res.output
+    header, first = out.read_text().splitlines()[:2]
+    assert "length_mm" in header.split(",")
+    # the brace is the panel's other diagonal: 2828.427 mm long
+    assert np.isclose(float(first.split(",")[header.split(",").index("length_mm")]),
+                      np.hypot(2000.0, 2000.0), rtol=1e-5)
