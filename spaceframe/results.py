@@ -186,6 +186,10 @@ class AuditResult:
                     "direction": [_num(x) for x in info.direction],
                     "frames": list(info.frames),
                 })
+                if info.lines:
+                    entry["lines"] = list(info.lines)
+                if info.pivots:
+                    entry["pivots"] = list(info.pivots)
             order = self.mode_orders[i] if i < len(self.mode_orders) else None
             entry["order"] = order
             if order is not None and self.mode_prestress is not None and \

@@ -6,10 +6,11 @@ import numpy as np
 
 from ..errors import InternalError
 from ..model import Frame
+from ..naming import natural_key
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
-from .modes import KINDS, describe_modes, gather_leans, local_basis, order_rigid
+from .modes import KINDS, describe_modes, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
 from .prestress import prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
@@ -122,10 +123,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
     hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
     info = describe_modes(frame, modes, hints, tol=tol)
-    modes, info = gather_leans(frame, modes, info, hints, tol=tol)
     # group the internal modes by kind (local kinds first), fewest joints first within a kind
     ni = internal.shape[1]
-    order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints), i))
+    order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints),
+                                             natural_key(info[i].joints[0]), i))
     order += list(range(ni, k))
     modes, info = modes[order], tuple(info[i] for i in order)
     # one projection serves the key-member probes and the product-force test

@@ -32,15 +32,16 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..model import Frame
+from ..naming import count, join_words, natural_key, numbered_only, placed, xyz
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
-__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "gather_leans", "KINDS"]
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "KINDS"]
 
 #: A mode moving at most this many joints is "local".
 LOCAL_JOINTS = 3
 #: The kinds of mode, in the order they are tested.
-KINDS = ("rigid-body", "local", "out-of-plane", "lean", "sway", "other")
+KINDS = ("rigid-body", "local", "out-of-plane", "tie-line", "lean", "sway", "other")
 
 _AXES = "xyz"
 
@@ -54,8 +55,8 @@ class ModeInfo:
     kind : str
         One of :data:`KINDS`.
     joints : tuple of str
-        Joints that move more than ``Display.moving`` of the largest movement,
-        largest first.
+        Joints that move more than ``Display.moving`` of the largest movement, in
+        natural order of their ids (``F2.L5, F2.L6, F2.L10``).
     members : tuple of str
         Members with an end at a moving joint.
     direction : (d,) float
@@ -64,6 +65,12 @@ class ModeInfo:
         For models with a ``frame`` tag: the frames the moving joints belong to.
     description : str
         One sentence for a designer.
+    lines : tuple of str
+        For a ``tie-line`` mode: the planar ids of the lines of joints that
+        slide (``("U2",)``: joint U2 of every frame involved).
+    pivots : tuple of str
+        For a ``sway`` mode: the supported joints the moving members turn
+        about (a portal's column bases).
     """
 
     kind: str
@@ -72,6 +79,8 @@ class ModeInfo:
     direction: np.ndarray
     frames: tuple[str, ...]
     description: str
+    lines: tuple[str, ...] = ()
+    pivots: tuple[str, ...] = ()
 
 
 def local_basis(mech: np.ndarray, rigid: np.ndarray, joint_of: np.ndarray, *,
@@ -248,6 +257,66 @@ class _Context:
         self.extrusion = self._extrusion_direction()
         self.size = frame.size() or 1.0
         self.held = set(frame.restraint_joint.tolist())
+        ids = frame.joint_ids
+        self.line = self._lines()
+        self.line_role = self._line_roles()
+        # ids that only number the joints (an imported mesh's J1, J2...) say nothing of
+        # where a joint is: its coordinates go beside them
+        self.bare = numbered_only(ids, tagged=bool(frame.joint_tags))
+
+    def _lines(self) -> list:
+        """The line along the building of each framed joint (None for the others).
+
+        Joints at one place in each frame make a line: same coordinates once the
+        component along the building is removed.  A line is named by its
+        planar id where the ids say it (``F3.U2`` is on line ``U2``), else by
+        its first and last joint (``J4-J28``).
+        """
+        n = self.frame.n_joints
+        if self.extrusion is None:
+            return [None] * n
+        e = self.extrusion
+        X = self.frame.coords
+        across = X - np.outer(X @ e, e)
+        grain = self.tol.on_axis * self.size       # one place: the same within on_axis
+        keys = [tuple(np.round(a / grain).astype(int)) if self.frames[j] else None
+                for j, a in enumerate(across)]
+        ids = self.frame.joint_ids
+        members: dict = {}
+        for j, k in enumerate(keys):
+            if k is not None:
+                members.setdefault(k, []).append(j)
+        names = {}
+        for k, js in members.items():
+            local = {ids[j].split(".", 1)[1] if "." in ids[j] else None for j in js}
+            if len(local) == 1 and None not in local:
+                names[k] = local.pop()
+            else:
+                js = sorted(js, key=lambda j: natural_key(ids[j]))
+                names[k] = f"{ids[js[0]]}-{ids[js[-1]]}" if len(js) > 1 else ids[js[0]]
+        return [names[k] if k is not None else None for k in keys]
+
+    def _line_roles(self) -> dict:
+        """Planar id -> the role of the ties along that line (``purlin``, ``ridge``...)."""
+        roles = self.frame.tag("member", "role")
+        groups = self.frame.tag("member", "group")
+        out: dict = {}
+        if not roles or not groups:
+            return out
+        for m, (a, b) in enumerate(self.frame.ends):
+            if groups[m] == "tie" and self.line[a] is not None and self.line[a] == self.line[b]:
+                out.setdefault(self.line[a], roles[m])
+        return out
+
+    def label(self, j) -> str:
+        """Joint ``j``'s id, with its coordinates when the id is bare numbering."""
+        jid = self.frame.joint_ids[j]
+        return placed(jid, self.frame.coords[j], self.size) if self.bare else jid
+
+    def labels(self, joints) -> list[str]:
+        """Labels of ``joints`` in natural order of their ids."""
+        ids = self.frame.joint_ids
+        return [self.label(j) for j in sorted(joints, key=lambda j: natural_key(ids[j]))]
 
     def members_at(self, j):
         return self.inc_m[self.inc_ptr[j]:self.inc_ptr[j + 1]]
@@ -286,7 +355,8 @@ class _Context:
         size = np.linalg.norm(u, axis=1)
         top = size.max() if size.size else 0.0
         moving = np.flatnonzero(size > DISPLAY.moving * top)
-        moving = moving[np.argsort(-size[moving], kind="stable")]
+        peak = int(moving[np.argmax(size[moving])]) if len(moving) else 0
+        moving = np.array(sorted(moving, key=lambda j: natural_key(f.joint_ids[j])), int)
         jids = tuple(f.joint_ids[j] for j in moving)
         mem = sorted({int(m) for j in moving for m in self.members_at(j)})
         mids = tuple(f.member_ids[m] for m in mem)
@@ -299,37 +369,21 @@ class _Context:
         direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
         parallel = s[0] ** 2 / max(np.sum(s ** 2), 1e-300)
 
+        extra: dict = {}
         if hint == "rigid-body":
             kind, text, direction = "rigid-body", *self._rigid(u)
         elif hint == "soft":
-            kind, text = self._internal(u, moving, jids, direction, parallel, frames)
+            kind, text, extra = self._internal(u, moving, direction, parallel, frames, peak)
             pattern = {"local": "local", "out-of-plane": "out-of-plane", "lean": "leaning",
-                       "sway": "racking", "other": "spread-out"}[kind]
-            text = (f"{len(jids)} joint{'s' if len(jids) != 1 else ''} move, most at {jids[0]} "
+                       "tie-line": "sliding", "sway": "swaying", "other": "spread-out"}[kind]
+            text = (f"{count(len(jids), 'joint')} move, most at {self.label(peak)} "
                     f"({_dir_words(direction)} mostly), in a {pattern} pattern held only weakly "
                     f"by member stretching")
         else:
-            kind, text = self._internal(u, moving, jids, direction, parallel, frames)
+            kind, text, extra = self._internal(u, moving, direction, parallel, frames, peak)
             text += self._plane_note(u, moving)
         return ModeInfo(kind=kind, joints=jids, members=mids, direction=direction,
-                        frames=frames, description=text)
-
-    def _tie_lines(self, moving, frames, direction):
-        """Racking between lines of joints that run along the building, in its words."""
-        if self.extrusion is None or len(frames) < 2 or abs(direction @ self.extrusion) < 0.9:
-            return None
-        ids = [self.frame.joint_ids[j] for j in moving]
-        if not all("." in i for i in ids):
-            return None
-        local = list(dict.fromkeys(i.split(".", 1)[1] for i in ids))
-        if len(local) > 4 or len(local) * len(frames) < len(ids):
-            return None
-        span = f"{frames[0]}-{frames[-1]}" if len(frames) > 2 else f"{frames[0]} and {frames[-1]}"
-        names = ", ".join(sorted(local)[:-1]) + " and " + sorted(local)[-1] if len(local) > 1 \
-            else local[0]
-        return (f"The lines of joints {names} (frames {span}) move against each other along "
-                f"the building: the panels between them can rack, with no bracing in any bay to "
-                f"stop them.")
+                        frames=frames, description=text, **extra)
 
     def _plane_note(self, u, moving) -> str:
         """For extruded frames: is the mode in the trusses' own plane, or only in 3D?"""
@@ -375,7 +429,7 @@ class _Context:
         if d == 2:
             p = c + np.array([-t[1], t[0]]) / om[0]
             near = self._joints_near_point(p)
-            where = f"joint {near}" if near else f"the point ({_xyz(p)})"
+            where = f"joint {near}" if near else f"the point ({xyz(p)})"
             return (f"The whole frame can turn in its plane about {where}: the supports do not "
                     f"stop the rotation.", np.array([0.0, 1.0]))
         axis = om / np.linalg.norm(om)
@@ -385,7 +439,7 @@ class _Context:
         if len(on_axis) >= 2:
             where = f"the line through joints {on_axis[0]} and {on_axis[-1]}"
         else:
-            where = f"an axis {_dir_words(axis, along=True)} through ({_xyz(p, self.size)})"
+            where = f"an axis {_dir_words(axis, along=True)} through ({xyz(p, self.size)})"
         return (f"The whole frame can turn about {where}: the supports do not stop the "
                 f"rotation.", axis)
 
@@ -395,101 +449,154 @@ class _Context:
         dist = np.linalg.norm(r - np.outer(r @ axis, axis), axis=1)
         idx = np.flatnonzero(dist <= self.tol.on_axis * self.size)
         idx = idx[np.argsort(r[idx] @ axis)]
-        return [self.frame.joint_ids[j] for j in idx]
+        return [self.label(j) for j in idx]
 
     def _joints_near_point(self, p):
         X = self.frame.coords
         dist = np.linalg.norm(X - p, axis=1)
         j = int(np.argmin(dist))
-        return self.frame.joint_ids[j] if dist[j] <= self.tol.on_axis * self.size else None
+        return self.label(j) if dist[j] <= self.tol.on_axis * self.size else None
 
     # -- internal ----------------------------------------------------------
-    def _internal(self, u, moving, jids, direction, parallel, frames):
+    def _internal(self, u, moving, direction, parallel, frames, peak):
+        """Kind, sentence and data (``lines``, ``pivots``) of one internal mode."""
         n_mov = len(moving)
-        names = _list(jids)
+        first = self.label(moving[0]) if n_mov else ""
+        names = join_words(self.labels(moving), most=4)
         # a joint with no members at all
         if n_mov == 1 and len(self.members_at(moving[0])) == 0:
             if moving[0] in self.held:
-                return "local", (f"Joint {jids[0]} has no members and its support leaves it free "
-                                 f"{_dir_words(direction)}.")
-            return "local", (f"Joint {jids[0]} has no members and no support: it is free "
-                             f"{_dir_words(direction)}.")
+                return "local", (f"Joint {first} has no members and its support leaves it free "
+                                 f"{_dir_words(direction)}."), {}
+            return "local", (f"Joint {first} has no members and no support: it is free "
+                             f"{_dir_words(direction)}."), {}
         # out of the plane of the members at each moving joint
         if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
             if n_mov == 1:
-                return "out-of-plane", (f"Joint {jids[0]} is free out of the plane of its "
+                return "out-of-plane", (f"Joint {first} is free out of the plane of its "
                                         f"members ({_dir_words(direction)}): no member or "
-                                        f"support holds it that way.")
+                                        f"support holds it that way."), {}
             return "out-of-plane", (f"Joints {names} can move out of the plane of their members "
-                                    f"({_dir_words(direction)}), with nothing to stop them.")
+                                    f"({_dir_words(direction)}), with nothing to stop them."), {}
         # collinear members: free sideways
         if n_mov == 1:
             ms = self.members_at(moving[0])
             if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
-                return "local", (f"Joint {jids[0]} lies on a straight line of members and is "
-                                 f"free sideways to them ({_dir_words(direction)}).")
-        # a row of frames leaning together along the extrusion: every moving joint moves
-        # the same way along the building
-        along = u[moving] @ self.extrusion if self.extrusion is not None else None
-        if along is not None and len(frames) >= 2 and parallel >= 0.9 and \
-                abs(direction @ self.extrusion) >= 0.9 and \
-                (np.all(along > 0) or np.all(along < 0)):
-            first, last = frames[0], frames[-1]
-            span = f"{first}-{last}" if len(frames) > 2 else f"{first} and {last}"
-            return "lean", (f"Frames {span} can lean together along the building "
-                            f"({_dir_words(direction)}): no bracing between those frames holds "
-                            f"them.")
-        # several joints moving together sideways: racking of panels
+                return "local", (f"Joint {first} lies on a straight line of members and is "
+                                 f"free sideways to them ({_dir_words(direction)})."), {}
+        along_building = self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 \
+            and abs(direction @ self.extrusion) >= 0.9
+        if along_building:
+            lines = self._lines_of(moving)
+            along = u[moving] @ self.extrusion
+            if lines is not None and not self._whole_frames(moving, frames):
+                return "tie-line", self._tie_line_words(lines, moving, frames, along), \
+                    {"lines": tuple(lines)}
+            # a row of frames leaning together: whole frames move the same way along it
+            if np.all(along > 0) or np.all(along < 0):
+                return "lean", (f"Frames {_span(frames)} can lean together along the building "
+                                f"({_dir_words(direction)}): no bracing between those frames "
+                                f"holds them."), {}
+        # several joints moving together sideways
         if n_mov >= 2 and parallel >= 0.9 and abs(direction[self.up]) <= 0.5:
-            lines = self._tie_lines(moving, frames, direction)
-            if lines:
-                return "sway", lines
-            side = u[moving] @ direction
-            if np.all(side > 0) or np.all(side < 0):
-                return "sway", (f"Joints {names} sway together {_dir_words(direction)}: the "
-                                f"panels they bound can rack with nothing to stop them.")
-            return "sway", (f"Joints {names} move against each other "
-                            f"{_dir_words(direction, along=True)}: the panels between them can "
-                            f"rack with nothing to stop them.")
+            return self._sway(u, moving, direction)
         if n_mov <= LOCAL_JOINTS:
             return "local", (f"Joints {names} can move together ({_dir_words(direction)} "
-                             f"mostly) without any member changing length.")
-        return "other", (f"{n_mov} joints move together, most at {jids[0]} "
-                         f"({_dir_words(direction)} mostly), with no member changing length.")
+                             f"mostly) without any member changing length."), {}
+        return "other", (f"{n_mov} joints move together, most at {self.label(peak)} "
+                         f"({_dir_words(direction)} mostly), with no member changing length."), {}
+
+    # -- lines of joints along an extruded building ----------------------------------------
+    def _lines_of(self, moving):
+        """The planar ids of the lines of joints ``moving`` makes up, or None.
+
+        ``moving`` makes up lines when every moving joint belongs to a frame and
+        each line it touches moves in at least two frames.
+        """
+        lines = [self.line[j] for j in moving]
+        if any(x is None for x in lines):
+            return None
+        seen: dict = {}
+        for x in lines:
+            seen[x] = seen.get(x, 0) + 1
+        if min(seen.values()) < 2:
+            return None
+        return sorted(seen, key=natural_key)
+
+    def _whole_frames(self, moving, frames) -> bool:
+        """Do the moving joints make up at least half of every frame they touch?"""
+        labels = self.frames
+        per = {fr: 0 for fr in frames}
+        for j in moving:
+            per[labels[j]] += 1
+        total = {fr: 0 for fr in frames}
+        for fr in labels:
+            if fr in total:
+                total[fr] += 1
+        return all(per[fr] >= 0.5 * total[fr] and per[fr] >= 2 for fr in frames)
+
+    def _tie_line_words(self, lines, moving, frames, along) -> str:
+        """One or a few lines of tied joints sliding along the building, in its words."""
+        roles = [self.line_role.get(x) for x in lines]
+        if len(lines) == 1:
+            what = f"The {roles[0]} line at {lines[0]}" if roles[0] else \
+                f"The line of tied joints at {lines[0]}"
+            verb = "slides"
+        else:
+            what, verb = "The lines of joints at " + join_words(lines), "slide"
+        how = "as one" if len(lines) == 1 else "together"
+        if not (np.all(along > 0) or np.all(along < 0)):
+            plus = sorted({self.line[j] for j, a in zip(moving, along) if a > 0}, key=natural_key)
+            minus = sorted({self.line[j] for j, a in zip(moving, along) if a < 0},
+                           key=natural_key)
+            how = f"({join_words(plus)} one way, {join_words(minus)} the other)"
+        one = len(lines) == 1
+        return (f"{what} (frames {_span(frames)}) {verb} along the building {how} while the rest "
+                f"of the frame stays put: ties hold {'its' if one else 'their'} joints frame to "
+                f"frame, but no brace or support holds {'the line' if one else 'them'} along the "
+                f"building.")
+
+    # -- sway --------------------------------------------------------------------------
+    def _sway(self, u, moving, direction):
+        """Joints moving sideways: on the supports (a portal on its pins), or against the rest."""
+        f = self.frame
+        side = u[moving] @ direction
+        mov = set(moving.tolist())
+        pivots = sorted({int(o) for j in moving for m in self.members_at(j)
+                         for o in f.ends[m] if int(o) not in mov and int(o) in self.held},
+                        key=lambda j: natural_key(f.joint_ids[j]))
+        names = join_words(self.labels(moving), most=4)
+        pivot_ids = tuple(f.joint_ids[j] for j in pivots)
+        if np.all(side > 0) or np.all(side < 0):
+            if pivots:
+                down = join_words(self.labels(pivots), most=4)
+                up = self.frame.coords[:, self.up]
+                to = "down to" if up[pivots].max() < up[moving].min() else "to"
+                if len(mov) + len(self.held) >= f.n_joints:   # everything not held moves
+                    return "sway", (f"The frame can sway {_dir_words(direction)} on its "
+                                    f"supports: joints {names} move together while the "
+                                    f"members {to} {down} turn about them, and nothing "
+                                    f"braces it that way."), {"pivots": pivot_ids}
+                return "sway", (f"Joints {names} can sway {_dir_words(direction)} on the "
+                                f"supports at {down} while the rest of the frame stays put: "
+                                f"the members {to} the supports turn about them, and "
+                                f"nothing braces them that way."), {"pivots": pivot_ids}
+            return "sway", (f"Joints {names} can move together {_dir_words(direction)} while "
+                            f"the rest of the frame stays put: the panels between them and "
+                            f"the joints that stay can rack, with nothing to stop them."), {}
+        plus = self.labels([j for j, a in zip(moving, side) if a > 0])
+        minus = self.labels([j for j, a in zip(moving, side) if a < 0])
+        axis = _dir_words(direction)
+        back = _dir_words(-direction)
+        return "sway", (f"Joints {join_words(plus, most=4)} move {axis} while "
+                        f"{join_words(minus, most=4)} move {back}, and the rest of the frame "
+                        f"stays put: the panels between them can rack, with nothing to stop "
+                        f"them."), {"pivots": pivot_ids}
 
 
-def gather_leans(frame: Frame, modes: np.ndarray, info: tuple, hints: tuple, *,
-                 tol: Tolerances = DEFAULT):
-    """Present several lean modes as one lean of the whole row and racking modes.
-
-    When ``q > 1`` modes each move a row of frames the same way along the
-    building (one per tied line of joints, say), the same space is spanned by
-    their sum, the row of frames leaning together, and the ``q - 1``
-    differences of consecutive ones, in which the lines move against each
-    other: the planes between frames rack.  The designer then reads one lean
-    per free longitudinal direction.
-
-    Returns
-    -------
-    modes : (k, n, d) float
-    info : tuple of ModeInfo
-    """
-    idx = [i for i, inf in enumerate(info) if inf.kind == "lean"]
-    if len(idx) < 2:
-        return modes, info
-    ctx = _Context(frame, tol)
-    V = modes[idx].copy()
-    for a in range(len(V)):
-        if np.sum(V[a] @ ctx.extrusion) < 0:
-            V[a] = -V[a]
-    new = [V.sum(axis=0)] + [V[a] - V[a + 1] for a in range(len(V) - 1)]
-    modes = modes.copy()
-    info = list(info)
-    for i, v in zip(idx, new):
-        v = v / np.linalg.norm(v, axis=1).max()
-        modes[i] = v
-        info[i] = ctx.describe(v, hints[i])
-    return modes, tuple(info)
+def _span(frames) -> str:
+    """``1-6`` for a run of frames, ``1 and 2`` for two."""
+    return f"{frames[0]}-{frames[-1]}" if len(frames) > 2 else " and ".join(frames)
 
 
 def _dir_words(v, *, along=False):
@@ -499,14 +606,3 @@ def _dir_words(v, *, along=False):
         return f"along {'+' if v[a] > 0 else '-'}{_AXES[a]}" if not along else \
             f"along {_AXES[a]}"
     return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
-
-
-def _xyz(p, size=1.0):
-    p = np.where(np.abs(p) <= DISPLAY.zero_coordinate * size, 0.0, p)
-    return ", ".join(f"{c:.3g}" for c in p)
-
-
-def _list(ids, most=4):
-    if len(ids) <= most:
-        return ", ".join(ids[:-1]) + (" and " if len(ids) > 1 else "") + ids[-1]
-    return ", ".join(ids[:most]) + f" and {len(ids) - most} more"

@@ -17,12 +17,12 @@ SUFFIXES = (".gif", ".mp4", ".png")
 @click.command("animate")
 @model_argument
 @click.option("-o", "--output", "out", required=True, metavar="OUT",
-              help="Picture to write: .gif (looping), .mp4, or .png (a strip of poses; one row "
-                   "per mode).")
+              help="Picture to write: .gif (looping), .mp4, or .png (a sheet of poses, "
+                   "each mode's in rows at most 1,600 px wide).")
 @click.option("--mode", "mode", type=int, default=None, metavar="K",
               help="The mechanism to show, numbered from 1 in the order the audit lists them "
                    "(default 1).")
-@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (one row each in a PNG).")
+@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (each its own rows in a PNG).")
 @click.option("--state", "state", type=int, default=None, metavar="K",
               help="Draw state of self-stress K instead (a still .png): members coloured by force.")
 @click.option("--frames", "n", type=click.IntRange(2, 240), default=None,
@@ -49,6 +49,7 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
         from .. import audit, load
         from ..errors import SpaceframeError
         from ..io.output import check_output
+        from ..naming import count as counted
         from ..selection import supports_for
         from ..views.progress import progress
         from ..views.render import mode_frames, state_picture, write_frames
@@ -69,7 +70,8 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
             return
         count = result.mechanisms
         if mode is not None and not 1 <= mode <= max(count, 1):
-            raise SpaceframeError(f"--mode {mode}: the audit found {count} mechanism(s); "
+            raise SpaceframeError(f"--mode {mode}: the audit found "
+                                  f"{counted(count, 'mechanism')}; "
                                   f"give a number from 1 to {count}" if count else
                                   f"--mode {mode}: the frame has no mechanism")
         if count == 0:

@@ -1,10 +1,12 @@
 """The interactive desktop viewer: a window to turn the frame and play its mechanisms.
 
-One pyvista window with, along its left edge, a mode slider (0 = at rest,
-then the mechanisms as the audit numbers them), a play/pause switch, an
-amplitude slider, a self-stress state slider (members coloured by force,
-orange tension, blue compression) and, where a bracing proposal is given, a
-switch that shows the proposed members.  Clicking near a joint names it, its
+One pyvista window in two viewports: the frame on the left, and beside it a
+panel with the model's name and counts, the chosen mode's description, a
+mode slider (0 = at rest, then the mechanisms as the audit numbers them), a
+play/pause switch, an amplitude slider, a self-stress state slider (members
+coloured by force, orange tension, blue compression) and, where a bracing
+proposal is given, a switch that shows the proposed members; no control
+sits over the frame.  The window's title names the model file.  Clicking near a joint names it, its
 tags (role, frame, bay) and the nearest member.  The same object runs
 off-screen, which is how the tests drive it.
 """
@@ -14,14 +16,22 @@ from __future__ import annotations
 import numpy as np
 
 from .._optional import require
+from ..naming import count
 from ..results import AuditResult
 from .render import PALETTE, _lines, _pyvista, support_glyphs
-from .scene import AMPLITUDE, moving_joints, phases, scene_of, view_direction
+from .scene import AMPLITUDE, moving_joints, phases, scene_of
 
 __all__ = ["DeskViewer"]
 
 # slider labels: VTK 9.4 and newer format them with {}-style, older with printf-style
 _FMT_INT, _FMT_REAL = "{:.0f}", "{:.2f}"
+
+#: Share of the window's width given to the frame; the control panel takes the rest.
+VIEW_SHARE = 0.68
+#: Font size of the panel's words.
+_FONT = 9
+#: Background of the control panel (the report's band colour).
+_PANEL = "#f5f5f3"
 
 
 class DeskViewer:
@@ -52,18 +62,29 @@ class DeskViewer:
         self.amplitude, self.phase = AMPLITUDE, 0.0
         self.step_phases = phases(48)
         self.step_index = 0
+        self.size = tuple(size)
         p = self.plotter = pv.Plotter(off_screen=off_screen, window_size=list(size),
-                                      title="spaceframe: " + (result.frame.name or "frame"))
-        p.set_background(PALETTE["background"][0])
+                                      shape=(1, 2), col_weights=[VIEW_SHARE, 1 - VIEW_SHARE],
+                                      border=False, title=window_title(result))
+        ink = PALETTE["text"][0]
+        p.subplot(0, 1)                                   # the control panel
+        p.set_background(_PANEL, all_renderers=False)
+        w, h = self.size
+        self._words = p.add_text(self._panel_words(), position=(10, h - 10), font_size=_FONT,
+                                 color=ink)
+        self._words.GetTextProperty().SetVerticalJustificationToTop()
+        p.subplot(0, 0)                                   # the frame
+        p.set_background(PALETTE["background"][0], all_renderers=False)
         self._members = pv.PolyData()
         self._actors = {}
         self._draw()
-        self._picked = p.add_text("Click near a joint to name it.", position=(10, 80),
-                                  font_size=9, color=PALETTE["text"][0])
-        self._words = p.add_text(self._caption(), position="upper_left", font_size=10,
-                                 color=PALETTE["text"][0])
+        p.subplot(0, 1)
+        self._building = True    # the widgets call back with their first values: no redraw yet
         self._widgets()
-        direction = view_direction(self.scene.coords)
+        self._building = False
+        p.subplot(0, 0)
+        p.add_axes(color=ink, line_width=2, labels_off=False)
+        direction = self.scene.view()
         c = 0.5 * (self.scene.coords.min(axis=0) + self.scene.coords.max(axis=0))
         up = (0, 0, 1) if abs(direction[2]) < 0.95 else (0, 1, 0)
         p.camera_position = [tuple(c + 3 * self.scene.extent * direction), tuple(c), up]
@@ -132,19 +153,35 @@ class DeskViewer:
         if self.state:
             return (f"State of self-stress {self.state} of {r.self_stress_forces.shape[0]}: "
                     f"orange tension (pulls), blue compression (pushes), grey none")
+        head = (f"{r.frame.name or '(unnamed frame)'}\n{count(r.mechanisms, 'mechanism')}, "
+                f"{count(r.self_stress_states, 'state of self-stress', 'states of self-stress')}")
         if self.mode:
             info = r.mode_info[self.mode - 1]
-            return f"Mechanism {self.mode} of {r.mechanisms} ({info.kind}): {_wrap(info.description)}"
-        words = f"{r.mechanisms} mechanisms, {r.self_stress_states} states of self-stress"
+            return (f"{head}\n\nMechanism {self.mode} of {r.mechanisms} ({info.kind}):\n"
+                    f"{info.description}")
+        words = head
         if self._bracing_shown():
             a = self.bracing.after
-            words += (f"\nProposed bracing shown (orange): {len(self.bracing.members_added)} "
-                      f"members; after it {a.mechanisms} mechanisms")
-        return words + "\nIdealised pin-jointed model: check by a competent engineer."
+            words += (f"\n\nProposed bracing shown (orange): "
+                      f"{count(len(self.bracing.members_added), 'member')}; after it "
+                      f"{count(a.mechanisms, 'mechanism')}")
+        return words + "\n\nIdealised pin-jointed model: check by a competent engineer."
+
+    def _panel_words(self) -> str:
+        """The caption (:meth:`_caption`), each line wrapped to the panel's width."""
+        width = self._panel_chars()
+        return "\n".join(_wrap(line, width) if line else "" for line in
+                         self._caption().split("\n"))
+
+    def _panel_chars(self) -> int:
+        """Characters of the panel's text to a line (each at most 1.1 font sizes wide)."""
+        return max(20, int((1 - VIEW_SHARE) * self.size[0] / (1.1 * _FONT)) - 2)
 
     def _refresh(self):
+        if getattr(self, "_building", False):
+            return
         self._draw()
-        self._words.SetText(2, self._caption())
+        self._words.SetInput(self._panel_words())
         self.plotter.render()
 
     # -- controls (the widgets call these; so can a script or a test) ----------------------
@@ -197,33 +234,43 @@ class DeskViewer:
         return text
 
     def _widgets(self):
-        """Sliders stacked at the lower right, switches at the lower left, words at the top."""
+        """Sliders and switches in the panel beside the frame, stacked from its foot up."""
         p, r = self.plotter, self.result
-        y = [0.08]
+        w, h = self.size
+        pw = (1 - VIEW_SHARE) * w                     # the panel's width in pixels
+        x0, x1 = 0.08, 0.92                           # in the panel (the active renderer)
+        y = [0.07]
+        ink = PALETTE["text"][0]
 
         def slider(callback, rng, value, title, fmt):
             p.add_slider_widget(callback, rng, value=value, title=title, fmt=fmt,
-                                pointa=(0.64, y[0]), pointb=(0.97, y[0]), style="modern",
-                                title_height=0.025)
-            y[0] += 0.13
+                                pointa=(x0, y[0]), pointb=(x1, y[0]), style="modern",
+                                title_height=0.022, tube_width=0.006, slider_width=0.02)
+            y[0] += 0.12
 
-        if r.mechanisms:
-            slider(self.set_mode, [0, r.mechanisms], 0, "mechanism (0 = at rest)", _FMT_INT)
-            slider(self.set_amplitude, [0.0, 0.3], AMPLITUDE, "amplitude (of the frame's size)",
-                   _FMT_REAL)
-            p.add_checkbox_button_widget(self.set_playing, value=False, position=(10, 10),
-                                         size=26, color_on=PALETTE["moving_joint"][0])
-            p.add_text("play / pause", position=(42, 14), font_size=9, color=PALETTE["text"][0])
-            if not p.off_screen:
-                p.add_timer_event(max_steps=10 ** 9, duration=60, callback=lambda _s: self.step())
+        def switch(callback, words, colour):
+            top = int(y[0] * h)
+            p.add_checkbox_button_widget(callback, value=False, position=(int(x0 * pw), top),
+                                         size=22, color_on=colour)
+            p.add_text(words, position=(int(x0 * pw) + 30, top + 3), font_size=9, color=ink)
+            y[0] += 34 / h
+
         q = r.self_stress_forces.shape[0]
         if q:
             slider(self.set_state, [0, q], 0, "self-stress state (0 = none)", _FMT_INT)
+        if r.mechanisms:
+            slider(self.set_amplitude, [0.0, 0.3], AMPLITUDE, "amplitude (of the frame's size)",
+                   _FMT_REAL)
+            slider(self.set_mode, [0, r.mechanisms], 0, "mechanism (0 = at rest)", _FMT_INT)
+            y[0] -= 0.05
+            switch(self.set_playing, "play / pause", PALETTE["moving_joint"][0])
+            if not p.off_screen:
+                p.add_timer_event(max_steps=10 ** 9, duration=60, callback=lambda _s: self.step())
         if self.bracing is not None and self.bracing.members_added:
-            p.add_checkbox_button_widget(self.set_bracing, value=False, position=(10, 44),
-                                         size=26, color_on="#e69f00")
-            p.add_text("proposed bracing (orange)", position=(42, 48), font_size=9,
-                       color=PALETTE["text"][0])
+            switch(self.set_bracing, "proposed bracing (orange)", "#e69f00")
+        self._picked = p.add_text("Click near a joint to name it.",
+                                  position=(int(x0 * pw), int(y[0] * h) + 4), font_size=8,
+                                  color=ink)
         p.enable_point_picking(callback=lambda pt: self.pick(pt), show_message=False,
                                show_point=False, left_clicking=True)
 
@@ -238,6 +285,16 @@ class DeskViewer:
         self.plotter.close()
 
 
+def window_title(result: AuditResult) -> str:
+    """The window's title: the model file and the frame's name."""
+    from pathlib import Path
+
+    f = result.frame
+    where = Path(f.source).name if f.source else ""
+    name = f.name or "(unnamed frame)"
+    return "spaceframe view: " + (f"{where} - {name}" if where else name)
+
+
 def _rgb(hex_colour: str):
     h = hex_colour.lstrip("#")
     return [int(h[i:i + 2], 16) for i in (0, 2, 4)]
@@ -249,4 +306,4 @@ def _tags(tags, i) -> list[str]:
 
 def _wrap(text: str, width: int = 80) -> str:
     import textwrap
-    return "\n".join(textwrap.wrap(text, width))
+    return "\n".join(textwrap.wrap(text, width, break_on_hyphens=False))

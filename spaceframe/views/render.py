@@ -24,11 +24,12 @@ import numpy as np
 
 from .._optional import require
 from ..errors import SpaceframeError
+from ..naming import count
 from ..results import AuditResult
-from .scene import (AMPLITUDE, Scene, carrying_members, moving_joints, phases, scene_of,
-                    view_direction)
+from .scene import AMPLITUDE, Scene, carrying_members, moving_joints, phases, scene_of
 
-__all__ = ["mode_frames", "state_picture", "write_frames", "support_glyphs", "PALETTE", "SIZE"]
+__all__ = ["mode_frames", "state_picture", "write_frames", "contact_sheet", "support_glyphs",
+           "screen_axes", "PALETTE", "SIZE", "SHEET_WIDTH"]
 
 #: Colours of the pictures (colour-blind-safe), each with the word used in legends.
 PALETTE = {
@@ -47,8 +48,11 @@ PALETTE = {
 #: Picture size in pixels (width, height) for animations; multiples of 16 for video.
 SIZE = (800, 480)
 
-#: Height in pixels of the caption band (the legend band's grows with its rows).
-_TOP = 64
+#: Height in pixels of the title line; the caption band below it grows with its lines, the
+#: legend band with its rows.
+_TITLE = 27
+#: Widest PNG sheet in pixels: the poses of a mode wrap into rows of pictures beyond it.
+SHEET_WIDTH = 1600
 
 _CAUTION_SHORT = ("Idealised pin-jointed model; results to be checked by a competent engineer "
                   "under local codes.")
@@ -82,7 +86,7 @@ def support_glyphs(pv, scene: Scene, points):
     glyphs = scene.glyphs()
     if not glyphs:
         return None
-    e = scene.extent
+    e = scene.unit
     shift = points - scene.coords
     parts = []
     for (start, end, d), j in zip(glyphs, (j for j, _ in scene.supports)):
@@ -98,20 +102,28 @@ class _Stage:
 
     The 3D view fills the band between a caption (top) and a legend (bottom);
     both are drawn with Pillow onto each screenshot (:func:`_compose`), so
-    the words sit in their own space and never over the frame.
+    the words (the caption whole, on as many lines as it needs), the colour
+    scale and the axis triad sit in their own space and never over the frame.
     """
 
-    def __init__(self, scene: Scene, size, title: str, caption: str, legend, scale=None):
+    def __init__(self, scene: Scene, size, title: str, caption: str, legend, scale=None,
+                 dimension: int = 3):
         pv = self.pv = _pyvista()
         self.scene = scene
         self.size, self.title, self.caption = tuple(size), title, caption
         self.legend = legend
-        self.scale = scale  # a colour map on [-1, 1] to draw as a bar over the view
+        self.scale = scale  # a colour map on [-1, 1] to draw as a bar in the legend band
+        self.dimension = dimension
+        self.axes = None    # the camera's screen axes (right, up) in the scene, once placed
         w, h = self.size
-        self.bottom = _legend_height(legend, w)
+        self.bottom = _legend_height(legend, w, scale is not None)
+        # the whole caption, unless a small picture would leave the frame less than half
+        # its height: then as many lines as fit, the last one ending in an ellipsis
+        self.lines = _caption_lines(caption, w, (h // 2 - self.bottom - _TITLE - 6) // 16)
+        self.top = _TITLE + 16 * max(len(self.lines), 1) + 6
         try:
             self.plotter = pv.Plotter(off_screen=True,
-                                      window_size=[w, h - _TOP - self.bottom])
+                                      window_size=[w, h - self.top - self.bottom])
         except Exception as exc:  # VTK raises plain RuntimeErrors for a missing GL
             raise SpaceframeError(
                 f"cannot open an off-screen OpenGL context ({exc}); install Mesa's EGL "
@@ -119,14 +131,14 @@ class _Stage:
         p = self.plotter
         p.set_background(PALETTE["background"][0])
         p.enable_anti_aliasing("ssaa")
-        self.e = scene.extent
+        self.e = scene.unit
 
     def shot(self) -> np.ndarray:
         """The current view with its caption and legend, ``(h, w, 3) uint8``."""
         self.plotter.render()  # screenshot() alone may return the previous render
         view = self.plotter.screenshot(return_img=True)[:, :, :3]
-        return _compose(view, self.size, self.title, self.caption, self.legend, self.bottom,
-                        self.scale)
+        return _compose(view, self.size, self.title, self.lines, self.legend,
+                        (self.top, self.bottom), self.scale, self.axes, self.dimension)
 
     def ghost(self):
         mesh = _lines(self.pv, self.scene.coords, self.scene.ends)
@@ -138,17 +150,29 @@ class _Stage:
         return support_glyphs(self.pv, self.scene, points)
 
     def camera(self, direction, points_sets):
-        """Look at the frame from ``direction``, fitted to every pose in ``points_sets``."""
+        """Look at the frame from ``direction``, fitted to every pose in ``points_sets``.
+
+        The projection is orthographic (an engineer's elevation: parallel lines
+        stay parallel) and its scale is fitted to the frame's projected outline
+        in both directions, so a tall frame is not cropped and a long one not lost.
+        """
         p = self.plotter
         allpts = np.vstack(points_sets)
-        lo, hi = allpts.min(axis=0), allpts.max(axis=0)
-        pad = 0.08 * self.e
-        lo, hi = lo - pad, hi + pad
-        centre = 0.5 * (lo + hi)
-        up = (0, 0, 1) if abs(direction[2]) < 0.95 else (0, 1, 0)
-        p.camera_position = [tuple(centre + 3 * self.e * direction), tuple(centre), up]
-        p.reset_camera(bounds=(lo[0], hi[0], lo[1], hi[1], lo[2], hi[2]))
-        p.camera.zoom(1.35)  # reset_camera fits the bounding sphere: generous for a frame
+        right, up = screen_axes(direction)
+        x, y = allpts @ right, allpts @ up
+        pad = 0.09 * self.e + 0.02 * self.scene.extent  # glyphs and balls reach past the joints
+        cx, cy = 0.5 * (x.min() + x.max()), 0.5 * (y.min() + y.max())
+        half_w, half_h = 0.5 * np.ptp(x) + pad, 0.5 * np.ptp(y) + pad
+        w, h = self.plotter.window_size
+        centre = allpts.mean(axis=0)
+        depth = centre @ direction
+        focus = cx * right + cy * up + depth * direction
+        p.camera_position = [tuple(focus + 3 * self.scene.extent * direction), tuple(focus),
+                             tuple(up)]
+        p.enable_parallel_projection()
+        p.camera.parallel_scale = 1.04 * max(half_h, half_w * h / w)
+        p.reset_camera_clipping_range()
+        self.axes = (right, up)
 
     def close(self):
         self.plotter.close()
@@ -180,7 +204,7 @@ def mode_frames(result: AuditResult, mode: int | None, *, n: int = 24, size=SIZE
     scene = scene_of(result)
     if mode is not None and not 0 <= mode < len(scene.modes):
         raise SpaceframeError(f"mode {mode + 1} does not exist: the audit found "
-                              f"{len(scene.modes)} mechanism(s)")
+                              f"{count(len(scene.modes), 'mechanism')}")
     title, caption = _mode_words(result, mode)
     motion = scene.modes[mode] if mode is not None else None
     if motion is None:
@@ -191,7 +215,7 @@ def mode_frames(result: AuditResult, mode: int | None, *, n: int = 24, size=SIZE
                   _entry("moving_member", "members at them"),
                   _entry("support", "stalk and plate: a direction a support holds"),
                   _entry("ghost", "the frame at rest")]
-    stage = _Stage(scene, size, title, caption, legend)
+    stage = _Stage(scene, size, title, caption, legend, dimension=result.frame.dimension)
     try:
         return _animate(stage, scene, mode, motion, n, on_frame)
     finally:
@@ -230,7 +254,7 @@ def _animate(stage: _Stage, scene: Scene, mode, motion, n, on_frame):
 
     extremes = [rest] if motion is None else \
         [scene.displaced(mode, np.pi / 2), scene.displaced(mode, -np.pi / 2)]
-    stage.camera(view_direction(scene.coords, motion), [scene.coords, *extremes])
+    stage.camera(scene.view(mode), [scene.coords, *extremes])
     frames = []
     for phi in phases(n) + np.pi / 2:  # start at the largest movement: a still reads best
         pose(scene.displaced(mode, phi))
@@ -265,7 +289,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
     carrying = carrying_members(t)
     title = f"State of self-stress {state + 1} of {result.self_stress_states}: " \
             f"{result.frame.name or 'frame'}"
-    caption = (f"{int(carrying.sum())} members carry forces with no load applied; colour says "
+    caption = (f"{count(int(carrying.sum()), 'member')} carry forces with no load applied; colour says "
                f"how much and which way (largest force = 1).")
     cmap = LinearSegmentedColormap.from_list(
         "spaceframe_force", [PALETTE["compression"][0], PALETTE["zero"][0],
@@ -274,7 +298,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
               _entry("compression", "compression: the member pushes"),
               _entry("ghost", "thin: carries nothing here"),
               _entry("support", "stalk and plate: a direction held")]
-    stage = _Stage(scene, size, title, caption, legend, cmap)
+    stage = _Stage(scene, size, title, caption, legend, cmap, dimension=result.frame.dimension)
     try:
         pv, p, e = stage.pv, stage.plotter, stage.e
         idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
@@ -287,7 +311,7 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         sup = stage.supports(scene.coords)
         if sup is not None:
             p.add_mesh(sup, color=PALETTE["support"][0])
-        stage.camera(view_direction(scene.coords), [scene.coords])
+        stage.camera(scene.view(), [scene.coords])
         return stage.shot()
     finally:
         stage.close()
@@ -300,7 +324,9 @@ def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float =
     ----------
     rows : list of list of (h, w, 3) uint8
         One list of pictures per mode.  A GIF or MP4 plays them all in turn;
-        a PNG lays each list out as one row (a strip per mode).
+        a PNG lays each mode's pictures out in a block of rows, as many
+        pictures to a row as fit :data:`SHEET_WIDTH` (at least one), the
+        modes one block below another.
     path : str or Path
         Ends in ``.gif``, ``.mp4`` or ``.png``.
     fps : float
@@ -321,16 +347,27 @@ def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float =
             for f in frames:
                 w.append_data(f)
     elif suffix == ".png":
-        width = max(len(r) for r in rows)
-        h, w = rows[0][0].shape[:2]
-        sheet = np.full((h * len(rows), w * width, 3), 255, np.uint8)
-        for i, row in enumerate(rows):
-            for k, f in enumerate(row):
-                sheet[i * h:(i + 1) * h, k * w:(k + 1) * w] = f[:, :, :3]
-        iio.imwrite(path, sheet, extension=".png")
+        iio.imwrite(path, contact_sheet(rows), extension=".png")
     else:
         raise SpaceframeError(f"{path}: cannot tell the picture format from the suffix "
                               f"{path.suffix!r}; use .gif, .mp4 or .png")
+
+
+def contact_sheet(rows: list[list[np.ndarray]], width: int = SHEET_WIDTH) -> np.ndarray:
+    """The pictures of each mode as a block of rows, ``(H, W, 3) uint8``.
+
+    Each row holds ``max(1, min(longest list, width // w))`` pictures of
+    width ``w``; a mode's pictures wrap onto as many rows as they need, and
+    the next mode starts on a new row.
+    """
+    h, w = rows[0][0].shape[:2]
+    cols = max(1, min(max(len(r) for r in rows), width // w))
+    lines = [r[k:k + cols] for r in rows for k in range(0, len(r), cols)]
+    sheet = np.full((h * len(lines), w * cols, 3), 255, np.uint8)
+    for i, line in enumerate(lines):
+        for k, f in enumerate(line):
+            sheet[i * h:(i + 1) * h, k * w:(k + 1) * w] = f[:, :, :3]
+    return sheet
 
 
 def _entry(key: str, words: str) -> tuple[str, str]:
@@ -339,42 +376,98 @@ def _entry(key: str, words: str) -> tuple[str, str]:
     return colour, f"{name}: {words}"
 
 
-def _compose(view: np.ndarray, size, title: str, caption: str,
-             legend: list[tuple[str, str]], bottom: int, scale=None) -> np.ndarray:
+def _compose(view: np.ndarray, size, title: str, caption: list[str],
+             legend: list[tuple[str, str]], bands, scale=None, axes=None,
+             dimension: int = 3) -> np.ndarray:
     """Put ``view`` between a caption band and a legend band, ``(h, w, 3) uint8``.
 
-    ``scale`` (a colour map on [-1, 1]) adds a force scale at the top of the
-    view: a bar from -1 (compression) to +1 (tension), labelled in words.
+    ``caption`` is its lines (:func:`_caption_lines`); ``bands`` is ``(top, bottom)``,
+    the two bands' heights.  ``scale`` (a
+    colour map on [-1, 1]) adds a force scale as the first row of the legend
+    band: a bar from -1 (compression) to +1 (tension), labelled in words.
+    ``axes`` (the camera's screen axes ``right, up`` in the scene) adds an axis
+    triad in the lower left corner of the view, labelled with the model's axes
+    (a plane frame's x and y).
     """
     Image, ImageDraw, ImageFont = (require(f"PIL.{m}") for m in ("Image", "ImageDraw",
                                                                    "ImageFont"))
 
     w, h = size
+    top, bottom = bands
     img = Image.new("RGB", (w, h), PALETTE["background"][0])
-    img.paste(Image.fromarray(np.ascontiguousarray(view)), (0, _TOP))
+    img.paste(Image.fromarray(np.ascontiguousarray(view)), (0, top))
     d = ImageDraw.Draw(img)
     ink = PALETTE["text"][0]
     big, small, tiny = (ImageFont.load_default(size=s) for s in (15, 12, 10))
     d.text((10, 6), _fit(title, big, w - 20), font=big, fill=ink)
-    for k, line in enumerate(_wrap(caption, small, w - 20)[:2]):
-        d.text((10, 27 + 16 * k), line, font=small, fill=ink)
+    for k, line in enumerate(caption):
+        d.text((10, _TITLE + 16 * k), line, font=small, fill=ink)
+    y0 = h - bottom + 6
+    if scale is not None:
+        bar_w = 240
+        left, right = "compression  -1", "+1  tension"
+        bx = 10 + small.getlength(left) + 8
+        ramp = (np.asarray([scale(v)[:3] for v in np.linspace(0, 1, bar_w)]) * 255).astype(np.uint8)
+        img.paste(Image.fromarray(np.repeat(ramp[None], 12, axis=0)), (int(bx), y0 + 1))
+        d.rectangle([bx - 1, y0, bx + bar_w, y0 + 13], outline="#606060")
+        d.text((10, y0), left, font=small, fill=ink)
+        d.text((bx + bar_w + 8, y0), right, font=small, fill=ink)
+        d.line([(bx + bar_w / 2, y0 + 13), (bx + bar_w / 2, y0 + 16)], fill="#606060")
+        d.text((bx + bar_w + 8 + small.getlength(right) + 14, y0), "(0 in the middle: light grey)",
+               font=small, fill="#555555")
+        y0 += _SCALE_ROW
     for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
-        y = h - bottom + 6 + 17 * row
+        y = y0 + 17 * row
         d.rectangle([x, y + 1, x + 13, y + 13], fill=colour, outline="#606060")
         d.text((x + 19, y), words, font=small, fill=ink)
-    if scale is not None:
-        bar_w, bx, by = 240, (w - 240) // 2, _TOP + 10
-        ramp = (np.asarray([scale(v)[:3] for v in np.linspace(0, 1, bar_w)]) * 255).astype(np.uint8)
-        img.paste(Image.fromarray(np.repeat(ramp[None], 12, axis=0)), (bx, by))
-        d.rectangle([bx - 1, by - 1, bx + bar_w, by + 12], outline="#606060")
-        left, right = "compression  -1", "+1  tension"
-        d.text((bx - 8 - small.getlength(left), by - 1), left, font=small, fill=ink)
-        d.text((bx + bar_w + 8, by - 1), right, font=small, fill=ink)
-        d.text((bx + bar_w / 2 - 3, by + 14), "0", font=small, fill=ink)
+    if axes is not None:
+        _triad(d, axes, (34, top + (h - top - bottom) - 34), small, dimension)
     d.text((10, h - 14), _CAUTION_SHORT, font=tiny, fill="#555555")
-    d.line([(0, _TOP - 1), (w, _TOP - 1)], fill="#dddddd")
+    d.line([(0, top - 1), (w, top - 1)], fill="#dddddd")
     d.line([(0, h - bottom), (w, h - bottom)], fill="#dddddd")
     return np.asarray(img)
+
+
+#: Height in pixels of the colour scale's row in the legend band.
+_SCALE_ROW = 22
+
+
+def screen_axes(direction) -> tuple[np.ndarray, np.ndarray]:
+    """The screen's right and up, ``(3,)`` each, for a camera at ``direction`` from the frame.
+
+    Up is the scene's z (the model's up) as seen across the line of sight; a
+    camera looking straight down takes the scene's y as up.
+    """
+    view = -np.asarray(direction, float)
+    view = view / np.linalg.norm(view)
+    world_up = np.array([0.0, 0.0, 1.0]) if abs(view[2]) < 0.95 else np.array([0.0, 1.0, 0.0])
+    right = np.cross(view, world_up)
+    right /= np.linalg.norm(right)
+    return right, np.cross(right, view)
+
+
+def _triad(d, axes, origin, font, dimension: int, length: float = 24.0):
+    """Axis arrows at ``origin`` (pixels), each axis drawn as the camera sees it."""
+    right, up = axes
+    names = ("x", "y", "z") if dimension == 3 else ("x", None, "y")  # a plane frame's y is up
+    colour = "#404040"
+    ox, oy = origin
+    for a, name in enumerate(names):
+        if name is None:
+            continue
+        e = np.eye(3)[a]
+        dx, dy = length * float(e @ right), -length * float(e @ up)
+        if dx * dx + dy * dy < 9.0:          # seen end on: a dot and the name
+            d.ellipse([ox - 2, oy - 2, ox + 2, oy + 2], fill=colour)
+            d.text((ox + 4, oy - 14), name, font=font, fill=colour)
+            continue
+        d.line([(ox, oy), (ox + dx, oy + dy)], fill=colour, width=2)
+        n = np.hypot(dx, dy)
+        ux, uy = dx / n, dy / n
+        tip = (ox + dx, oy + dy)
+        d.polygon([tip, (tip[0] - 6 * ux + 3 * uy, tip[1] - 6 * uy - 3 * ux),
+                   (tip[0] - 6 * ux - 3 * uy, tip[1] - 6 * uy + 3 * ux)], fill=colour)
+        d.text((ox + dx * 1.35 - 3, oy + dy * 1.35 - 7), name, font=font, fill=colour)
 
 
 def _legend_layout(legend, w: int) -> list[tuple[float, int]]:
@@ -392,10 +485,21 @@ def _legend_layout(legend, w: int) -> list[tuple[float, int]]:
     return out
 
 
-def _legend_height(legend, w: int) -> int:
-    """Height of the legend band: its rows of entries and the caution line."""
+def _legend_height(legend, w: int, scale: bool = False) -> int:
+    """Height of the legend band: the colour scale, its rows of entries and the caution line."""
     rows = 1 + max((row for _, row in _legend_layout(legend, w)), default=0)
-    return 6 + 17 * rows + 18
+    return 6 + (_SCALE_ROW if scale else 0) + 17 * rows + 18
+
+
+def _caption_lines(caption: str, w: int, most: int) -> list[str]:
+    """The caption wrapped to width ``w``: every line, or ``most`` (at least 2) with the
+    last one cut with an ellipsis."""
+    font = require("PIL.ImageFont").load_default(size=12)
+    lines = _wrap(caption, font, w - 20)
+    most = max(int(most), 2)
+    if len(lines) <= most:
+        return lines
+    return lines[:most - 1] + [_fit(" ".join(lines[most - 1:]), font, w - 20)]
 
 
 def _wrap(text: str, font, width: float) -> list[str]:

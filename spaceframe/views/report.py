@@ -2,14 +2,18 @@
 
 The page itself (template, script, style) lives in ``viewers/report/`` as
 plain files, shipped inside the package as ``spaceframe/assets/report`` and
-read with :mod:`importlib.resources`.  This module only puts the audit's
-document into the template as JSON, escaped so that no id or name can end
-the script element, and inlines the script and the style: the file needs no
-network and no other file.
+read with :mod:`importlib.resources`.  This module writes what a reader needs
+as plain HTML (the verdict, the counts, the mechanisms, the states of
+self-stress, a bracing proposal, key members and cautions: every string
+escaped), so the page reads with scripts off; it puts the audit's document
+into the template as JSON, escaped so that no id or name can end the script
+element, for the 3D viewer that the script adds on top, and inlines the
+script and the style: the file needs no network and no other file.
 """
 
 from __future__ import annotations
 
+import html
 import json
 import re
 from functools import lru_cache
@@ -19,9 +23,10 @@ import numpy as np
 
 from .. import __version__
 from ..errors import SpaceframeError
+from ..naming import count, join_words
 from ..results import AuditResult
 from ..tolerances import DISPLAY
-from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of, view_direction
+from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of
 from .text import verdict
 
 __all__ = ["render_report", "report_document", "asset"]
@@ -38,7 +43,7 @@ LIMITS = (
     f"{AMPLITUDE:.0%} of the frame's size: the shape of a mechanism, not its size.",
 )
 
-_MARK = re.compile(r"/\*SPACEFRAME:(STYLE|SCRIPT|DATA)\*/")
+_MARK = re.compile(r"/\*SPACEFRAME:(STYLE|SCRIPT|DATA)\*/|<!--SPACEFRAME:([A-Z_]+)-->")
 
 
 @lru_cache(maxsize=None)
@@ -95,14 +100,14 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "ends": s.ends.tolist(),
             "extent": s.extent,
             "amplitude": AMPLITUDE,
-            "glyph": GLYPH,
+            "glyph": GLYPH * s.unit / s.extent,   # the stalk's length over the extent
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
             "moving": moving,
             "forces": [np.round(np.asarray(t, float), DISPLAY.force_decimals).tolist()
                        for t in result.self_stress_forces],
-            "views": [r6(view_direction(s.coords, u)) for u in s.modes],
-            "rest_view": r6(view_direction(s.coords)),
+            "views": [r6(s.view(i)) for i in range(len(s.modes))],
+            "rest_view": r6(s.view()),
         },
         "bracing": None if bracing is None else _bracing_document(bracing),
     }
@@ -164,7 +169,137 @@ def render_report(result: AuditResult, bracing=None) -> str:
         if end in text.lower():
             raise SpaceframeError(f"the report's {name} contains {end}>, which would end its "
                                   f"element early")
-    parts = {"STYLE": style, "SCRIPT": script,
-             "DATA": script_json(report_document(result, bracing))}
+    doc = report_document(result, bracing)
+    parts = {"STYLE": style, "SCRIPT": script, "DATA": script_json(doc), **page_text(doc)}
     # one pass: text put in is never searched again for markers
-    return _MARK.sub(lambda m: parts[m.group(1)], asset("template.html"))
+    return _MARK.sub(lambda m: parts[m.group(1) or m.group(2)], asset("template.html"))
+
+
+def page_text(doc: dict) -> dict:
+    """The report's words as HTML fragments, by marker name (every string escaped).
+
+    Parameters
+    ----------
+    doc : dict
+        From :func:`report_document`.
+
+    Returns
+    -------
+    dict of str
+        ``PAGE_TITLE``, ``TITLE``, ``SOURCE``, ``VERDICT``, ``CAUTION``,
+        ``COUNTS``, ``MECH_SUMMARY``, ``MECHANISMS``, ``STRESS_SUMMARY``,
+        ``STATES``, ``BRACING``, ``KEY_SUMMARY``, ``KEY_MEMBERS``,
+        ``CAUTIONS``, ``FOOTER``.
+    """
+    a = doc["audit"]
+    e = html.escape
+    d = a["dimension"]
+    name = a["name"] or "(unnamed frame)"
+    counts = [
+        ("joints", a["joints"], f"points where members meet, each free to move in {d} "
+                                f"directions unless held"),
+        ("members", a["members"], "pin-ended bars; each keeps one distance fixed"),
+        ("restraints", a["restraints"], "independent directions held by the supports"),
+        ("counting rule", f"{a['maxwell']:+d}" if a["maxwell"] else "0",
+         f"members + restraints - {d} x joints: negative proves mechanisms; zero or more "
+         f"proves nothing"),
+        ("rank", a["rank"], "independent member forces the joints can feel (rank of the "
+                            "equilibrium matrix)"),
+        ("mechanisms", a["mechanisms"], "independent ways the joints can move with no member "
+                                        "changing length"),
+        ("rigid-body modes", a["rigid_body_modes"], "of those, the whole frame moving as one "
+                                                    "body on its supports"),
+        ("internal mechanisms", a["internal_mechanisms"], "the rest: the frame changes shape"),
+        ("states of self-stress", a["self_stress_states"], "independent sets of member forces "
+                                                           "with no load: the degree of "
+                                                           "redundancy"),
+    ]
+    q = len(doc["states"])
+    stress = ("None: no member carries force without load (the frame, as far as it is held, is "
+              "statically determinate)." if a["self_stress_states"] == 0 else
+              count(a["self_stress_states"], "independent state of self-stress",
+                    "independent states of self-stress")
+              + ("" if a["self_stress_modes_complete"] else f" (the first {q} computed)")
+              + ". Forces are scaled so the largest is 1; + is tension (the member pulls), "
+                "- compression (it pushes).")
+    key = a["key_members"] or []
+    cautions = [a["caution"], *doc["limits"], *(a["warnings"] or [])]
+    if (a.get("rank_decision") or {}).get("narrow"):
+        cautions.append("The rank decision was narrow: the result is sensitive to the "
+                        "geometry's precision.")
+    mech = ("None: every joint is held in every direction by members and supports."
+            if a["mechanisms"] == 0 else
+            f"{count(a['mechanisms'], 'mechanism')} ({a['internal_mechanisms']} internal, "
+            f"{a['rigid_body_modes']} rigid-body), numbered as the audit lists them; the 3D "
+            f"view above (with scripts on) shows each one moving.")
+    kind = "space frame" if d == 3 else "plane frame analysed in its plane"
+    return {
+        "PAGE_TITLE": e(f"spaceframe report: {a['name'] or 'frame'}"),
+        "TITLE": e(name),
+        "SOURCE": e((f"Model {a['source']}; " if a.get("source") else "")
+                    + f"{kind}; lengths in {a['units']}."),
+        "VERDICT": f'<p id="verdict" class="verdict{" held" if a["stable"] else ""}">'
+                   f'{e(doc["verdict"])}</p>',
+        "CAUTION": e(a["caution"]),
+        "COUNTS": "\n".join(_row([k, (v, "num"), m]) for k, v, m in counts),
+        "MECH_SUMMARY": e(mech),
+        "MECHANISMS": "\n".join(
+            _row([(i + 1, "num"), m["kind"], m.get("description") or "",
+                  (join_words(m.get("joints") or [], most=8), "ids"),
+                  m.get("order") or "(rigid-body)"])
+            for i, m in enumerate(a["mechanism_modes"])),
+        "STRESS_SUMMARY": e(stress),
+        "STATES": "\n".join(
+            _row([(i + 1, "num"), (st["members"], "num"),
+                  (_forces(st["tension"], st["more_tension"]), "ids"),
+                  (_forces(st["compression"], st["more_compression"]), "ids")])
+            for i, st in enumerate(doc["states"])),
+        "BRACING": _bracing_html(doc["bracing"], a["units"]) if doc["bracing"] else "",
+        "KEY_SUMMARY": e(
+            "No key member: every member takes part in some state of self-stress, so losing "
+            "any single one leaves no new mechanism." if not key else
+            f"{count(len(key), 'member')} carr{'ies' if len(key) == 1 else 'y'} no force in any "
+            f"state of self-stress: losing any one of them leaves a mechanism."),
+        "KEY_MEMBERS": e(", ".join(key)),
+        "CAUTIONS": "\n".join(f"<li>{e(c)}</li>" for c in cautions),
+        "FOOTER": e(f"Made by spaceframe {doc['version']}."),
+    }
+
+
+def _row(cells) -> str:
+    """One table row; a cell is its text, or ``(text, css class)``."""
+    out = []
+    for c in cells:
+        text, cls = c if isinstance(c, tuple) else (c, None)
+        attr = f' class="{cls}"' if cls else ""
+        out.append(f"<td{attr}>{html.escape(str(text))}</td>")
+    return "<tr>" + "".join(out) + "</tr>"
+
+
+def _forces(entries, more: int) -> str:
+    text = ", ".join(f"{mid} {t:+.3f}" for mid, t in entries)
+    return (text + (f" and {more} more" if more > 0 else "")) or "none"
+
+
+def _bracing_html(b: dict, units: str) -> str:
+    """The proposal's section: summary, table of members and restraints, caution."""
+    e = html.escape
+    n, r = len(b["added"]), len(b["restraints_added"])
+    summary = (f"{count(n, 'member')} ({b['total_length']:.3f} {units} in all)"
+               + (f" and {count(r, 'added restraint direction')}" if r else "")
+               + ": the fewest, then the shortest, that remove what the candidates can. "
+                 f"After them: {b['after_verdict']}")
+    rows = [_row([m["id"], m["ends"][0], m["ends"][1], (f"{m['length']:.3f}", "num"),
+                  m.get("location") or "", ", ".join(str(k) for k in m.get("modes") or [])])
+            for m in b["added"]]
+    rows += [_row(["restraint", q["joint"], "", "",
+                   "hold along (" + ", ".join(f"{v:.2f}" for v in q["direction"]) + ")",
+                   ", ".join(str(k) for k in q.get("modes") or [])])
+             for q in b["restraints_added"]]
+    rows += [_row(["left", "", "", "", t, ""]) for t in b["remaining"]]
+    return ('  <section id="bracing-section">\n    <h2>Proposed bracing</h2>\n'
+            f'    <p id="bracing-summary">{e(summary)}</p>\n'
+            '    <table id="bracing"><thead><tr><th>id</th><th>from</th><th>to</th>'
+            '<th>length</th><th>where</th><th>modes acted on</th></tr></thead><tbody>\n'
+            + "\n".join(rows) + "\n</tbody></table>\n"
+            f'    <p id="bracing-caution" class="caution">{e(b["caution"])}</p>\n  </section>')

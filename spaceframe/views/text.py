@@ -8,6 +8,8 @@ from pathlib import Path
 import numpy as np
 
 from ..analysis.prestress import NOT_STIFFENED, STIFFENED
+from ..naming import count as counted
+from ..naming import join_words, natural_sorted, numbered_only, placed
 from ..results import CAUTION, AuditResult
 
 __all__ = ["render_audit", "verdict", "joint_label", "is_imported"]
@@ -55,18 +57,18 @@ def _traced(r: AuditResult, text: str) -> str:
 def verdict(r: AuditResult) -> str:
     """One line: is the frame held, and if not, how it can move."""
     if r.stable:
-        extra = (f"; {r.self_stress_states} state{_s(r.self_stress_states)} of self-stress"
+        extra = (f"; {counted(r.self_stress_states, 'state')} of self-stress"
                  if r.self_stress_states else "; statically determinate")
         return (f"HELD - no mechanism: every joint is held in every direction by members and "
                 f"supports{extra}.")
     if r.rigid:
         return (f"NOT HELD - the frame keeps its shape but can move as one rigid body on its "
-                f"supports ({r.rigid_body_modes} rigid-body mode{_s(r.rigid_body_modes)}): "
+                f"supports ({counted(r.rigid_body_modes, 'rigid-body mode')}): "
                 f"add restraints.")
-    tail = (f" and {r.rigid_body_modes} rigid-body mode{_s(r.rigid_body_modes)}"
+    tail = (f" and {counted(r.rigid_body_modes, 'rigid-body mode')}"
             if r.rigid_body_modes else "")
-    return (f"MECHANISM - {r.internal_mechanisms} internal mechanism"
-            f"{_s(r.internal_mechanisms)}{tail}: the frame can change shape without any member "
+    return (f"MECHANISM - {counted(r.internal_mechanisms, 'internal mechanism')}"
+            f"{tail}: the frame can change shape without any member "
             f"changing length. Brace or restrain it before sizing anything.")
 
 
@@ -87,14 +89,14 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     title = f.name or "(unnamed frame)"
     lines.append(f"Stability audit: {title}" + (f"  [{f.source}]" if f.source else ""))
     kind = "space frame" if d == 3 else "plane frame (analysed in its plane)"
-    lines.append(f"{kind}; {r.joints} joints, {r.members} members, {r.restraints} restrained "
-                 f"directions; lengths in {f.units}")
+    lines.append(f"{kind}; {counted(r.joints, 'joint')}, {counted(r.members, 'member')}, "
+                 f"{counted(r.restraints, 'restrained direction')}; lengths in {f.units}")
     lines.append("")
     lines.append(f"Counting rule (Maxwell): members + restraints - {d} x joints = "
                  f"{r.members} + {r.restraints} - {d * r.joints} = {r.maxwell:+d}")
     if r.maxwell < 0:
-        lines.append(f"  Negative: the frame has at least {-r.maxwell} mechanism"
-                     f"{_s(-r.maxwell)}, whatever its geometry.")
+        lines.append(f"  Negative: the frame has at least {counted(-r.maxwell, 'mechanism')}, "
+                     f"whatever its geometry.")
     else:
         lines.append("  Zero or more is necessary for a frame that is held, not sufficient: "
                      "members can be placed where they do no work. The rank below decides.")
@@ -118,13 +120,13 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
         shown, last, i = 0, None, 0
         while i < r.mechanisms:
             if shown >= max_modes:
-                lines.append(f"  ... {r.mechanisms - i} more modes (--all lists them; "
+                lines.append(f"  ... {counted(r.mechanisms - i, 'more mode')} (--all lists them; "
                              f"--json has them all)")
                 break
             kind = r.mode_kinds[i]
             if kind != last:
                 count = sum(1 for k in r.mode_kinds if k == kind)
-                lines.append(f"  {kind} ({count} mode{_s(count)}):")
+                lines.append(f"  {kind} ({counted(count, 'mode')}):")
                 last = kind
             run = _single_joint_run(r, i)
             if len(run) > 3:  # many joints each free the same way: one line for them all
@@ -161,7 +163,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                               for mid, t in carrying[:max_entries])
             more = f", and {len(carrying) - max_entries} more" if len(carrying) > max_entries \
                 else ""
-            lines.append(f"  state {i + 1} ({len(carrying)} member{_s(len(carrying))}): "
+            lines.append(f"  state {i + 1} ({counted(len(carrying), 'member')}): "
                          f"{shown}{more}")
         shown_states = min(q, max_modes)
         if shown_states < r.self_stress_states:
@@ -217,16 +219,19 @@ def _frame_grouped(r: AuditResult, joints: list[str]) -> str:
     """``L1, L2 of frames 1-6 (12 joints)`` when the same joints of several frames are listed."""
     f = r.frame
     frames = f.tag("joint", "frame")
+    index = {jid: i for i, jid in enumerate(f.joint_ids)}
+    if numbered_only(f.joint_ids, tagged=bool(f.joint_tags)):   # ids that say nothing of where
+        size = f.size() or 1.0
+        return join_words([placed(j, f.coords[index[j]], size) for j in joints], most=8)
     if not frames or len(joints) < 4:
         return ", ".join(joints)
-    index = {jid: i for i, jid in enumerate(f.joint_ids)}
     by_frame: dict[str, list[str]] = {}
     for jid in joints:
         fr = frames[index[jid]]
         if not fr or "." not in jid:
             return ", ".join(joints)
         by_frame.setdefault(fr, []).append(jid.split(".", 1)[1])
-    locals_ = {tuple(sorted(v)) for v in by_frame.values()}
+    locals_ = {tuple(natural_sorted(v)) for v in by_frame.values()}
     order = [fr for fr in dict.fromkeys(frames) if fr in by_frame]
     span = f"frames {order[0]}-{order[-1]}" if len(order) > 2 else \
         " and ".join(f"frame {fr}" for fr in order)
@@ -276,7 +281,3 @@ def _direction(u: np.ndarray, d: int) -> str:
     if abs(u[a]) >= 0.98 * n:
         return f"{'+' if u[a] > 0 else '-'}{_AXES[a]} {n:.2f}"
     return "(" + ", ".join(f"{x:+.2f}" for x in u) + ")"
-
-
-def _s(k: int) -> str:
-    return "" if k == 1 else "s"

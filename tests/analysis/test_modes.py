@@ -80,17 +80,22 @@ def extruded_frames(n_frames=5, spacing=4.0):
 
 
 @pytest.mark.parametrize("method", METHODS)
-def test_row_of_unbraced_frames_has_one_lean_mode(method):
-    """Derived: frames pinned at their bearings and tied only at the top lean together
-    about their bearing lines, one mode for the one unrestrained longitudinal direction;
-    the middle bottom-chord joints are each free out of plane on their own."""
+def test_row_of_unbraced_frames_slides_line_by_line(method):
+    """Derived: every member of a plane truss lies in its plane, so each joint is free out
+    of that plane to first order; a line of joints tied frame to frame along the building
+    then slides as one, and nothing else holds it.  Frames pinned at their bearings and
+    tied only at the three top joints: three tie lines, each its own mode (not a lean of
+    whole frames), and the five bottom-chord mid joints each free on their own."""
     r = audit(extruded_frames(), method=method)
     kinds = list(r.mode_kinds)
-    assert kinds.count("lean") == 1
-    lean = r.mode_info[kinds.index("lean")]
-    assert abs(lean.direction[1]) > 0.9                      # along the building (y)
-    assert set(lean.frames) == {"1", "2", "3", "4", "5"}
-    assert "lean together" in lean.description
+    assert "lean" not in kinds
+    lines = [i for i in r.mode_info if i.kind == "tie-line"]
+    assert len(lines) == 3
+    for info in lines:
+        assert len(info.lines) == 1 and len(info.joints) == 5     # one joint in each frame
+        assert abs(info.direction[1]) > 0.9                      # along the building (y)
+        assert set(info.frames) == {"1", "2", "3", "4", "5"}
+        assert "slides along the building as one" in info.description
     assert kinds.count("out-of-plane") == 5                  # the five bottom-chord mid joints
 
 
@@ -169,21 +174,30 @@ def test_json_carries_kind_joints_description_order(tmp_path):
 
 
 def test_extruded_roof_is_worded_in_the_trade_s_terms():
-    """The unbraced demo roof (six trusses, purlins only): one lean of the whole row, the
-    bottom-chord joints free out of plane, the roof slides along the building; the modes
-    that only the 3D assembly has are said to be so (derived from the extrusion: nothing
-    ties the bottom chords and nothing holds the row along the hall)."""
+    """The unbraced demo roof (six trusses, purlins only): each tied line slides along the
+    building on its own, named by its ties' role, the bottom-chord joints free out of
+    plane, the roof slides along the building; the modes that only the 3D assembly has are
+    said to be so (derived from the extrusion: nothing ties the bottom chords and nothing
+    holds the row along the hall)."""
     from pathlib import Path
     from spaceframe import load
     from spaceframe.views.text import render_audit
     path = Path(__file__).resolve().parents[2] / "models" / "hall_roof_unbraced.toml"
     r = audit(load(path))
     kinds = list(r.mode_kinds)
-    assert kinds.count("lean") == 1
-    lean = r.mode_info[kinds.index("lean")]
-    assert lean.frames == ("1", "2", "3", "4", "5", "6")
-    assert "Frames 1-6 can lean together along the building" in lean.description
-    assert "only in the 3D assembly" in lean.description
+    assert "lean" not in kinds and "sway" not in kinds
+    lines = [i for i in r.mode_info if i.kind == "tie-line"]
+    # seven tied lines slide; with the whole roof's slide, six of them are internal modes
+    assert len(lines) == 6
+    for info in lines:
+        assert info.frames == ("1", "2", "3", "4", "5", "6")
+        (line,) = info.lines
+        role = {"U1": "purlin", "U2": "purlin", "U4": "purlin", "U5": "purlin", "U3": "ridge",
+                "L0": "eaves", "L6": "eaves"}[line]
+        assert f"The {role} line at {line} (frames 1-6) slides along the building" \
+            in info.description
+        assert "only in the 3D assembly" in info.description
+        assert "against each other" not in info.description
     (slide,) = [i for i in r.mode_info if i.kind == "rigid-body"]
     assert "along the building" in slide.description
     text = render_audit(r)

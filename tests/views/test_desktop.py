@@ -83,3 +83,23 @@ def test_view_without_a_display_says_what_to_do(monkeypatch):
     res = CliRunner().invoke(main, ["view", str(MODELS / "canopy_sway.toml")])
     assert res.exit_code == 2 and "spaceframe report" in res.output
     assert "Traceback" not in res.output
+
+
+def test_controls_sit_beside_the_frame_and_counts_read_right(canopy_viewer):
+    """The frame has its own viewport on the left; every slider and switch lives in the
+    panel beside it, so none covers the frame.  The window's title names the model file,
+    and one mechanism is "1 mechanism"."""
+    from spaceframe.views.desktop import VIEW_SHARE
+
+    v = canopy_viewer
+    view, panel = v.plotter.renderers[0], v.plotter.renderers[1]
+    assert view.GetViewport()[2] == pytest.approx(VIEW_SHARE)
+    assert panel.GetViewport()[0] == pytest.approx(VIEW_SHARE)
+    widgets = list(v.plotter.widgets.slider_widgets) + list(v.plotter.widgets.button_widgets)
+    assert len(widgets) == 5                     # mode, amplitude, state; play, bracing
+    for w in widgets:
+        assert w.GetCurrentRenderer() is panel
+    assert "canopy_sway.toml" in v.plotter.title
+    words = v._caption()
+    assert "1 mechanism," in words and "1 mechanisms" not in words
+    assert "2 states of self-stress" in words

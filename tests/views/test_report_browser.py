@@ -194,3 +194,41 @@ def test_held_frame_has_no_bracing_section(browser, tmp_path):
         assert errors == []
     finally:
         page.close()
+
+
+def test_report_reads_with_scripts_off(browser, tmp_path):
+    """With JavaScript disabled the verdict, the counts, every mechanism and the bracing
+    proposal are on the page as plain HTML; the empty 3D view is not shown, and a note
+    says it needs scripts."""
+    from spaceframe.analysis.bracing import recommend_bracing
+
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    result = spaceframe.audit(frame)
+    proposal = recommend_bracing(frame)
+    path = tmp_path / "noscript.html"
+    path.write_text(render_report(result, proposal), encoding="utf-8")
+    context = browser.new_context(java_script_enabled=False, viewport={"width": 1300,
+                                                                        "height": 1000})
+    page = context.new_page()
+    try:
+        page.goto(path.as_uri())
+        assert page.title().startswith("spaceframe report: Footpath canopy")
+        assert page.inner_text("#verdict").startswith("MECHANISM - 1 internal mechanism")
+        rows = page.locator("#counts tbody tr")
+        assert rows.count() == 9
+        assert page.inner_text("#counts").count("\n") >= 9
+        text = page.inner_text("#counts")
+        assert f"mechanisms\t{result.mechanisms}" in text
+        assert f"states of self-stress\t{result.self_stress_states}" in text
+        mech = page.locator("#mechanisms tbody tr")
+        assert mech.count() == result.mechanisms
+        assert result.mode_info[0].description in mech.nth(0).inner_text()
+        assert page.locator("#states tbody tr").count() == result.self_stress_forces.shape[0]
+        assert page.locator("#bracing tbody tr").count() == len(proposal.members_added)
+        assert "competent engineer" in page.inner_text("#cautions")
+        assert not page.is_visible("#viewer-section")
+        assert "needs JavaScript" in page.inner_text("main")
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.screenshot(path=str(ARTIFACTS / "report_canopy_noscript.png"), full_page=True)
+    finally:
+        context.close()

@@ -1,4 +1,5 @@
-// spaceframe report: builds the tables from the audit document and runs the 3D view.
+// spaceframe report: the 3D view, added on top of a page whose words and tables are plain
+// HTML (written by spaceframe/views/report.py, so the report reads with scripts off).
 // Plain canvas 2D with its own orthographic projection; no library, no network.
 // Every string from the document goes in through textContent, never as markup.
 "use strict";
@@ -20,88 +21,7 @@
     if (cls) e.className = cls;
     return e;
   }
-  function row(cells) {
-    const tr = el("tr");
-    for (const c of cells) {
-      const td = el("td", c.text !== undefined ? c.text : c, c.cls);
-      tr.appendChild(td);
-    }
-    return tr;
-  }
   function plural(n, word) { return n + " " + word + (n === 1 ? "" : "s"); }
-  function listIds(ids, most) {
-    if (ids.length <= most) return ids.join(", ");
-    return ids.slice(0, most).join(", ") + " and " + (ids.length - most) + " more";
-  }
-
-  // ---- the text of the report ---------------------------------------------------------
-  function fillText() {
-    document.title = "spaceframe report: " + (audit.name || "frame");
-    document.getElementById("title").textContent = audit.name || "(unnamed frame)";
-    document.getElementById("source").textContent =
-      (audit.source ? "Model " + audit.source + "; " : "") +
-      (audit.dimension === 3 ? "space frame" : "plane frame analysed in its plane") +
-      "; lengths in " + audit.units + ".";
-    const v = document.getElementById("verdict");
-    v.textContent = doc.verdict;
-    if (audit.stable) v.classList.add("held");
-    document.getElementById("caution-top").textContent = audit.caution;
-
-    const d = audit.dimension;
-    const meanings = [
-      ["joints", audit.joints, "points where members meet, each free to move in " + d + " directions unless held"],
-      ["members", audit.members, "pin-ended bars; each keeps one distance fixed"],
-      ["restraints", audit.restraints, "independent directions held by the supports"],
-      ["counting rule", (audit.maxwell > 0 ? "+" : "") + audit.maxwell,
-        "members + restraints - " + d + " x joints: negative proves mechanisms; zero or more proves nothing"],
-      ["rank", audit.rank, "independent member forces the joints can feel (rank of the equilibrium matrix)"],
-      ["mechanisms", audit.mechanisms, "independent ways the joints can move with no member changing length"],
-      ["rigid-body modes", audit.rigid_body_modes, "of those, the whole frame moving as one body on its supports"],
-      ["internal mechanisms", audit.internal_mechanisms, "the rest: the frame changes shape"],
-      ["states of self-stress", audit.self_stress_states, "independent sets of member forces with no load: the degree of redundancy"],
-    ];
-    const tb = document.querySelector("#counts tbody");
-    for (const [k, val, m] of meanings) tb.appendChild(row([k, { text: val, cls: "num" }, m]));
-
-    const ms = document.getElementById("mech-summary");
-    ms.textContent = audit.mechanisms === 0
-      ? "None: every joint is held in every direction by members and supports."
-      : plural(audit.mechanisms, "mechanism") + " (" + audit.internal_mechanisms + " internal, " +
-        audit.rigid_body_modes + " rigid-body), numbered as the audit lists them. Choose one in the view to see it move.";
-    const mb = document.querySelector("#mechanisms tbody");
-    audit.mechanism_modes.forEach((m, i) => {
-      mb.appendChild(row([{ text: i + 1, cls: "num" }, m.kind, m.description || "",
-        { text: listIds(m.joints || [], 8), cls: "ids" }, m.order || "(rigid-body)"]));
-    });
-
-    const ss = document.getElementById("stress-summary");
-    const q = doc.states.length;
-    ss.textContent = audit.self_stress_states === 0
-      ? "None: no member carries force without load (the frame, as far as it is held, is statically determinate)."
-      : plural(audit.self_stress_states, "independent state") + " of self-stress" +
-        (audit.self_stress_modes_complete ? "" : " (the first " + q + " computed)") +
-        ". Forces are scaled so the largest is 1; + is tension (the member pulls), - compression (it pushes).";
-    const sb = document.querySelector("#states tbody");
-    doc.states.forEach((s, i) => {
-      const fmt = (list, more) => (list.map(e => e[0] + " " + (e[1] > 0 ? "+" : "") + e[1].toFixed(3)).join(", ") +
-        (more > 0 ? " and " + more + " more" : "")) || "none";
-      sb.appendChild(row([{ text: i + 1, cls: "num" }, { text: s.members, cls: "num" },
-        { text: fmt(s.tension, s.more_tension), cls: "ids" }, { text: fmt(s.compression, s.more_compression), cls: "ids" }]));
-    });
-
-    const key = audit.key_members || [];
-    document.getElementById("key-summary").textContent = key.length === 0
-      ? "No key member: every member takes part in some state of self-stress, so losing any single one leaves no new mechanism."
-      : plural(key.length, "member") + " carry no force in any state of self-stress: losing any one of them leaves a mechanism.";
-    document.getElementById("key-members").textContent = key.join(", ");
-
-    const cl = document.getElementById("cautions");
-    for (const c of [audit.caution].concat(doc.limits, audit.warnings || [])) cl.appendChild(el("li", c));
-    if (audit.rank_decision && audit.rank_decision.narrow)
-      cl.appendChild(el("li", "The rank decision was narrow: the result is sensitive to the geometry's precision."));
-    document.getElementById("footer").textContent = "Made by spaceframe " + doc.version + ".";
-  }
-
   // ---- the 3D view ----------------------------------------------------------------------
   const canvas = document.getElementById("view");
   const ctx = canvas.getContext("2d");
@@ -400,22 +320,6 @@
   // The proposal: a table, and a toggle that draws the braces and gives the audit after them.
   function fillBracing() {
     document.getElementById("bracing-controls").hidden = false;
-    document.getElementById("bracing-section").hidden = false;
-    const n = bracing.added.length, r = bracing.restraints_added.length;
-    document.getElementById("bracing-summary").textContent =
-      plural(n, "member") + " (" + bracing.total_length.toFixed(3) + " " + audit.units + " in all)" +
-      (r ? " and " + plural(r, "added restraint direction") : "") +
-      ": the fewest, then the shortest, that remove what the candidates can. After them: " +
-      bracing.after_verdict;
-    const tb = document.querySelector("#bracing tbody");
-    for (const b of bracing.added)
-      tb.appendChild(row([b.id, b.ends[0], b.ends[1], { text: b.length.toFixed(3), cls: "num" },
-        b.location || "", (b.modes || []).join(", ")]));
-    for (const q of bracing.restraints_added)
-      tb.appendChild(row(["restraint", q.joint, "", "", "hold along (" + q.direction.map(v => v.toFixed(2)).join(", ") + ")",
-        (q.modes || []).join(", ")]));
-    for (const t of bracing.remaining) tb.appendChild(row(["left", "", "", "", t, ""]));
-    document.getElementById("bracing-caution").textContent = bracing.caution;
     const toggle = document.getElementById("bracing-toggle");
     const after = document.getElementById("bracing-after");
     toggle.addEventListener("click", () => {
@@ -476,7 +380,7 @@
     atRest,
   };
 
-  fillText();
+  document.getElementById("viewer-section").hidden = false;
   fillLists();
   fit(geo.rest_view);
   legend();
