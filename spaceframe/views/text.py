@@ -51,7 +51,8 @@ def _traced(r: AuditResult, text: str) -> str:
         token = m.group(0)
         core = token.rstrip(".:")
         return joint_label(r.frame, core) + token[len(core):] if core in ids else token
-    return re.sub(r"[^\s,;()]+", label, text)
+    # an id already followed by its coordinates (naming.placed) is left as it is
+    return re.sub(r"[^\s,;()]+(?! \()", label, text)
 
 
 def verdict(r: AuditResult) -> str:
