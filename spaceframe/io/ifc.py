@@ -154,7 +154,7 @@ def read_ifc(path, *, tol: Tolerances = DEFAULT, merge=None, split=True) -> Fram
 
 def _length_unit(f, source: str) -> tuple[str, float]:
     """The model's unit name and the factor from the file's numbers to it."""
-    import ifcopenshell.util.unit as unit_util
+    unit_util = require("ifcopenshell.util.unit")
 
     unit = unit_util.get_project_unit(f, "LENGTHUNIT")
     if unit is None:
@@ -177,7 +177,7 @@ def _project_name(f) -> str:
 
 def _model_settings(f) -> dict:
     """The ``SpaceframeModel`` property set of the analysis model, where there is one."""
-    import ifcopenshell.util.element as element
+    element = require("ifcopenshell.util.element")
 
     for model in f.by_type("IfcStructuralAnalysisModel"):
         props = element.get_psets(model).get(_MODEL)
@@ -187,7 +187,7 @@ def _model_settings(f) -> dict:
 
 
 def _placement(product) -> np.ndarray:
-    import ifcopenshell.util.placement as placement
+    placement = require("ifcopenshell.util.placement")
 
     if getattr(product, "ObjectPlacement", None) is None:
         return np.eye(4)
@@ -228,7 +228,7 @@ def _ids(products) -> list[str]:
 
 def _tags(products, ids) -> dict[str, list[str]]:
     """Tags of the products: ``ifc_guid``, ``ifc_name`` and the ``SpaceframeTags`` set."""
-    import ifcopenshell.util.element as element
+    element = require("ifcopenshell.util.element")
 
     rows = []
     for p, pid in zip(products, ids):
@@ -326,7 +326,7 @@ def _held(value, threshold: float) -> bool:
 
 def _supports(connections, joint_ids, tol: Tolerances, source: str):
     """Restrained directions ``(k,)`` joint indices and ``(k, 3)`` rows from the conditions."""
-    import ifcopenshell.util.placement as placement
+    placement = require("ifcopenshell.util.placement")
 
     rj, rd = [], []
     for j, c in enumerate(connections):
@@ -347,7 +347,7 @@ def _supports(connections, joint_ids, tol: Tolerances, source: str):
 
 def _axis(element, scale: float) -> np.ndarray | None:
     """The two ends ``(2, 3)`` of an element's axis, placed, or None."""
-    import ifcopenshell.util.placement as placement
+    placement = require("ifcopenshell.util.placement")
 
     shape = getattr(element, "Representation", None)
     where_ = _placement(element)
