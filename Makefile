@@ -19,10 +19,12 @@ $(STAMP): $(CORE)
 	$(BIN)/python -m pip install --quiet -e '.[test]'
 	touch $(STAMP)
 
-## demo: audit the demo models (a held frame, then one with a sway mechanism)
+## demo: audit the demo models (a held frame, then one with a sway mechanism), then forces
 demo: $(CORE)
 	$(BIN)/spaceframe audit models/plant_platform.toml
 	$(BIN)/spaceframe audit models/canopy_sway.toml; test $$? -eq 1
+	$(BIN)/spaceframe forces models/hall_truss.toml
+	$(BIN)/spaceframe forces models/canopy_sway.toml; test $$? -eq 1
 
 ## test: run the test suite
 test: $(STAMP)

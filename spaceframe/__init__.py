@@ -14,7 +14,7 @@ from .tolerances import DEFAULT as DEFAULT_TOLERANCES, Tolerances
 
 __version__ = "0.1.0"
 
-__all__ = ["load", "audit", "Frame", "Tolerances", "DEFAULT_TOLERANCES", "SpaceframeError",
+__all__ = ["load", "audit", "forces", "Frame", "Tolerances", "DEFAULT_TOLERANCES", "SpaceframeError",
            "ModelError", "SpaceframeWarning", "__version__"]
 
 
@@ -28,3 +28,10 @@ def audit(frame, **kw):
     """Audit a frame's stability (see :func:`spaceframe.analysis.audit.audit`)."""
     from .analysis.audit import audit as _audit
     return _audit(frame, **kw)
+
+
+def forces(frame, cases=None, **kw):
+    """Member forces and reactions under the frame's load cases (see
+    :func:`spaceframe.analysis.forces.forces`)."""
+    from .analysis.forces import forces as _forces
+    return _forces(frame, cases, **kw)

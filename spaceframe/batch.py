@@ -492,12 +492,15 @@ def audit_task(task: Task) -> dict:
         except Exception as exc:  # a fault in spaceframe: reported in the row, batch goes on
             return error_row(task, f"internal error: {type(exc).__name__}: {exc}")
     first = result.mode_info[0] if result.mode_info else None
+    kind = result.mode_kinds[0] if result.mode_kinds else ""
+    if first is None and result.one_way is not None and result.one_way.info is not None:
+        first, kind = result.one_way.info, "one-way"   # one-way members that go slack
     row = {"model": task.model, "variant": task.variant.name, "joints": result.joints,
            "members": result.members, "restraints": result.restraints,
            "mechanisms": result.mechanisms, "rigid_body_modes": result.rigid_body_modes,
            "internal_mechanisms": result.internal_mechanisms,
            "self_stress_states": result.self_stress_states, "stable": result.stable,
-           "mechanism_kind": result.mode_kinds[0] if result.mode_kinds else "",
+           "mechanism_kind": kind,
            "mechanism": first.description if first is not None else "",
            "seconds": round(time.perf_counter() - start, 4), "error": None,
            "warnings": " | ".join(str(w.message) for w in caught)}

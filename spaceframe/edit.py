@@ -160,7 +160,9 @@ def add_members(frame: Frame, ids: Sequence[str], ends, *,
         frame, member_ids=frame.member_ids + ids, ends=np.vstack([frame.ends, new_ends]),
         member_tags=_extended(frame.member_tags, frame.n_members, tags, k, "member",
                               frame.source),
-        member_properties=props)
+        member_properties=props,
+        prestress=None if frame.prestress is None else np.concatenate([frame.prestress,
+                                                                       np.zeros(k)]))
 
 
 def remove_members(frame: Frame, members) -> Frame:
@@ -188,7 +190,18 @@ def remove_members(frame: Frame, members) -> Frame:
         member_tags={key: tuple(v for v, k in zip(labels, keep) if k)
                      for key, labels in frame.member_tags.items()},
         member_properties={key: v[keep] for key, v in frame.member_properties.items()},
+        prestress=_kept_prestress(frame, keep),
         lines={key: line for key, line in frame.lines.items() if key not in gone})
+
+
+def _kept_prestress(frame: Frame, keep: np.ndarray):
+    """The declared prestress of the members kept (None when none of them carried any).
+
+    What is left may no longer be in equilibrium: the audit checks it.
+    """
+    if frame.prestress is None or not np.any(frame.prestress[keep]):
+        return None
+    return frame.prestress[keep]
 
 
 def move_joints(frame: Frame, joints: Sequence[int], coords) -> Frame:

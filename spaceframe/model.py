@@ -14,11 +14,18 @@ from typing import Mapping, Sequence
 import numpy as np
 
 from .errors import ModelError
+from .loads import LoadSet
 
-__all__ = ["Frame", "UNITS", "bounding_diagonal"]
+__all__ = ["Frame", "UNITS", "CARRIES", "CARRIES_TAG", "one_way_members", "bounding_diagonal"]
 
 #: Units of length a model may declare.  Results never depend on them.
 UNITS = ("m", "mm", "cm", "ft", "in")
+
+#: The member tag that makes members one-way, and its labels: a ``tension``
+#: member (rod, cable, guy) carries tension only, a ``compression`` member
+#: (prop, bearing) compression only; a member with no label carries both.
+CARRIES_TAG = "carries"
+CARRIES = ("tension", "compression")
 
 
 @dataclass(frozen=True, eq=False)
@@ -61,7 +68,16 @@ class Frame:
         describe results; they never change the numbers.
     member_properties : mapping of str to (m,) float
         Numeric member properties; ``"EA"`` (axial stiffness, any consistent
-        unit) weights the soft-mode search.  Absent: uniform.
+        unit) weights the soft-mode search and the forces.  Absent: uniform.
+    loads : LoadSet or None
+        The load cases (:mod:`spaceframe.loads`), joints named by id; None
+        when the model gives none.
+    prestress : (m,) float or None
+        The prestress the frame is built and kept in, as the model declares
+        it (member forces, + tension, in any consistent unit): a state of
+        self-stress the frame really carries (pretensioned rods, a
+        tensegrity).  Only a declared prestress lets the audit count a
+        mechanism it stiffens as held.  None: no prestress is designed in.
     """
 
     joint_ids: tuple[str, ...]
@@ -78,6 +94,8 @@ class Frame:
     joint_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_tags: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     member_properties: Mapping[str, np.ndarray] = field(default_factory=dict)
+    loads: LoadSet | None = None
+    prestress: np.ndarray | None = None
 
     def __post_init__(self):
         d = self.dimension
@@ -125,6 +143,13 @@ class Frame:
             arr.setflags(write=False)
             props[str(key)] = arr
         object.__setattr__(self, "member_properties", MappingProxyType(props))
+        if self.prestress is not None:
+            t = np.array(self.prestress, dtype=float).reshape(-1)
+            if len(t) != len(ends) or not np.all(np.isfinite(t)) or not np.any(t):
+                raise ModelError(f"the prestress needs one finite force per member "
+                                 f"({len(ends)}), not all zero", path=self.source)
+            t.setflags(write=False)
+            object.__setattr__(self, "prestress", t)
 
     @property
     def n_joints(self) -> int:
@@ -200,6 +225,57 @@ class Frame:
                    restraint_joint=np.array(rj, dtype=np.int64),
                    restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
                    dimension=dimension, **kw)
+
+
+def one_way_members(frame: Frame) -> tuple[np.ndarray, np.ndarray]:
+    """The members that act one way only, from the member tag ``carries``.
+
+    Parameters
+    ----------
+    frame : Frame
+
+    Returns
+    -------
+    tension : (a,) int
+        Indices of the members labelled ``tension`` (they go slack when they
+        would shorten), ascending.
+    compression : (b,) int
+        Indices of the members labelled ``compression`` (they lift off when
+        they would lengthen), ascending.
+
+    Raises
+    ------
+    ModelError
+        For a label other than those of :data:`CARRIES` (readers of model
+        files check it first, with the line).
+
+    Examples
+    --------
+    >>> f = Frame.from_arrays([[0, 0], [1, 0], [0, 1]], [[0, 1], [1, 2], [2, 0]],
+    ...                       member_tags={"carries": ["", "tension", ""]})
+    >>> one_way_members(f)
+    (array([1]), array([], dtype=int64))
+
+    Notes
+    -----
+    Cost O(m).
+    """
+    labels = frame.member_tags.get(CARRIES_TAG)
+    if labels is None:
+        empty = np.zeros(0, dtype=np.int64)
+        return empty, empty.copy()
+    bad = sorted({lab for lab in labels if lab and lab not in CARRIES})
+    if bad:
+        from .suggest import did_you_mean
+        k = labels.index(bad[0])
+        raise ModelError(f"member tag {CARRIES_TAG!r} has label {bad[0]!r}; the labels are "
+                         f"{' and '.join(CARRIES)} (members not listed carry both)"
+                         f"{did_you_mean(bad[0], CARRIES)}", path=frame.source,
+                         line=frame.line_of("member", frame.member_ids[k]),
+                         item=frame.member_ids[k])
+    arr = np.array(labels, dtype=object)
+    return (np.flatnonzero(arr == "tension").astype(np.int64),
+            np.flatnonzero(arr == "compression").astype(np.int64))
 
 
 def bounding_diagonal(points) -> float:

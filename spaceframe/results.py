@@ -115,6 +115,14 @@ class AuditResult:
         frame's typical stiffness, ascending: local patterns below 0.1 %.
     soft_displacements : (q, joints, dimension) float
     soft_info : tuple of ModeInfo
+    one_way : OneWayResult or None
+        For a frame with one-way members (member tag ``carries``): whether it
+        is held with them acting one way only, the members that go slack and
+        the motion (:mod:`spaceframe.analysis.oneway`); None without any.
+    declared_prestress : DeclaredPrestress or None
+        The prestress the model declares (``[prestress]``) tested on the
+        internal mechanisms; None when it declares none.  Only then can a
+        frame with mechanisms be ``stable``.
     warnings : tuple of str
     """
 
@@ -144,12 +152,24 @@ class AuditResult:
     soft_ratios: np.ndarray | None = None
     soft_displacements: np.ndarray | None = None
     soft_info: tuple = ()
+    one_way: object = None
+    declared_prestress: object = None
     warnings: tuple[str, ...] = field(default_factory=tuple)
 
     @property
     def stable(self) -> bool:
-        """No mechanism at all: the supported frame is kinematically determinate."""
-        return self.mechanisms == 0
+        """Held: no mechanism (or only those a declared prestress holds), one-way members held.
+
+        A mechanism counts as held only when the model declares the prestress
+        it is built and kept in and that prestress stiffens every internal
+        mechanism (with no rigid-body motion); a prestress the frame merely
+        could carry never does.
+        """
+        if self.one_way is not None and not self.one_way.held:
+            return False
+        if self.mechanisms == 0:
+            return True
+        return self.declared_prestress is not None and self.declared_prestress.holds
 
     @property
     def rigid(self) -> bool:
@@ -174,22 +194,8 @@ class AuditResult:
         f = self.frame
         modes = []
         for i, kind in enumerate(self.mode_kinds):
-            u = self.mode_displacements[i]
-            moving = np.flatnonzero(np.linalg.norm(u, axis=1) > DISPLAY.floor)
-            entry = {"kind": kind}
-            if i < len(self.mode_info):
-                info = self.mode_info[i]
-                entry.update({
-                    "description": info.description,
-                    "joints": list(info.joints),
-                    "members": list(info.members),
-                    "direction": [_num(x) for x in info.direction],
-                    "frames": list(info.frames),
-                })
-                if info.lines:
-                    entry["lines"] = list(info.lines)
-                if info.pivots:
-                    entry["pivots"] = list(info.pivots)
+            entry = _motion_entry(f, kind, self.mode_info[i] if i < len(self.mode_info)
+                                  else None, self.mode_displacements[i])
             order = self.mode_orders[i] if i < len(self.mode_orders) else None
             entry["order"] = order
             if order is not None and self.mode_prestress is not None and \
@@ -197,7 +203,7 @@ class AuditResult:
                 t = self.mode_prestress[i]
                 entry["prestress"] = {f.member_ids[k]: _num(t[k])
                                       for k in np.flatnonzero(np.abs(t) > DISPLAY.floor)}
-            entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+            entry["displacements"] = entry.pop("displacements")
             modes.append(entry)
         states = []
         for t in self.self_stress_forces:
@@ -234,6 +240,13 @@ class AuditResult:
                     self.soft_ratios if self.soft_ratios is not None else (),
                     self.soft_info,
                     self.soft_displacements if self.soft_displacements is not None else ())],
+            "one_way": self._one_way_dict(),
+            "declared_prestress": None if self.declared_prestress is None else {
+                "forces": {f.member_ids[k]: float(v) for k, v in
+                           enumerate(self.declared_prestress.forces) if v},
+                "holds": self.declared_prestress.holds,
+                "stiffened_modes": [int(i) + 1 for i in
+                                    np.flatnonzero(self.declared_prestress.stiffens)]},
             "prestress_stable": self.prestress_stable,
             "key_members": list(self.key_members),
             "redundancy": None if self.redundancy is None else
@@ -250,6 +263,40 @@ class AuditResult:
             "warnings": list(self.warnings),
             "caution": CAUTION,
         }
+
+
+    def _one_way_dict(self) -> dict | None:
+        """The ``one_way`` record: None without one-way members."""
+        w = self.one_way
+        if w is None:
+            return None
+        motion = None if w.motion is None else \
+            _motion_entry(self.frame, w.info.kind if w.info else "other", w.info, w.motion)
+        return {"members": {"tension": list(w.tension), "compression": list(w.compression)},
+                "held": w.held,
+                "margin": None if w.margin is None else float(f"{w.margin:.6g}"),
+                "slack": list(w.slack),
+                "motion": motion}
+
+
+def _motion_entry(f: Frame, kind: str, info, u: np.ndarray) -> dict:
+    """A joint movement ``u`` (n, d) and its ModeInfo as a ``mechanism_modes`` entry."""
+    entry = {"kind": kind}
+    if info is not None:
+        entry.update({
+            "description": info.description,
+            "joints": list(info.joints),
+            "members": list(info.members),
+            "direction": [_num(x) for x in info.direction],
+            "frames": list(info.frames),
+        })
+        if info.lines:
+            entry["lines"] = list(info.lines)
+        if info.pivots:
+            entry["pivots"] = list(info.pivots)
+    moving = np.flatnonzero(np.linalg.norm(u, axis=1) > DISPLAY.floor)
+    entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+    return entry
 
 
 def _num(x: float) -> float:

@@ -283,6 +283,65 @@ class Tolerances:
         a steel tube of 10 cm^2 and 5 m (4e7 N/m), so such a support moves far
         less than any member stretches; softer springs are left free (a
         pin-jointed audit has no springs).
+    mechanism_load : float
+        A load ``f`` (all joint forces of a case, one vector) acts on the
+        mechanisms, and is not carried, when ``||P f|| > mechanism_load *
+        ||f||``, ``P`` the orthogonal projection onto the mechanism space.
+        Default ``1e-6``: the sparse engine's mechanism basis is accurate to
+        about ``1e-8``, and a load with a millionth of itself on a mechanism
+        is, for a designer, not carried.
+    zero_force : float
+        A member force ``N`` of a case counts as none (neither tension nor
+        compression; written as 0) when ``|N| <= zero_force * max |N|`` over
+        that case's members, and a reaction component likewise against the
+        largest reaction component.  Default ``1e-9``: round-off of the
+        solve is about ``1e-13`` of the largest force.
+    forces_shift : float
+        The stiffness solve of a frame that still has mechanisms factorises
+        ``K + forces_shift * k * I`` (``k`` the median diagonal entry of
+        ``K``), the mechanisms projected out: positive definite, and, as
+        iterative refinement follows, without effect on the forces once
+        ``||f - K u|| <= forces_refined * ||f||``.  Default ``1e-8``.
+    forces_refined : float
+        Iterative refinement of the forces solve stops once every case has
+        ``||f - K u|| <= forces_refined * ||f||``, or once a step leaves a
+        residual ``r_new > forces_stalled * r_old`` (round-off reached).
+        Default ``1e-13``.
+    forces_stalled : float
+        See ``forces_refined``: a step whose residual has ``r_new >
+        forces_stalled * r_old`` ends the refinement.
+        Default ``0.25``.
+    forces_fault : float
+        A carried case whose forces leave ``||C.T t - f|| > forces_fault *
+        ||f||`` is a fault of the solve (an internal error), not a verdict.
+        Default ``1e-5``: ten times ``mechanism_load``, the most a carried
+        load may have on the mechanisms.
+    one_way : float
+        A frame with one-way members (:mod:`spaceframe.analysis.oneway`) is
+        held when its best proper state of self-stress, scaled so its largest
+        force is 1, has ``min over one-way members of sigma_e s_e > one_way``
+        (``sigma_e = +1`` tension-only, ``-1`` compression-only).  Default
+        ``1e-5``: a hundred times the linear programmes' feasibility tolerance
+        (``lp_feasibility``, ``1e-7`` absolute on forces of at most 1; tighter,
+        its interior-point method stalls on frames of 20,000 members), while a
+        rod force a hundred thousand times smaller than the largest force in
+        the frame is no force to rely on.  A one-way member
+        counts as going slack in the motion that proves a frame not held when
+        it slackens by more than ``one_way`` of the most slackened one.
+    lp_feasibility : float
+        The primal and dual feasibility tolerance given to HiGHS for the two
+        linear programmes of the one-way test: a point is feasible when every
+        equation and bound holds to ``|violation| <= lp_feasibility``
+        (absolute, on member forces of at most 1).  Default ``1e-7`` (HiGHS's
+        own): tighter, its interior-point method stalls on frames of 20,000
+        members.
+    prestress_balance : float
+        A prestress the model declares (``[prestress]``) must be a state of
+        self-stress: at every joint, the force its members' prestress leaves
+        in the directions no support holds must be
+        ``<= prestress_balance * max |t|``, ``t`` the declared member forces.
+        Default ``1e-3``: forces typed to four significant figures pass, a
+        member left out of the list (a whole force unbalanced) does not.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -320,6 +379,15 @@ class Tolerances:
     acts: float = 0.01
     hint_stretch: float = 0.1
     held_stiffness: float = 1e10
+    mechanism_load: float = 1e-6
+    zero_force: float = 1e-9
+    forces_shift: float = 1e-8
+    forces_refined: float = 1e-13
+    forces_stalled: float = 0.25
+    forces_fault: float = 1e-5
+    one_way: float = 1e-5
+    lp_feasibility: float = 1e-7
+    prestress_balance: float = 1e-3
     limits: Limits = Limits()
 
 

@@ -12,6 +12,7 @@ so this module imports nothing from :mod:`spaceframe.io`.
 
 from __future__ import annotations
 
+import dataclasses
 import warnings
 
 import numpy as np
@@ -214,4 +215,13 @@ def _drop_repeated_members(frame: Frame) -> Frame:
                                    "repeat is counted once: delete the repeats")
     warnings.warn(SpaceframeWarning(text, item=ids[dropped[0]], kind="member", marks=marks),
                   stacklevel=3)
-    return remove_members(frame, dropped)
+    out = remove_members(frame, dropped)
+    if frame.prestress is not None:
+        # two bars between the same pins act as one: the one kept carries both forces,
+        # so the declared state stays in equilibrium
+        t = np.array(frame.prestress)
+        np.add.at(t, kept_as, t[dropped])
+        keep = np.ones(m, dtype=bool)
+        keep[dropped] = False
+        out = dataclasses.replace(out, prestress=t[keep])
+    return out

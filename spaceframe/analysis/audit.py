@@ -12,7 +12,8 @@ from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, local_basis, order_rigid
 from .nullspace import canonical_basis, decide_rank
-from .prestress import prestress_test, product_forces
+from .oneway import one_way_test
+from .prestress import declared_prestress_test, prestress_test, product_forces
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes
 
@@ -37,7 +38,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     shape; the internal ones are given in a local basis, classified and
     described (:mod:`spaceframe.analysis.modes`) and tested for stiffening by
     prestress (:mod:`spaceframe.analysis.prestress`).  Key members and
-    redundancy shares come from :mod:`spaceframe.analysis.redundancy`.
+    redundancy shares come from :mod:`spaceframe.analysis.redundancy`.  Members
+    tagged ``carries = tension`` or ``compression`` act one way only; whether
+    the frame is held with them so is decided by
+    :mod:`spaceframe.analysis.oneway` (Roth & Whiteley [3]_); the counts stay
+    those of the frame with every member two-way.
 
     Parameters
     ----------
@@ -96,6 +101,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     .. [2] C. R. Calladine, "Buckminster Fuller's 'tensegrity' structures and
        Clerk Maxwell's rules for the construction of stiff frames", Int. J.
        Solids Struct. 14(2), 161-172, 1978.
+    .. [3] B. Roth and W. Whiteley, "Tensegrity frameworks", Trans. Amer. Math.
+       Soc. 265(2), 419-446, 1981.
     """
     d = frame.dimension
     dofs = free_dofs(frame, tol=tol)
@@ -133,6 +140,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     force = product_forces(frame, modes[:ni])
     both = decision.project(np.hstack([probes(frame.n_members), force]))
     pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol)
+    declared = declared_prestress_test(frame, C, dofs, modes[:ni],
+                                       rigid_body_modes=rigid.shape[1], tol=tol)
+    one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol,
+                           prestress=declared.forces if declared and declared.holds else None)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
                       projected=both[:, :2], tol=tol)
     stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
@@ -177,7 +188,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         soft_ratios=soft_ratio, soft_displacements=soft_u,
-        soft_info=soft_info,
+        soft_info=soft_info, one_way=one_way, declared_prestress=declared,
         warnings=tuple(warnings))
 
 

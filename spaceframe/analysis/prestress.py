@@ -36,12 +36,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import ModelError
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
 
-__all__ = ["PrestressResult", "prestress_test", "product_forces", "STIFFENED", "NOT_STIFFENED"]
+__all__ = ["PrestressResult", "DeclaredPrestress", "prestress_test", "declared_prestress_test",
+           "product_forces", "STIFFENED", "NOT_STIFFENED"]
 
-STIFFENED = "first-order, stiffened by prestress"
+STIFFENED = "first-order: stiffened only if built and kept prestressed"
 NOT_STIFFENED = "not stiffened by any prestress"
 
 
@@ -69,6 +71,98 @@ class PrestressResult:
     prestress: np.ndarray
     stable: bool | None
     certificate: np.ndarray | None
+
+
+@dataclass(frozen=True, eq=False)
+class DeclaredPrestress:
+    """What the prestress a model declares does to its internal mechanisms.
+
+    Attributes
+    ----------
+    forces : (m,) float
+        The declared member forces (+ tension), as given.
+    stiffens : (k,) bool
+        For each internal mechanism, ``u.T G(t) u > 0``: the declared state
+        stiffens it.
+    holds : bool
+        It stiffens every internal mechanism at once (``U.T G(t) U`` positive
+        definite) and the supports permit no rigid-body motion: the frame is
+        held while that prestress is kept.
+    """
+
+    forces: np.ndarray
+    stiffens: np.ndarray
+    holds: bool
+
+
+def declared_prestress_test(frame: Frame, C, dofs, modes: np.ndarray, *, rigid_body_modes: int,
+                            tol: Tolerances = DEFAULT) -> DeclaredPrestress | None:
+    """Check the model's declared prestress and test it on the internal mechanisms.
+
+    Parameters
+    ----------
+    frame : Frame
+        ``frame.prestress`` is the declared state (None: nothing to test).
+    C : (m, dofs) sparse
+        The compatibility matrix; ``C.T t`` is the force the prestress ``t``
+        leaves unbalanced at the free coordinates.
+    dofs : FreeDofs
+    modes : (k, n, d) float
+        Internal mechanisms.
+    rigid_body_modes : int
+        Rigid-body motions the supports permit (no prestress holds them).
+    tol : Tolerances, keyword-only
+        ``tol.prestress_balance`` bounds the unbalanced force.
+
+    Returns
+    -------
+    DeclaredPrestress or None
+
+    Raises
+    ------
+    ModelError
+        When the declared forces are not in equilibrium at some joint: the
+        model then declares a prestress the frame cannot carry.
+
+    Notes
+    -----
+    Cost O(m k^2 + k^3).  A finite mechanism is never stiffened: its product
+    forces have no component in the self-stress space (Pellegrino & Calladine
+    [1]_), so ``u.T G(t) u = t . p = 0`` for every state of self-stress ``t``.
+    """
+    t = frame.prestress
+    if t is None:
+        return None
+    top = float(np.abs(t).max())
+    r = np.asarray(C.T @ t).reshape(-1)
+    per_joint = np.zeros(frame.n_joints)
+    np.add.at(per_joint, dofs.joint_of(), r * r)
+    per_joint = np.sqrt(per_joint)
+    worst = int(np.argmax(per_joint)) if per_joint.size else 0
+    if per_joint.size and per_joint[worst] > tol.prestress_balance * top:
+        raise ModelError(f"the declared [prestress] is not a state of self-stress: at joint "
+                         f"{frame.joint_ids[worst]!r} its member forces leave "
+                         f"{per_joint[worst]:.4g} unbalanced (largest force {top:.4g}); list "
+                         f"the force of every member that carries the prestress, in "
+                         f"equilibrium at every joint with no load",
+                         path=frame.source, item=frame.joint_ids[worst])
+    k = modes.shape[0]
+    if k == 0:
+        return DeclaredPrestress(t, np.zeros(0, dtype=bool), rigid_body_modes == 0)
+    du = _relative(frame, modes)
+    L = frame.lengths()
+    M = _stress_form(du, L, t)
+    M_abs = _stress_form(du, L, np.abs(t))
+    scale = tol.stiffening * max(float(np.abs(M_abs).max()), 1e-300)
+    stiffens = np.diag(M) > scale
+    holds = bool(rigid_body_modes == 0 and np.linalg.eigvalsh(M)[0] > scale)
+    return DeclaredPrestress(t, stiffens, holds)
+
+
+def _stress_form(du: np.ndarray, L: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """``U.T G(t) U``: the prestress stiffness of ``t`` over the modes, ``(k, k)`` symmetric."""
+    M = np.einsum("amd,bmd,m->ab", du, du, t / L)
+    return (M + M.T) / 2
 
 
 def _relative(frame: Frame, modes: np.ndarray) -> np.ndarray:
@@ -137,7 +231,7 @@ def _common_prestress(du, L, P, stiffening):
     k = du.shape[0]
     candidates = [P.sum(axis=1)] + [P[:, i] for i in range(k)]
     for t in candidates:
-        M = np.einsum("amd,bmd,m->ab", du, du, t / L)
-        if np.linalg.eigvalsh((M + M.T) / 2)[0] > stiffening * np.abs(M).max():
+        M = _stress_form(du, L, t)
+        if np.linalg.eigvalsh(M)[0] > stiffening * np.abs(M).max():
             return t / np.max(np.abs(t))
     return None

@@ -29,6 +29,7 @@ from .batch import batch_command  # noqa: E402
 from .brace import brace_command  # noqa: E402
 from .convert import convert_command  # noqa: E402
 from .extrude import extrude_command  # noqa: E402
+from .forces import forces_command  # noqa: E402
 from .report import report_command  # noqa: E402
 from .view import view_command  # noqa: E402
 
@@ -40,3 +41,4 @@ main.add_command(report_command)
 main.add_command(view_command)
 main.add_command(brace_command)
 main.add_command(batch_command)
+main.add_command(forces_command)

@@ -23,8 +23,14 @@ SUFFIXES = (".gif", ".mp4", ".png")
               help="The mechanism to show, numbered from 1 in the order the audit lists them "
                    "(default 1).")
 @click.option("--all", "every", is_flag=True, help="Every mechanism in turn (each its own rows in a PNG).")
+@click.option("--one-way", "one_way", is_flag=True,
+              help="Show how a frame with one-way members (rods, props) moves when they go "
+                   "slack: out and back on one side only.")
 @click.option("--state", "state", type=int, default=None, metavar="K",
               help="Draw state of self-stress K instead (a still .png): members coloured by force.")
+@click.option("--forces", "case", default=None, metavar="CASE",
+              help="Draw the member forces of load case CASE instead (a still .png): members "
+                   "coloured by force, arrows for loads and reactions.")
 @click.option("--frames", "n", type=click.IntRange(2, 240), default=None,
               help="Poses per cycle (default 24 for .gif/.mp4, 6 for .png), starting at the "
                    "largest movement. Use an even number: with an odd one two poses in a row "
@@ -37,7 +43,8 @@ SUFFIXES = (".gif", ".mp4", ".png")
 @supports_option
 @force_option
 @debug_option
-def animate_command(model, out, mode, every, state, n, fps, size, quiet, supports, force, debug):
+def animate_command(model, out, mode, every, one_way, state, case, n, fps, size, quiet, supports,
+                    force, debug):
     """Show how the frame in MODEL can move: one mechanism (or each) drawn through a full
     cycle, the frame at rest ghosted behind, supports as stalks with plates (one per
     direction held), the mode's description as the caption.
@@ -54,12 +61,23 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
         from ..views.progress import progress
         from ..views.render import mode_frames, state_picture, write_frames
 
-        if sum(x is not None and x is not False for x in (mode, state, every or None)) > 1:
-            raise SpaceframeError("give one of --mode K, --all and --state K")
+        if sum(x is not None and x is not False
+               for x in (mode, state, every or None, one_way or None, case)) > 1:
+            raise SpaceframeError("give one of --mode K, --all, --one-way, --state K and "
+                                  "--forces CASE")
         wh = _size(size)
         path = Path(check_output(out, inputs=(model,), overwrite=force, suffixes=SUFFIXES,
                                  what="a picture"))
         frame = supports_for(load(model), model, supports)
+        if case is not None:
+            from .. import forces
+            from ..views.forces_render import forces_picture
+
+            if path.suffix.lower() != ".png":
+                raise SpaceframeError("a forces picture is a still: write it to a .png")
+            result = forces(frame, [case])
+            write_frames([[forces_picture(result, 0, size=wh)]], path)
+            return
         result = audit(frame)
         if state is not None:
             if path.suffix.lower() != ".png":
@@ -69,6 +87,21 @@ def animate_command(model, out, mode, every, state, n, fps, size, quiet, support
             write_frames([[state_picture(result, state - 1, size=wh)]], path)
             return
         count = result.mechanisms
+        if one_way:
+            w = result.one_way
+            if w is None or w.motion is None:
+                raise SpaceframeError(
+                    "--one-way: the model has no one-way members (tag them with "
+                    "[tags.members.carries])" if w is None else
+                    "--one-way: the one-way members hold the frame; nothing moves that way"
+                    if w.held else "--one-way: the frame has mechanisms even with every member "
+                                   "carrying both ways; show them with --mode or --all")
+            rows = []
+            poses = n or (6 if path.suffix.lower() == ".png" else 24)
+            with progress(poses, f"rendering {path.name}", quiet=quiet) as step:
+                rows.append(mode_frames(result, count, n=poses, size=wh, on_frame=step))
+            write_frames(rows, path, fps=fps)
+            return
         if mode is not None and not 1 <= mode <= max(count, 1):
             raise SpaceframeError(f"--mode {mode}: the audit found "
                                   f"{counted(count, 'mechanism')}; "

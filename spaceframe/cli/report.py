@@ -24,7 +24,8 @@ def report_command(model, out, bracing, supports, force, debug):
     mean, the mechanisms and states of self-stress, the key members, the cautions, and a
     3D view (turn, move, zoom, click to name a joint or member, choose a mode to see it
     move; and, for a frame with mechanisms, the proposed bracing with the audit after
-    it). The file needs no network and no other file.
+    it; and, for a model with load cases, a case selector colouring the members by force).
+    The file needs no network and no other file.
 
     Exit status 0 when the report is written, whatever the verdict; 2 for bad input.
     """
@@ -42,7 +43,11 @@ def report_command(model, out, bracing, supports, force, debug):
         if bracing and not result.stable:
             from ..analysis.bracing import recommend_bracing
             proposal = recommend_bracing(frame)
-        write_text(path, render_report(result, proposal), overwrite=force)
+        loads = None
+        if frame.loads is not None:
+            from .. import forces
+            loads = forces(frame)
+        write_text(path, render_report(result, proposal, loads), overwrite=force)
         click.echo(f"spaceframe: wrote {path}", err=True)
 
     run_guarded(job, debug=debug)

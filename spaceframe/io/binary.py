@@ -17,11 +17,12 @@ member to a missing joint is refused with a message, not a traceback.
 from __future__ import annotations
 
 import os
+import warnings
 import zipfile
 
 import numpy as np
 
-from ..errors import ModelError
+from ..errors import ModelError, SpaceframeWarning
 from ..model import UNITS, Frame
 from ..tolerances import DEFAULT, Tolerances
 from .output import write_file
@@ -85,7 +86,8 @@ def read_npz(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   restraint_joint=data["restraint_joint"], restraint_dir=data["restraint_dir"],
                   dimension=int(data["dimension"]), name=str(data.get("name", "")),
                   units=units, source=source, joint_tags=tags["joint"],
-                  member_tags=tags["member"], member_properties=props)
+                  member_tags=tags["member"], member_properties=props,
+                  prestress=np.asarray(data["prestress"], float) if "prestress" in data else None)
     if len(frame.member_ids) != m:  # pragma: no cover - Frame checks the lengths
         raise ModelError("the archive's member arrays differ in length", path=source)
     return checked(frame, tol=tol)
@@ -114,5 +116,11 @@ def dump_npz(frame: Frame, path, *, overwrite: bool = False) -> None:
         arrays[f"member_tag:{name}"] = np.array(labels, dtype=str)
     for name, values in frame.member_properties.items():
         arrays[f"member_property:{name}"] = np.asarray(values, float)
+    if frame.prestress is not None:
+        arrays["prestress"] = np.asarray(frame.prestress, float)
     write_file(target, lambda fh: np.savez(fh, **arrays), binary=True, overwrite=overwrite,
                option="overwrite=True")
+    if frame.loads is not None:
+        warnings.warn(f"{target}: the .npz form holds no load cases; the model's loads are "
+                      f"not in it (keep them in the TOML or JSON file)", SpaceframeWarning,
+                      stacklevel=2)

@@ -41,6 +41,8 @@ PALETTE = {
     "tension": ("#c25a12", "orange"),
     "zero": ("#e3e3e3", "light grey"),
     "compression": ("#1d5fa6", "blue"),
+    "load": ("#cc79a7", "pink"),          # load arrows of a forces picture
+    "reaction": ("#009e73", "green"),      # reaction arrows (the supports' colour)
     "text": ("#202020", "black"),
     "background": ("#ffffff", "white"),
 }
@@ -144,6 +146,18 @@ class _Stage:
         mesh = _lines(self.pv, self.scene.coords, self.scene.ends)
         if mesh.n_points:
             self.plotter.add_mesh(mesh, color=PALETTE["ghost"][0], line_width=3)
+
+    def forces(self, t, carrying, cmap):
+        """Members coloured by ``t`` (on [-1, 1]) where ``carrying``, the rest thin and grey."""
+        pv, p, e, scene = self.pv, self.plotter, self.e, self.scene
+        idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
+        if idle.n_points:
+            p.add_mesh(idle, color=PALETTE["ghost"][0])
+        if carrying.any():
+            lines = _lines(pv, scene.coords, scene.ends[carrying])
+            lines.point_data["force"] = np.repeat(t[carrying], 2)
+            p.add_mesh(lines.tube(radius=0.011 * e, n_sides=12), scalars="force", cmap=cmap,
+                       clim=[-1.0, 1.0], smooth_shading=True, show_scalar_bar=False)
 
     def supports(self, points):
         """Green stalks with end plates, one per held direction, following their joints."""
@@ -282,8 +296,6 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         raise SpaceframeError(
             f"state of self-stress {state + 1} does not exist: {q} computed"
             + (f" of {result.self_stress_states}" if q < result.self_stress_states else ""))
-    LinearSegmentedColormap = require("matplotlib.colors").LinearSegmentedColormap
-
     scene = scene_of(result)
     t = np.asarray(result.self_stress_forces[state], float)
     carrying = carrying_members(t)
@@ -291,23 +303,15 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
             f"{result.frame.name or 'frame'}"
     caption = (f"{count(int(carrying.sum()), 'member')} carry forces with no load applied; colour says "
                f"how much and which way (largest force = 1).")
-    cmap = LinearSegmentedColormap.from_list(
-        "spaceframe_force", [PALETTE["compression"][0], PALETTE["zero"][0],
-                             PALETTE["tension"][0]])
+    cmap = force_colours()
     legend = [_entry("tension", "tension: the member pulls on its joints"),
               _entry("compression", "compression: the member pushes"),
               _entry("ghost", "thin: carries nothing here"),
               _entry("support", "stalk and plate: a direction held")]
     stage = _Stage(scene, size, title, caption, legend, cmap, dimension=result.frame.dimension)
     try:
-        pv, p, e = stage.pv, stage.plotter, stage.e
-        idle = _tubes(pv, scene.coords, scene.ends[~carrying], 0.004 * e)
-        if idle.n_points:
-            p.add_mesh(idle, color=PALETTE["ghost"][0])
-        lines = _lines(pv, scene.coords, scene.ends[carrying])
-        lines.point_data["force"] = np.repeat(t[carrying], 2)
-        p.add_mesh(lines.tube(radius=0.011 * e, n_sides=12), scalars="force", cmap=cmap,
-                   clim=[-1.0, 1.0], smooth_shading=True, show_scalar_bar=False)
+        p = stage.plotter
+        stage.forces(t, carrying, cmap)
         sup = stage.supports(scene.coords)
         if sup is not None:
             p.add_mesh(sup, color=PALETTE["support"][0])
@@ -315,6 +319,15 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
         return stage.shot()
     finally:
         stage.close()
+
+
+def force_colours():
+    """The one diverging force scale on [-1, 1]: compression blue, zero light grey,
+    tension orange (a matplotlib colour map)."""
+    LinearSegmentedColormap = require("matplotlib.colors").LinearSegmentedColormap
+    return LinearSegmentedColormap.from_list(
+        "spaceframe_force", [PALETTE["compression"][0], PALETTE["zero"][0],
+                             PALETTE["tension"][0]])
 
 
 def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float = 12.0):
@@ -530,6 +543,10 @@ def _mode_words(result: AuditResult, mode: int | None) -> tuple[str, str]:
     if mode is None:
         return (f"{name}: held", "No mechanism: every joint is held in every direction by "
                                  "members and supports, so nothing moves.")
+    if mode >= result.mechanisms and result.one_way is not None:  # the scene's one-way motion
+        info = result.one_way.info
+        return (f"One-way motion ({info.kind}): {name}",
+                f"{info.description}  (movement drawn at {AMPLITUDE:.0%} of the frame's size)")
     info = result.mode_info[mode] if mode < len(result.mode_info) else None
     kind = result.mode_kinds[mode]
     title = f"Mechanism {mode + 1} of {result.mechanisms} ({kind}): {name}"

@@ -35,10 +35,11 @@ __all__ = ["render_report", "report_document", "asset"]
 LIMITS = (
     "Pin-jointed idealisation: members carry axial force only, joints are frictionless pins; "
     "bending stiffness and joint fixity are ignored.",
-    "First-order analysis: a mechanism found may be infinitesimal only; relying on prestress "
-    "for stability is a design decision for a competent engineer.",
-    "Stability of the idealised frame only: no loads, member sizing, buckling or connection "
-    "design.",
+    "First-order analysis: a mechanism found may be infinitesimal only; one that a prestress "
+    "would stiffen is still a mechanism unless the model declares that prestress, and "
+    "relying on prestress for stability is a design decision for a competent engineer.",
+        "Stability and, where load cases are given, first-order axial forces of the idealised "
+    "frame only: no member sizing, buckling or connection design; load values are the user's.",
     "Movements in the 3D view are drawn enlarged, at "
     f"{AMPLITUDE:.0%} of the frame's size: the shape of a mechanism, not its size.",
 )
@@ -83,6 +84,12 @@ def report_document(result: AuditResult, bracing=None) -> dict:
         m.pop("displacements", None)
         m.pop("prestress", None)
         m["members"] = []
+    if s.one_way is not None:  # listed after the mechanisms, as the scene holds it
+        motion = dict(audit["one_way"]["motion"], order="one way only: the reverse is resisted")
+        motion["kind"] = f"one-way ({motion['kind']})"
+        motion.pop("displacements", None)
+        motion["members"] = []
+        audit["mechanism_modes"].append(motion)
     audit["self_stress_modes"] = []
     audit["redundancy"] = None
     for sm in audit.get("soft_modes", []):
@@ -103,6 +110,7 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "glyph": GLYPH * s.unit / s.extent,   # the stalk's length over the extent
             "supports": [[j, r6(d)] for (j, _), d in zip(s.supports, glyph_dirs)],
             "modes": [r6(u) for u in s.modes],
+            "one_way": s.one_way,
             "moving": moving,
             "forces": [np.round(np.asarray(t, float), DISPLAY.force_decimals).tolist()
                        for t in result.self_stress_forces],
@@ -159,8 +167,38 @@ def script_json(doc) -> str:
     return text
 
 
-def render_report(result: AuditResult, bracing=None) -> str:
-    """The report of ``result`` as one HTML document (str), with ``bracing`` if given.
+def forces_document(forces) -> dict:
+    """What the page shows of the load cases: per case its forces scaled to the largest
+    (``scaled``, on [-1, 1], for the colours), that largest force, the largest tension and
+    compression members, or the mechanisms a case not carried acts on."""
+    from ..force_results import FORCES_CAUTION
+
+    ids = forces.frame.member_ids
+    cases = []
+    for i, name in enumerate(forces.names):
+        entry = {"name": name, "kind": forces.kinds[i], "carried": bool(forces.carried[i]),
+                 "method": forces.methods[i], "scaled": None, "largest": 0.0,
+                 "tension": None, "compression": None, "slack": list(forces.slack[i]),
+                 "excited": [{"mode": e.mode, "description": e.description,
+                              "fraction": round(e.fraction, DISPLAY.decimals)}
+                             for e in forces.excited[i]]}
+        if forces.carried[i]:
+            t = forces.shown_forces(i)
+            top = float(np.max(np.abs(t))) if t.size else 0.0
+            entry["largest"] = top
+            entry["scaled"] = np.round(t / (top or 1.0), DISPLAY.force_decimals).tolist()
+            hi, lo = int(np.argmax(t)), int(np.argmin(t))
+            entry["tension"] = [ids[hi], float(t[hi])] if t.size and t[hi] > 0 else None
+            entry["compression"] = [ids[lo], float(t[lo])] if t.size and t[lo] < 0 else None
+        cases.append(entry)
+    return {"force_units": forces.force_units, "cases": cases,
+            "determinate": forces.statically_determinate, "caution": FORCES_CAUTION}
+
+
+def render_report(result: AuditResult, bracing=None, forces=None) -> str:
+    """The report of ``result`` as one HTML document (str), with ``bracing`` if given,
+    and the load cases' member forces when ``forces`` (a
+    :class:`~spaceframe.force_results.ForcesResult` of the same frame) is given.
 
     Cost: O(p n) for p mechanisms and n joints, plus one view search per mode.
     """
@@ -170,6 +208,7 @@ def render_report(result: AuditResult, bracing=None) -> str:
             raise SpaceframeError(f"the report's {name} contains {end}>, which would end its "
                                   f"element early")
     doc = report_document(result, bracing)
+    doc["loads"] = None if forces is None else forces_document(forces)
     parts = {"STYLE": style, "SCRIPT": script, "DATA": script_json(doc), **page_text(doc)}
     # one pass: text put in is never searched again for markers
     return _MARK.sub(lambda m: parts[m.group(1) or m.group(2)], asset("template.html"))

@@ -12,10 +12,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..model import Frame
 from ..results import AuditResult
 from ..tolerances import DEFAULT, DISPLAY
 
-__all__ = ["Scene", "scene_of", "phases", "view_direction", "moving_joints", "carrying_members",
+__all__ = ["Scene", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints", "carrying_members",
            "AMPLITUDE"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
@@ -38,7 +39,8 @@ class Scene:
     extent : float
         Largest side of the joints' bounding box (1 for a single point).
     modes : (p, n, 3) float
-        The audit's mechanisms (largest joint movement 1), in its order.
+        The audit's mechanisms (largest joint movement 1), in its order, then
+        the one-way motion of a frame its one-way members do not hold.
     supports : list of (joint index, (3,) unit vector)
         One entry per restrained direction.
     normal : (3,) float or None
@@ -46,6 +48,8 @@ class Scene:
         their elevation: the direction of a row of tagged frames (an
         extrusion), or the normal of a frame whose members all lie in one
         plane; None otherwise.
+    one_way : int or None
+        Index in ``modes`` of that one-way motion (it goes one way only).
     """
 
     coords: np.ndarray
@@ -54,6 +58,7 @@ class Scene:
     modes: np.ndarray
     supports: list
     normal: np.ndarray | None = None
+    one_way: int | None = None
 
     @property
     def unit(self) -> float:
@@ -76,10 +81,13 @@ class Scene:
 
         The movement is ``AMPLITUDE * extent * sin(phase) * u``: a seamless loop
         over ``phase`` in ``[0, 2 pi)``.  ``mode=None`` is the frame at rest.
+        The one-way motion goes out and back on one side only, by
+        ``(1 + sin(phase)) / 2``: the reverse movement is resisted.
         """
         if mode is None:
             return self.coords.copy()
-        return self.coords + AMPLITUDE * self.extent * np.sin(phase) * self.modes[mode]
+        a = (1.0 + np.sin(phase)) / 2 if mode == self.one_way else np.sin(phase)
+        return self.coords + AMPLITUDE * self.extent * a * self.modes[mode]
 
     def glyphs(self) -> list[tuple[np.ndarray, np.ndarray, np.ndarray]]:
         """Support glyphs: one stalk per held direction, ``(start, end, direction)``.
@@ -103,13 +111,24 @@ class Scene:
 
 
 def scene_of(result: AuditResult) -> Scene:
-    """The :class:`Scene` of an audited frame.
+    """The :class:`Scene` of an audited frame: its mechanisms, then any one-way motion.
 
     Cost O(p n) for p modes and n joints.
     """
-    f = result.frame
-    coords = _embed(np.asarray(f.coords, float), f.dimension)
     modes = np.asarray(result.mode_displacements, float)
+    w = result.one_way
+    one_way = None
+    if w is not None and w.motion is not None:
+        one_way = len(modes)
+        modes = np.concatenate([modes.reshape(-1, *w.motion.shape), w.motion[None]])
+    return frame_scene(result.frame, modes, one_way=one_way)
+
+
+def frame_scene(f: Frame, modes=None, *, one_way: int | None = None) -> Scene:
+    """The :class:`Scene` of a frame with the joint movements ``modes`` ``(p, n, d)``
+    (none: the frame at rest); ``one_way`` is the index of a one-way motion among them."""
+    coords = _embed(np.asarray(f.coords, float), f.dimension)
+    modes = np.zeros((0, f.n_joints, f.dimension)) if modes is None else np.asarray(modes, float)
     modes = np.stack([_embed(u, f.dimension) for u in modes]) if len(modes) else \
         np.zeros((0, len(coords), 3))
     dirs = _embed(np.asarray(f.restraint_dir, float), f.dimension)
@@ -117,7 +136,8 @@ def scene_of(result: AuditResult) -> Scene:
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]
     ends = np.asarray(f.ends, np.int64)
     return Scene(coords=coords, ends=ends, extent=extent or 1.0, modes=modes,
-                 supports=supports, normal=_frames_normal(f.tag("joint", "frame"), coords, ends))
+                 supports=supports, one_way=one_way,
+                 normal=_frames_normal(f.tag("joint", "frame"), coords, ends))
 
 
 def _frames_normal(frames, coords: np.ndarray, ends: np.ndarray) -> np.ndarray | None:

@@ -57,11 +57,34 @@ def _traced(r: AuditResult, text: str) -> str:
 
 def verdict(r: AuditResult) -> str:
     """One line: is the frame held, and if not, how it can move."""
-    if r.stable:
+    w = r.one_way
+    if r.stable and r.mechanisms == 0:
         extra = (f"; {counted(r.self_stress_states, 'state')} of self-stress"
                  if r.self_stress_states else "; statically determinate")
+        if w is not None:
+            extra += ("; its one-way members hold it acting one way only (with rods and props "
+                      "fitted snug)")
         return (f"HELD - no mechanism: every joint is held in every direction by members and "
                 f"supports{extra}.")
+    if r.mechanisms == 0 and w is not None:
+        if w.motion is None:
+            return ("NOT HELD - no state of self-stress keeps every tension-only member in "
+                    "tension and every compression-only one in compression by a margin; the "
+                    "frame is held only if they carry both ways.")
+        return (f"NOT HELD - held only while every member carries both ways; as modelled, "
+                f"{_one_way_motion(w)} Add a member or a restraint that resists this movement, "
+                f"or use members that carry both ways.")
+    if r.stable:  # only with mechanisms that the declared prestress holds
+        return (f"HELD BY ITS DECLARED PRESTRESS - "
+                f"{counted(r.internal_mechanisms, 'internal mechanism')}, "
+                f"{'each ' * (r.internal_mechanisms > 1)}stiffened "
+                f"by the prestress the model "
+                f"declares; held only while that prestress is kept. Without it the frame is a "
+                f"mechanism.")
+    if w is not None and w.margin is not None:  # the declared prestress held the mechanisms
+        return ("NOT HELD - the declared prestress stiffens every mechanism but does not keep "
+                "every tension-only member in tension and every compression-only one in "
+                "compression; the frame is a mechanism unless it does.")
     if r.rigid:
         return (f"NOT HELD - the frame keeps its shape but can move as one rigid body on its "
                 f"supports ({counted(r.rigid_body_modes, 'rigid-body mode')}): "
@@ -144,14 +167,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                              f"{_order_note(r, i)}")
                 i += 1
             shown += 1
-        if r.internal_mechanisms and any(o == STIFFENED for o in r.mode_orders):
-            whole = {True: "one state of self-stress stiffens every internal mechanism at once "
-                           "(prestress stable)",
-                     False: "some internal mechanism is stiffened by no prestress",
-                     None: "no single state of self-stress was found that stiffens every "
-                           "internal mechanism at once"}[r.prestress_stable]
-            lines.append(f"  Prestress: {whole}. Relying on prestress for stability is a design "
-                         f"decision for a competent engineer.")
+        lines.extend(_prestress_lines(r))
     if r.self_stress_states:
         lines.append("")
         q = r.self_stress_forces.shape[0]
@@ -179,6 +195,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: "
                          f"{_traced(r, info.description)}")
+    lines.extend(_one_way_lines(r))
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
         lines.append("")
@@ -189,17 +206,114 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     return "\n".join(lines) + "\n"
 
 
+def _one_way_motion(w) -> str:
+    """``"joints ... move ...: R1 goes slack ..."`` with a lower-case start."""
+    text = w.info.description
+    return text[0].lower() + text[1:]
+
+
+def _one_way_lines(r: AuditResult) -> list[str]:
+    """The one-way members and the verdict with them acting one way (Roth & Whiteley)."""
+    w = r.one_way
+    if w is None:
+        return []
+    kinds = []
+    if w.tension:
+        kinds.append(f"tension only (rods, guys) {_names(w.tension)}")
+    if w.compression:
+        kinds.append(f"compression only (props) {_names(w.compression)}")
+    out = ["", "One-way members: " + "; ".join(kinds)]
+    if r.mechanisms and w.margin is None:
+        out.append("  Not tested: the frame has mechanisms even with every member carrying "
+                   "both ways; the mechanisms above come first.")
+    elif r.mechanisms:
+        out.append(f"  {'Held' if w.held else 'Not held'} with them acting one way: the "
+                   f"declared prestress {'keeps' if w.held else 'does not keep'} every "
+                   f"tension-only member in tension and every compression-only one in "
+                   f"compression (the weakest at {w.margin:.2g} of its largest force).")
+    elif w.held:
+        out.append(f"  Held with them acting one way: a state of self-stress keeps every "
+                   f"tension-only member in tension and every compression-only one in "
+                   f"compression (the weakest at {w.margin:.2g} of the largest force), so any "
+                   f"movement that slackens one stretches another member (Roth & Whiteley "
+                   f"1981). This assumes each "
+                   f"is fitted snug: rods taut, props bearing.")
+    elif w.motion is None:
+        out.append(f"  Not held: the best state of self-stress keeps them carrying only "
+                   f"{w.margin:.1e} of its largest force, which is counted as none.")
+    else:
+        out.append(f"  Not held: {_one_way_motion(w)}")
+    return out
+
+
+def _names(ids, most: int = 12) -> str:
+    return ", ".join(ids[:most]) + (f" and {len(ids) - most} more" if len(ids) > most else "")
+
+
 def _pct(ratio: float) -> str:
     pct = 100 * ratio
     return f"{pct:.2g} %" if pct >= 0.01 else f"{ratio:.1e} (as a fraction)"
 
 
 def _order_note(r: AuditResult, i: int, *, plural: bool = False) -> str:
+    """What prestress does to mechanism ``i``, never suggesting it is safe."""
     order = r.mode_orders[i] if i < len(r.mode_orders) else None
     it, real = ("them", "real mechanisms") if plural else ("it", "a real mechanism")
-    return {STIFFENED: f"  [first-order only: a prestress stiffens {it}]",
-            NOT_STIFFENED: f"  [no prestress stiffens {it}: treat as {real}]",
-            None: ""}[order]
+    declared = r.declared_prestress
+    if order is None:
+        return ""
+    if order == NOT_STIFFENED:
+        return f"  [no prestress stiffens {it}: treat as {real}, likely finite]"
+    if declared is not None and i < len(declared.stiffens):
+        if declared.stiffens[i]:
+            return ("  [stiffened by the prestress the model declares, and only while that "
+                    "prestress is kept]")
+        return f"  [the declared prestress does not stiffen {it}: treat as {real}]"
+    return (f"  [first-order: stiffened only if the frame is built and kept prestressed in "
+            f"{_stiffening_state(r, i)}; frames normally are not, so treat {it} as {real} "
+            f"unless that prestress is designed in]")
+
+
+def _stiffening_state(r: AuditResult, i: int) -> str:
+    """``"state 2 (tension in R1, R2)"``: the state that stiffens mode ``i``, in words."""
+    t = r.mode_prestress[i]
+    pull = [k for k in np.argsort(-t, kind="stable") if t[k] > 0.05]
+    ids = [r.frame.member_ids[k] for k in pull]
+    words = ", ".join(ids[:4]) + (f" and {len(ids) - 4} more" if len(ids) > 4 else "")
+    for j, s in enumerate(r.self_stress_forces):
+        if abs(s @ t) >= 0.999 * np.linalg.norm(s) * np.linalg.norm(t):
+            return f"state of self-stress {j + 1} (tension in {words})"
+    return f"a state of self-stress with tension in {words}"
+
+
+def _prestress_lines(r: AuditResult) -> list[str]:
+    """The whole frame and prestress: declared, or only possible (then not relied on)."""
+    declared = r.declared_prestress
+    if declared is not None:
+        count = int(np.count_nonzero(declared.forces))
+        head = f"  Prestress declared in the model ([prestress], {counted(count, 'member')}): "
+        if declared.holds:
+            head += "it stiffens every internal mechanism, so they count as held"
+        elif r.internal_mechanisms:
+            head += (f"it stiffens {int(declared.stiffens.sum())} of the "
+                     f"{r.internal_mechanisms} internal mechanisms, not all of them at once"
+                     + ("" if not r.rigid_body_modes else "; no prestress holds a rigid-body "
+                                                           "motion"))
+        else:
+            head += "no prestress holds a rigid-body motion"
+        return [head + ". Held only while that prestress is kept: lost pretension (slip, creep, "
+                "temperature, a cut rod) leaves mechanisms. Relying on prestress for stability "
+                "is a design decision for a competent engineer."]
+    if not (r.internal_mechanisms and any(o == STIFFENED for o in r.mode_orders)):
+        return []
+    whole = {True: "one state of self-stress would stiffen every internal mechanism at once "
+                   "(prestress stable)",
+             False: "some internal mechanism is stiffened by no prestress",
+             None: "no single state of self-stress was found that stiffens every internal "
+                   "mechanism at once"}[r.prestress_stable]
+    return [f"  Prestress: {whole}, but only if the frame is built and kept prestressed in it. "
+            f"Frames normally are not: these are mechanisms unless that prestress is designed "
+            f"in (a model declares it as [prestress], member = force)."]
 
 
 def _single_joint_run(r: AuditResult, i: int) -> list[int]:
@@ -266,6 +380,9 @@ def _robustness(r: AuditResult, max_entries: int) -> list[str]:
     else:
         out.append("Key members: none. Every member carries force in some state of "
                    "self-stress, so the loss of any single member leaves no mechanism.")
+    if r.one_way is not None and r.members:
+        out.append("  (Key members and shares count every member as two-way: losing a rod or a "
+                   "prop can leave the frame not held where it is not listed as key.)")
     if r.redundancy is not None and r.self_stress_states:
         red = r.redundancy
         lo, hi = int(np.argmin(red)), int(np.argmax(red))

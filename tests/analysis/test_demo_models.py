@@ -35,7 +35,7 @@ COUNTS = ("joints", "members", "restraints", "mechanisms", "rigid_body_modes",
 #: model file -> (joints, members, restraints, mechanisms, rigid_body_modes,
 #: internal_mechanisms, self_stress_states, stable)
 PINNED = {
-    # A plane Howe truss, pin at L0 and roller at L6.  Maxwell: 21 + 3 - 2 x 12 = 0.  It is a
+    # A plane Pratt truss, pin at L0 and roller at L6.  Maxwell: 21 + 3 - 2 x 12 = 0.  It is a
     # simple truss (each panel a triangle added to the last by two members, none collinear),
     # which is statically determinate: no self-stress (Hibbeler, "Structural Analysis", the
     # simple truss and its determinacy, from memory), so 0 mechanisms either; a pin and a

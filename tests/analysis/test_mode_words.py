@@ -21,7 +21,7 @@ MODELS = Path(__file__).resolve().parents[2] / "models"
 
 
 def hall(**spec):
-    """The demo Howe truss (models/hall_truss.toml) extruded with ``spec``."""
+    """The demo Pratt truss (models/hall_truss.toml) extruded with ``spec``."""
     doc = {"frames": 8, "spacing": 5.0, "out_of_plane": "free"}
     doc.update(spec)
     return extrude(load(MODELS / "hall_truss.toml"), spec_from_document(doc))

@@ -106,7 +106,7 @@ def test_no_members_and_no_supports_load(tmp_path):
 def test_reserved_keys_are_accepted_silently(tmp_path):
     path = tmp_path / "later.toml"
     path.write_text('notes = "checked on site"\n' + BASE
-                    + "[groups]\nchords = [\"AB\"]\n[properties]\n[loads]\nC = [0, 0, -10]\n",
+                    + "[groups]\nchords = [\"AB\"]\n[properties]\n",
                     encoding="utf-8")
     with warnings.catch_warnings():
         warnings.simplefilter("error")

@@ -232,3 +232,33 @@ def test_report_reads_with_scripts_off(browser, tmp_path):
         page.screenshot(path=str(ARTIFACTS / "report_canopy_noscript.png"), full_page=True)
     finally:
         context.close()
+
+
+def test_load_case_selector_colours_members_by_force(browser, tmp_path):
+    """The canopy's roof load is carried (its columns in compression: gravity down the
+    columns, common practice), its wind along y is not (it acts on the sway; derived in
+    the model's comment): the selector colours the first, and offers no forces for the
+    second."""
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    forces = spaceframe.forces(frame)
+    html = render_report(spaceframe.audit(frame), None, forces)
+    page, errors, requests, path = _open(browser, html, tmp_path)
+    try:
+        assert requests == [path.as_uri()]
+        assert page.locator("#cases tbody tr").count() == len(forces.names)
+        assert "not carried" in page.inner_text("#cases-summary")
+        assert page.is_disabled("#case-list button >> nth=1")
+        before = _canvas(page)
+        page.click("#case-list button >> nth=0")
+        page.wait_for_timeout(150)
+        after = _canvas(page)
+        blue = np.array([0x1d, 0x5f, 0xa6])       # the compression colour at full strength
+        near = np.abs(after.astype(int) - blue).max(axis=2) < 40
+        assert near.sum() > 30 and np.abs(after.astype(int) - before.astype(int)).sum() > 0
+        assert "tension (kN)" in page.inner_text("#legend")
+        assert "competent engineer" in page.inner_text("#forces-caution")
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.screenshot(path=str(ARTIFACTS / "report_canopy_forces.png"), full_page=False)
+        assert errors == []
+    finally:
+        page.close()

@@ -32,8 +32,10 @@
     return X.length ? (lo + hi) / 2 : 0;
   });
   const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
-  const show = { mode: -1, state: -1, t0: 0, picked: null, bracing: false };
+  const show = { mode: -1, state: -1, loadcase: -1, t0: 0, picked: null, bracing: false };
   const bracing = doc.bracing;
+  const loads = doc.loads;                        // null for a model without load cases
+  function fmt(v) { return (v > 0 ? "+" : "") + Number(v.toPrecision(4)) + " " + loads.force_units; }
   let animating = false;
 
   function setDirection(v) {
@@ -55,7 +57,8 @@
     if (show.mode < 0) return X;
     const u = geo.modes[show.mode];
     const phase = animating ? 2 * Math.PI * ((performance.now() - show.t0) / 2000 % 1) : 0;
-    const a = geo.amplitude * geo.extent * Math.sin(phase);
+    const a = geo.amplitude * geo.extent *                       // the one-way motion: one side only
+      (show.mode === geo.one_way ? (1 + Math.sin(phase)) / 2 : Math.sin(phase));
     return X.map((p, j) => [p[0] + a * u[j][0], p[1] + a * u[j][1], p[2] + a * u[j][2]]);
   }
 
@@ -83,7 +86,8 @@
     const P = projector();
     const now = positions().map(P);
     const moving = show.mode >= 0 ? geo.moving[show.mode] : null;
-    const forces = show.state >= 0 ? geo.forces[show.state] : null;
+    const forces = show.state >= 0 ? geo.forces[show.state]
+      : show.loadcase >= 0 ? loads.cases[show.loadcase].scaled : null;
     ctx.lineCap = "round";
     if (show.mode >= 0 && E.length <= 20000) {        // the frame at rest, ghosted behind
       const rest = X.map(P);
@@ -226,6 +230,9 @@
       if (show.state >= 0) {
         const t = geo.forces[show.state][best.index];
         text += "; force " + (t > 0 ? "+" : "") + t.toFixed(3) + (t > 1e-6 ? " tension" : t < -1e-6 ? " compression" : " (none)");
+      } else if (show.loadcase >= 0) {
+        const c = loads.cases[show.loadcase], t = c.scaled[best.index] * c.largest;
+        text += "; case " + c.name + ": " + (t === 0 ? "no force" : fmt(t) + (t > 0 ? " tension" : " compression"));
       }
       out.textContent = text;
     }
@@ -278,20 +285,29 @@
   const buttons = [];
   function press(active) { for (const b of buttons) b.setAttribute("aria-pressed", String(b === active)); }
   function chooseMode(i, button) {
-    show.mode = i; show.state = -1; show.t0 = performance.now();
+    show.mode = i; show.state = -1; show.loadcase = -1; show.t0 = performance.now();
     fit(geo.views[i]);
     press(button);
     legend();
     if (!animating) { animating = true; requestAnimationFrame(draw); }
   }
   function chooseState(i, button) {
-    show.mode = -1; show.state = i; animating = false;
+    show.mode = -1; show.state = i; show.loadcase = -1; animating = false;
     fit(geo.rest_view);
     press(button);
     legend();
     draw();
   }
-  function atRest() { show.mode = -1; show.state = -1; animating = false; press(null); legend(); draw(); }
+  function chooseCase(i, button) {
+    show.mode = -1; show.state = -1; show.loadcase = i; animating = false;
+    fit(geo.rest_view);
+    press(button);
+    legend();
+    draw();
+  }
+  function atRest() {
+    show.mode = -1; show.state = -1; show.loadcase = -1; animating = false; press(null); legend(); draw();
+  }
 
   function fillLists() {
     const ml = document.getElementById("mode-list");
@@ -310,11 +326,42 @@
       b.addEventListener("click", () => chooseState(i, b));
       buttons.push(b); li.appendChild(b); sl.appendChild(li);
     });
+    if (loads) fillCases();
     if (bracing) fillBracing();
     document.getElementById("rest").addEventListener("click", atRest);
     document.getElementById("fit").addEventListener("click", () => {
       fit(show.mode >= 0 ? geo.views[show.mode] : geo.rest_view); if (!animating) draw();
     });
+  }
+
+  // The load cases: a selector that colours the members by force, and a table.
+  function fillCases() {
+    document.getElementById("case-controls").hidden = false;
+    document.getElementById("cases-section").hidden = false;
+    const cl = document.getElementById("case-list"), tb = document.querySelector("#cases tbody");
+    const row = cells => {
+      const tr = el("tr");
+      for (const c of cells) tr.appendChild(el("td", c));
+      return tr;
+    };
+    const bad = loads.cases.filter(c => !c.carried).length;
+    document.getElementById("cases-summary").textContent = plural(loads.cases.length, "case") +
+      (bad ? ", " + bad + " not carried (a load on a mechanism: no forces)" : ", every one carried") + ". " +
+      (loads.determinate ? "Statically determinate: forces from equilibrium alone."
+        : "Statically indeterminate: forces depend on the members' relative axial stiffness (EA).");
+    loads.cases.forEach((c, i) => {
+      const li = el("li"), b = el("button", c.name + (c.carried ? "" : ": not carried"));
+      b.type = "button"; b.setAttribute("aria-pressed", "false"); b.dataset.loadcase = String(i);
+      if (c.carried) b.addEventListener("click", () => chooseCase(i, b));
+      else { b.disabled = true; b.title = c.excited.map(e => e.description).join(" "); }
+      buttons.push(b); li.appendChild(b); cl.appendChild(li);
+      const side = v => v ? v[0] + " " + fmt(v[1]) : "-";
+      tb.appendChild(row([c.name, c.kind, c.carried ? "yes" : "no",
+        c.carried ? side(c.tension) : c.excited.map(e => "mechanism " + e.mode + " (" +
+          Math.round(100 * e.fraction) + " % of the load): " + e.description).join(" "),
+        c.carried ? side(c.compression) : ""]));
+    });
+    document.getElementById("forces-caution").textContent = loads.caution;
   }
 
   // The proposal: a table, and a toggle that draws the braces and gives the audit after them.
@@ -347,6 +394,14 @@
       d.appendChild(el("span", "compression -1")); d.appendChild(ramp); d.appendChild(el("span", "+1 tension"));
       box.appendChild(d);
       entries.push([COLOUR.ghost, "light grey, thin: carries nothing in this state"]);
+    } else if (show.loadcase >= 0) {
+      const c = loads.cases[show.loadcase], top = Number(c.largest.toPrecision(4));
+      const d = el("div"), ramp = el("span", null, "ramp");
+      ramp.style.background = "linear-gradient(to right, " + forceColour(-1) + ", " + forceColour(0) + ", " + forceColour(1) + ")";
+      d.appendChild(el("span", "compression -" + top)); d.appendChild(ramp);
+      d.appendChild(el("span", "+" + top + " tension (" + loads.force_units + ")"));
+      box.appendChild(d);
+      entries.push([COLOUR.ghost, "light grey, thin: carries nothing in case " + c.name]);
     } else if (show.mode >= 0) {
       entries.push([COLOUR.movingJoint, "vermillion: joints that move"],
         [COLOUR.movingMember, "blue: members at them"]);
@@ -376,6 +431,7 @@
       return [r.left + p[0] * r.width / canvas.width, r.top + p[1] * r.height / canvas.height];
     },
     chooseMode(i) { chooseMode(i, buttons[i]); },
+    chooseCase(i) { chooseCase(i, buttons.find(b => b.dataset.loadcase === String(i))); },
     bracingShown() { return show.bracing; },
     atRest,
   };

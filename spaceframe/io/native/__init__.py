@@ -52,7 +52,23 @@ stiffness in any consistent unit::
 A member id wins over a selector, a selector over the default; a member left
 without a value is an error.
 
-The top-level keys ``groups``, ``loads`` and ``notes`` are reserved for later
+Loads (``force_units``, ``[loads.NAME]``, ``[combinations.NAME]``,
+``[self_weight]``, ``[notional]``) are read and written by :mod:`spaceframe.io.loads`.
+
+The member tag ``carries`` makes members one-way: labels ``tension`` (rods,
+cables, guys) and ``compression`` (props); members not listed carry both
+(:func:`spaceframe.model.one_way_members`)::
+
+    [tags.members.carries]
+    tension = ["BC", "CA"]
+
+A model may declare the prestress it is built and kept in, as member forces
+(+ tension; members not listed carry none)::
+
+    [prestress]
+    BC = 10.0
+
+The top-level keys ``groups`` and ``notes`` are reserved for later
 versions and accepted without a word; any other unknown key draws a
 :class:`SpaceframeWarning`.
 

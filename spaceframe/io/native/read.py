@@ -19,10 +19,11 @@ from pathlib import Path
 import numpy as np
 
 from ...errors import ModelError, SpaceframeWarning, where
-from ...model import UNITS, Frame
+from ...model import CARRIES, CARRIES_TAG, UNITS, Frame
 from ...suggest import closest, did_you_mean
 from ...supports import AXES, restraint_rows
 from ...tolerances import DEFAULT, Tolerances
+from .. import loads as _loads
 from ..sourcelines import MODEL_TABLES, SourceLines, checked, toml_key
 from .write import toml_id
 
@@ -30,9 +31,10 @@ __all__ = ["read_toml", "read_json", "frame_from_document", "toml_line", "json_l
            "RESERVED_KEYS", "PROPERTIES"]
 
 #: Top-level keys the format defines.
-KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags", "properties")
+KEYS = ("name", "units", "dimension", "joints", "members", "supports", "tags",
+        "properties", "prestress") + _loads.KEYS
 #: Top-level keys reserved for later versions: accepted and ignored.
-RESERVED_KEYS = ("groups", "loads", "notes")
+RESERVED_KEYS = ("groups", "notes")
 
 #: Member properties the native format knows, with what each means.
 PROPERTIES = {"EA": "axial stiffness, in any consistent unit (only ratios are used)"}
@@ -228,12 +230,15 @@ def frame_from_document(doc: dict, *, path=None, text: str | None = None,
     restraint_joint, restraint_dir = _restraints(_section(doc, "supports", at), index,
                                                  dimension, tol, at)
     joint_tags, member_tags = _tags(doc, joint_ids, member_ids, at)
+    _check_carries(doc, at)
     properties = _properties(doc, member_ids, member_tags, at)
+    loads = _loads.read_loads(doc, dimension, joint_ids, path=source, locate=at.path)
     frame = Frame(joint_ids=joint_ids, coords=coords, member_ids=member_ids, ends=ends,
                   restraint_joint=restraint_joint, restraint_dir=restraint_dir,
                   dimension=dimension, name=name, units=units, source=source,
                   joint_tags=joint_tags, member_tags=member_tags,
-                  member_properties=properties)
+                  member_properties=properties, loads=loads,
+                  prestress=_prestress(doc, member_ids, at))
     return checked(frame, tol=tol, find=at.line)
 
 
@@ -246,6 +251,12 @@ class _Where:
 
     def line(self, kind: str, item: str) -> int | None:
         return self.lines.item(kind, item)
+
+    def path(self, *keys: str) -> int | None:
+        """The line of the key path ``keys`` (``("loads", "snow", "U1")``), else of the
+        deepest table of it found."""
+        return (self.lines.line(keys[:-1], keys[-1]) or self.lines.table(keys)
+                or self.lines.table(keys[:-1]))
 
     def error(self, message: str, kind: str | None = None, item: str | None = None, *,
               line: int | None = None) -> ModelError:
@@ -465,6 +476,54 @@ def _tags(doc: dict, joint_ids: tuple, member_ids: tuple,
                            f"tags are [tags.joints.<attribute>] or [tags.members.<attribute>]",
                            line=_tags_line(at, key))
     return out["joints"], out["members"]
+
+
+def _check_carries(doc: dict, at: _Where) -> None:
+    """The labels of ``[tags.members.carries]`` must be ``tension`` or ``compression``.
+
+    Its ids were checked with every tag; a wrong label is named with its line.
+    """
+    table = doc.get("tags", {}).get("members", {}).get(CARRIES_TAG, {})
+    for label in table:
+        if label not in CARRIES:
+            raise ModelError(f"[tags.members.{CARRIES_TAG}] label {label!r} is not known; the "
+                             f"labels are {' and '.join(CARRIES)} (members not listed carry "
+                             f"both){did_you_mean(label, CARRIES)}", path=at.source,
+                             line=_tags_line(at, "members", CARRIES_TAG, label), item=label)
+
+
+def _prestress(doc: dict, member_ids: tuple, at: _Where) -> np.ndarray | None:
+    """The declared prestress ``[prestress]``: member id = force (+ tension); others 0.
+
+    Whether it is a state of self-stress is checked by the audit, which has the
+    equilibrium matrix.
+    """
+    table = doc.get("prestress")
+    if table is None:
+        return None
+    if not isinstance(table, dict) or not table:
+        raise at.error(f"prestress must be a table {at.ref('prestress')} of member = force "
+                       f"(+ tension), e.g. {at.pair('R1', '12.5')}, listing every member that "
+                       f"carries the prestress the frame is built and kept in", "key",
+                       "prestress")
+    index = dict(zip(member_ids, range(len(member_ids))))
+    t = np.zeros(len(member_ids))
+    for key, value in table.items():
+        line = at.lines.line(("prestress",), key)
+        k = index.get(key)
+        if k is None:
+            raise ModelError(f"{at.ref('prestress')} names member {key!r}, which is not in "
+                             f"{at.ref('members')}; correct the id or remove the line"
+                             f"{did_you_mean(key, index)}", path=at.source, line=line, item=key)
+        if isinstance(value, bool) or not isinstance(value, _NUMBER) or not np.isfinite(value):
+            raise ModelError(f"{at.ref('prestress')} {key!r}: give the member's force as a "
+                             f"number (+ tension, - compression), not {value!r}",
+                             path=at.source, line=line, item=key)
+        t[k] = value
+    if not np.any(t):
+        raise at.error(f"{at.ref('prestress')} gives every member zero force; remove it, or "
+                       f"give the forces the frame is prestressed with", "key", "prestress")
+    return t
 
 
 def _properties(doc: dict, member_ids: tuple, member_tags: dict, at: _Where) -> dict:

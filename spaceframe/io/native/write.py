@@ -14,6 +14,7 @@ import numpy as np
 from ...errors import ModelError
 from ...model import Frame
 from ...supports import AXES
+from ..loads import json_entries, toml_lines
 from ..output import check_output, write_text
 
 __all__ = ["dump_toml", "dump_json", "check_model_output", "toml_id"]
@@ -97,8 +98,9 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
         If ``path`` exists and ``overwrite`` is False.
     """
     target = check_model_output(frame, path, overwrite)
+    load_head, load_tables = toml_lines(frame.loads)
     out = [f"name = {_quote(frame.name)}", f"units = {_quote(frame.units)}",
-           f"dimension = {frame.dimension}", "", "[joints]"]
+           f"dimension = {frame.dimension}", *load_head, "", "[joints]"]
     out += [f"{toml_id(j)} = {_numbers(x)}" for j, x in zip(frame.joint_ids, frame.coords)]
     out += ["", "[members]"]
     ids = frame.joint_ids
@@ -116,6 +118,11 @@ def dump_toml(frame: Frame, path, *, overwrite: bool = False) -> None:
     for name, items in _property_rows(frame):
         out += ["", f"[properties.members.{toml_id(name)}]"]
         out += [f"{toml_id(key)} = {float(v)!r}" for key, v in items]
+    out += load_tables
+    if frame.prestress is not None:
+        out += ["", "[prestress]"]
+        out += [f"{toml_id(mid)} = {float(v)!r}" for mid, v in
+                zip(frame.member_ids, frame.prestress) if v]
     write_text(target, "\n".join(out) + "\n", overwrite=overwrite, option="overwrite=True")
 
 
@@ -174,6 +181,10 @@ def dump_json(frame: Frame, path, *, overwrite: bool = False) -> None:
         inner = ",\n".join(f"    {_quote(name)}: {{" + ", ".join(
             f"{_quote(key)}: {float(v)!r}" for key, v in items) + "}" for name, items in prop_rows)
         body.append('  "properties": {\n   "members": {\n' + inner + "\n   }\n  }")
+    body += json_entries(frame.loads)
+    if frame.prestress is not None:
+        body.append(block("prestress", [(_quote(mid), repr(float(v))) for mid, v in
+                                        zip(frame.member_ids, frame.prestress) if v]))
     write_text(target, "{\n" + ",\n".join(body) + "\n}\n", overwrite=overwrite,
                option="overwrite=True")
 
