@@ -8,6 +8,7 @@ come with the package's extras (``pyproject.toml``)::
     pip install 'spaceframe[video]'      # imageio-ffmpeg, for MP4
     pip install 'spaceframe[imports]'    # trimesh, svg.path, lxml, networkx
     pip install 'spaceframe[batch]'      # dask.distributed, rich
+    pip install 'spaceframe[ifc]'        # ifcopenshell, for IFC models in and out
     pip install 'spaceframe[all]'
 
 Every optional import goes through :func:`require`, inside the function that
@@ -36,6 +37,7 @@ EXTRAS: dict[str, tuple[str, str]] = {
                            "SVG)"),
     "svg": ("imports", "SVG drawing imports"),
     "lxml": ("imports", "SVG drawing imports"),
+    "ifcopenshell": ("ifc", "Reading and writing IFC models"),
     "dask": ("batch", "Batches on Dask"),
     "distributed": ("batch", "Batches on Dask"),
 }

@@ -43,6 +43,8 @@ The extrusion spec is a small TOML file::
     [drawing]                       # only when the planar frame is a drawing
     layers = ["TRUSS"]              # layers (DXF) or colours (SVG strokes) that are members
     merge = 0.001                   # distance within which line ends are one joint
+    split = true                    # split a line where another line's end lies on it
+    units = "mm"                    # only for a drawing that declares no unit
 
 Ids of the 3D model say where an item is: ``F3.U2`` is planar joint ``U2`` in
 frame 3 (and ``F3.TC2`` planar member ``TC2`` there); ``B2.U2`` is the tie at
@@ -424,7 +426,8 @@ def extruded_counts(planar: Frame, spec: Spec) -> dict:
             "members": spec.frames * planar.n_members + (spec.frames - 1) * ties + braces + posts}
 
 
-def extrude(planar, spec, *, tol: Tolerances = DEFAULT) -> Frame:
+def extrude(planar, spec, *, tol: Tolerances = DEFAULT,
+            reading: dict | None = None) -> Frame:
     """Repeat a plane frame along a building and tie, brace and support it as the spec says.
 
     Parameters
@@ -437,6 +440,10 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT) -> Frame:
         From :func:`read_spec` or :func:`spec_from_document`, or what they read.
     tol : Tolerances, optional
         For the selectors in the spec and the checks of the result.
+    reading : dict, optional
+        Reading options of the command line (``layers``, ``units``,
+        ``merge``, ``split``; None where not given); they override the
+        spec's ``[drawing]`` table.
 
     Returns
     -------
@@ -463,7 +470,7 @@ def extrude(planar, spec, *, tol: Tolerances = DEFAULT) -> Frame:
         spec = spec_from_document(spec) if isinstance(spec, dict) else read_spec(spec)
     if not isinstance(planar, Frame):
         from .io import load_planar
-        planar = load_planar(planar, spec.drawing, tol=tol)
+        planar = load_planar(planar, spec.drawing, tol=tol, **(reading or {}))
     if planar.dimension != 2:
         raise ModelError("the planar frame must be a plane frame (dimension = 2, coordinates "
                          "[x, y]); this model is 3-dimensional: extrude a plane frame",

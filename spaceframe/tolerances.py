@@ -282,6 +282,14 @@ class Tolerances:
         moving joint ``j`` to a nearby joint ``q`` would act on it when
         ``|w . (u_q - u_j)| > hint_stretch``, ``w`` the unit vector from ``j``
         to ``q`` (the mode's largest movement 1).  Default ``0.1``.
+    held_stiffness : float
+        An IFC boundary condition that gives a translational spring instead of
+        a fixed translation holds that direction when its stiffness ``k``
+        satisfies ``k >= held_stiffness``, in N/m (the file's number, SI units
+        assumed).  Default ``1e10``: some 250 times the axial stiffness EA/L of
+        a steel tube of 10 cm^2 and 5 m (4e7 N/m), so such a support moves far
+        less than any member stretches; softer springs are left free (a
+        pin-jointed audit has no springs).
     mechanism_load : float
         A load ``f`` (all joint forces of a case, one vector) acts on the
         mechanisms, and is not carried, when ``||P f|| > mechanism_load *
@@ -388,6 +396,7 @@ class Tolerances:
     parallel_diagonals: float = 1e-6
     acts: float = 0.01
     hint_stretch: float = 0.1
+    held_stiffness: float = 1e10
     mechanism_load: float = 1e-6
     zero_force: float = 1e-9
     forces_shift: float = 1e-8

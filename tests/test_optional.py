@@ -91,7 +91,7 @@ def test_optional_modules_are_imported_only_through_require():
 
 
 def test_test_and_all_install_every_extra():
-    every = set().union(*(_extra(e) for e in ("pictures", "video", "imports", "batch")))
+    every = set().union(*(_extra(e) for e in ("pictures", "video", "imports", "batch", "ifc")))
     assert _extra("all") == every and every <= _extra("test")
 
 

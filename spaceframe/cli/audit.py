@@ -7,7 +7,9 @@ import sys
 
 import click
 
-from .common import debug_option, json_option, model_argument, run_guarded, supports_option
+from .common import (debug_option, json_option, model_argument, reading_options,
+                     run_guarded,
+                     supports_option)
 
 __all__ = ["audit_command"]
 
@@ -28,10 +30,13 @@ EXIT_MECHANISM = 1
               help="Compute every member's redundancy share (default: where it is cheap, up "
                    "to 3,000 free coordinates).")
 @supports_option
+@reading_options
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, redundancy, supports, debug):
+def audit_command(model, as_json, self_stress, method, show_all, redundancy, supports, reading,
+                  debug):
     """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
-    .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, a ...joints.csv/...members.csv pair).
+    .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, .ifc, a ...joints.csv/...members.csv
+    pair).
 
     Exit status: 0 when the frame is held (no mechanism), 1 when mechanisms are
     found, 2 for bad input or usage.
@@ -52,7 +57,7 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sup
                 raise SpaceframeError(f"--self-stress takes a whole number >= 0 or 'all', "
                                       f"not {self_stress!r}") from None
         from ..selection import supports_for
-        frame = supports_for(load(model), model, supports)
+        frame = supports_for(load(model, **reading), model, supports)
         result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
         if as_json:
             click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))

@@ -51,8 +51,8 @@ def _joint_indices(frame, ids, option: str):
 def _csv_text(doc: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
-    w.writerow(["item", "id", "start", "end", "joint", "direction", "length", "location",
-                "modes"])
+    w.writerow(["item", "id", "start", "end", "joint", "direction",
+                f"length_{doc['units']}", "location", "modes"])
     for a in doc["added"]:
         w.writerow(["member", a["id"], a["ends"][0], a["ends"][1], "", "",
                     f"{a['length']:.6g}", a["location"], " ".join(map(str, a["modes"]))])

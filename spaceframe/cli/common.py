@@ -16,6 +16,7 @@
 
 from __future__ import annotations
 
+import functools
 import sys
 import warnings
 
@@ -24,7 +25,7 @@ import click
 from ..errors import InternalError, OutputExistsError, SpaceframeError, SpaceframeWarning
 
 __all__ = ["run_guarded", "MODEL_PATH", "model_argument", "json_option", "force_option",
-           "quiet_option", "debug_option", "supports_option", "REPLACE_HINT",
+           "quiet_option", "debug_option", "supports_option", "reading_options", "REPLACE_HINT",
            "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
 
 EXIT_BAD_INPUT = 2
@@ -56,6 +57,37 @@ supports_option = click.option(
     help="A support rule 'HELD at WHERE', e.g. 'pin at z = min' or 'y at x = 0 within 10' "
          "(repeatable; applied after the model's own supports and its sidecar "
          "<model>.supports.toml).")
+
+
+def reading_options(command):
+    """``--units``, ``--layers``, ``--merge`` and ``--no-split``, passed on as ``reading``.
+
+    The command receives one keyword ``reading``: a dict of the options given
+    (None for those not given), for :func:`spaceframe.io.load`.
+    """
+    from ..model import UNITS
+
+    @functools.wraps(command)          # keeps the options already attached to the command
+    def with_reading(*args, units, layers, merge, no_split, **kw):
+        names = [n.strip() for value in layers for n in value.split(",") if n.strip()]
+        return command(*args, reading={"units": units, "layers": names or None,
+                                       "merge": merge, "split": False if no_split else None},
+                       **kw)
+    for option in reversed([
+            click.option("--units", type=click.Choice(UNITS), default=None,
+                         help="Unit of length of a file that carries none (STL, OBJ, PLY, OFF, "
+                              "a drawing without units); default m."),
+            click.option("--layers", multiple=True, metavar="NAME[,NAME]",
+                         help="Only the lines on these layers (DXF) or groups, colours or "
+                              "classes (SVG) are members."),
+            click.option("--merge", type=float, default=None, metavar="DISTANCE",
+                         help="Line or axis ends closer than this (model units) are one joint "
+                              "(drawings, IFC building models)."),
+            click.option("--no-split", "no_split", is_flag=True,
+                         help="Do not split a line where another line's end lies on it "
+                              "(T-junctions in drawings and IFC models).")]):
+        with_reading = option(with_reading)
+    return with_reading
 
 
 def run_guarded(job, *, debug: bool = False, replace_hint: str = REPLACE_HINT):

@@ -8,6 +8,7 @@ Every reader returns a :class:`~spaceframe.model.Frame` that has passed
 
 from __future__ import annotations
 
+import inspect
 import os
 from pathlib import Path
 
@@ -18,6 +19,7 @@ from . import native
 from .binary import dump_npz, read_npz
 from .csvpair import read_csv_pair
 from .drawing import DRAWING_SUFFIXES, read_drawing
+from .ifc import IFC_SUFFIXES, dump_ifc, read_ifc
 from .mesh import MESH_SUFFIXES, read_mesh
 from .output import check_output
 
@@ -26,10 +28,16 @@ __all__ = ["load", "load_planar", "save", "find_line", "READERS", "LINE_FINDERS"
 #: File suffix (lower case) -> ``reader(path, *, tol) -> Frame``.
 READERS = {".toml": native.read_toml, ".json": native.read_json, ".npz": read_npz,
            ".csv": read_csv_pair,
-           **{s: read_mesh for s in MESH_SUFFIXES}, **{s: read_drawing for s in DRAWING_SUFFIXES}}
+           **{s: read_mesh for s in MESH_SUFFIXES}, **{s: read_drawing for s in DRAWING_SUFFIXES},
+           **{s: read_ifc for s in IFC_SUFFIXES}}
 
-#: File suffix (lower case) -> ``writer(frame, path, *, overwrite)``: the native formats.
-WRITERS = {".toml": native.dump_toml, ".json": native.dump_json, ".npz": dump_npz}
+#: File suffix (lower case) -> ``writer(frame, path, *, overwrite)``: the native formats and IFC.
+WRITERS = {".toml": native.dump_toml, ".json": native.dump_json, ".npz": dump_npz,
+           **{s: dump_ifc for s in IFC_SUFFIXES}}
+
+#: Reading options and how the command line spells them, for messages.
+OPTION_NAMES = {"units": "--units", "layers": "--layers", "split": "--no-split",
+                "merge": "--merge"}
 
 #: File suffix (lower case) -> ``finder(text, kind, id) -> line or None``, used by messages.
 LINE_FINDERS = {".toml": native.toml_line, ".json": native.json_line}
@@ -40,7 +48,7 @@ def _suffixes() -> str:
     return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " or " + names[-1]
 
 
-def load(path, *, tol: Tolerances = DEFAULT) -> Frame:
+def load(path, *, tol: Tolerances = DEFAULT, **options) -> Frame:
     """Read a model file into a checked :class:`Frame`, choosing the reader by suffix.
 
     Parameters
@@ -50,6 +58,11 @@ def load(path, *, tol: Tolerances = DEFAULT) -> Frame:
         :data:`READERS`.
     tol : Tolerances, optional
         Passed to the reader's checks.
+    **options
+        Reading options for the formats that take them, None meaning not
+        given: ``units`` (files that carry no unit: STL, OBJ, PLY, OFF, and
+        drawings that declare none), ``layers``, ``merge`` and ``split``
+        (drawings; ``merge`` and ``split`` also IFC building models).
 
     Returns
     -------
@@ -82,25 +95,35 @@ def load(path, *, tol: Tolerances = DEFAULT) -> Frame:
         raise ModelError(f"cannot read {kind}; spaceframe reads {_suffixes()} model files: "
                          f"give the file one of those suffixes if that is what it holds",
                          path=source)
-    return reader(source, tol=tol)
+    given = {k: v for k, v in options.items() if v is not None}
+    accepted = inspect.signature(reader).parameters
+    wrong = [k for k in given if k not in accepted]
+    if wrong:
+        takers = [s for s, r in READERS.items() if wrong[0] in inspect.signature(r).parameters]
+        raise ModelError(f"{OPTION_NAMES.get(wrong[0], wrong[0])} does not apply to "
+                         f"'{p.suffix}' files (it applies to {', '.join(takers) or 'none'}); "
+                         f"leave it out", path=source)
+    return reader(source, tol=tol, **given)
 
 
-def load_planar(path, options: dict | None = None, *, tol: Tolerances = DEFAULT) -> Frame:
+def load_planar(path, options: dict | None = None, *, tol: Tolerances = DEFAULT,
+                **given) -> Frame:
     """Read a plane frame: a model file, or a drawing read with ``options``.
 
     ``options`` are the ``[drawing]`` table of an extrusion spec (see
     :func:`spaceframe.io.drawing.read_drawing`); they are ignored for model
-    files.
+    files.  ``given`` are the command line's reading options (as for
+    :func:`load`); they override the table's.
     """
     source = os.fspath(path)
+    given = {k: v for k, v in given.items() if v is not None}
     if Path(source).suffix.lower() in DRAWING_SUFFIXES and Path(source).is_file():
-        from .drawing import read_drawing
-        return read_drawing(source, tol=tol, **(options or {}))
-    return load(source, tol=tol)
+        return read_drawing(source, tol=tol, **{**(options or {}), **given})
+    return load(source, tol=tol, **given)
 
 
 def save(frame: Frame, path, *, overwrite: bool = False, inputs=()) -> None:
-    """Write a frame as a native model file (``.toml``, ``.json`` or ``.npz``, by the suffix).
+    """Write a frame as a model file: ``.toml``, ``.json``, ``.npz`` or ``.ifc``, by the suffix.
 
     Parameters
     ----------

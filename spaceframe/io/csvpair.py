@@ -80,8 +80,11 @@ def _rows(path: Path, required: tuple[str, ...], optional: tuple[str, ...] = ())
         yield line, {n: v.strip() for n, v in zip(names, row)}
 
 
-def read_csv_pair(path, *, tol: Tolerances = DEFAULT) -> Frame:
+def read_csv_pair(path, *, tol: Tolerances = DEFAULT, units: str | None = None) -> Frame:
     """Read a CSV pair into a checked :class:`Frame`.
+
+    ``units`` names the unit of length of the coordinates, which a CSV pair
+    does not carry (default ``"m"``).
 
     Raises
     ------
@@ -91,7 +94,10 @@ def read_csv_pair(path, *, tol: Tolerances = DEFAULT) -> Frame:
         naming an unknown joint, or a bad support code; each with its file
         and row.
     """
+    from .mesh import file_units
+
     jfile, mfile = partner(path)
+    units = file_units(None, units, str(jfile))
     ids, coords, lines, supports = [], [], {}, []
     dimension = None
     for line, row in _rows(jfile, ("id", "x", "y"), ("z", "support")):
@@ -147,5 +153,6 @@ def read_csv_pair(path, *, tol: Tolerances = DEFAULT) -> Frame:
                   ends=np.array(ends, dtype=np.int64).reshape(-1, 2),
                   restraint_joint=np.array(rj, dtype=np.int64),
                   restraint_dir=np.array(rd, dtype=float).reshape(-1, dimension),
-                  dimension=dimension, name=jfile.stem, source=str(jfile), lines=lines)
+                  dimension=dimension, name=jfile.stem, units=units, source=str(jfile),
+                  lines=lines)
     return checked(frame, tol=tol)

@@ -1,19 +1,23 @@
 """Meshes and line files as frames: every unique edge a member, every vertex a joint.
 
-Read through trimesh's loaders (STL, PLY, OFF, glTF/GLB, and the faces of
-OBJ), except OBJ line elements (``l``), which this module reads itself: a
-file with lines only would come back from the loader as a point cloud.
+Read through trimesh's loaders (STL, PLY, glTF/GLB, and the faces of OBJ),
+except OBJ line elements (``l``), which this module reads itself (a file with
+lines only would come back from the loader as a point cloud), and OFF, read
+here so that its polygons keep their sides.
 
 - Faces keep their polygons: each side of a face is a member; no diagonal is
-  added to a quadrilateral.  OFF files are split into triangles by their
-  loader, so an OFF face with more than three corners is refused.
+  added to a quadrilateral (OBJ, PLY and OFF polygons alike).
 - Vertices closer than ``tol.merge * size`` (``size`` the diagonal of the
   vertices' bounding box, :class:`~spaceframe.tolerances.Tolerances`) are one
   joint: an STL file gives each triangle its own three corners.
 - An edge whose two ends merge into one joint is dropped with a warning.
-- An edge shared by more than two faces (a non-manifold mesh) is refused: the
-  faces meet in a way no surface of a frame does, most often faces given
-  twice or stacked; export the members as lines instead.
+- An edge is a member once, however many faces share it: a space-frame mesh
+  whose web edges are sides of three faces or more (non-manifold) is read
+  as drawn.  Only faces given twice over the same corners are reported, and
+  dropped.
+- Units: glTF is in metres by its specification; STL, OBJ, PLY and OFF carry
+  no unit, so their lengths are ``units`` (the ``--units`` option), or
+  metres when it is not given.
 - Joints are ``J1, J2...`` in the order their first vertex appears; members
   ``M1, M2...`` in the order of their first edge.  A mesh has no supports:
   give them with selection rules (:mod:`spaceframe.selection`).
@@ -29,17 +33,56 @@ import numpy as np
 
 from .._optional import require
 from ..errors import ModelError, SpaceframeWarning, where
-from ..model import Frame, bounding_diagonal
+from ..model import UNITS, Frame, bounding_diagonal
 from ..tolerances import DEFAULT, Tolerances
 from .sourcelines import checked
 
-__all__ = ["read_mesh", "frame_from_edges", "MESH_SUFFIXES"]
+__all__ = ["read_mesh", "frame_from_edges", "file_units", "MESH_SUFFIXES"]
 
 #: Suffixes read by :func:`read_mesh`.
 MESH_SUFFIXES = (".stl", ".obj", ".ply", ".off", ".glb", ".gltf")
+#: Formats whose unit of length is fixed by their specification.
+_FIXED_UNITS = {".glb": "m", ".gltf": "m"}
 
 
-def read_mesh(path, *, tol: Tolerances = DEFAULT) -> Frame:
+def file_units(found: str | None, given: str | None, source: str, *, how: str = "") -> str:
+    """The frame's unit of length from what the file says and what the user gave.
+
+    Parameters
+    ----------
+    found : str or None
+        The unit the file declares (one of :data:`~spaceframe.model.UNITS`),
+        or None when it declares none.
+    given : str or None
+        The ``--units`` option, or None.
+    how : str
+        Where the file says it, for the message (``"$INSUNITS = 4"``).
+
+    Returns
+    -------
+    units : str
+        ``found`` when the file declares a unit, else ``given``, else ``"m"``.
+
+    Raises
+    ------
+    ModelError
+        For a ``given`` unit that is not one of ``UNITS``, or one that
+        contradicts the unit the file declares.
+    """
+    if given is not None and given not in UNITS:
+        from ..suggest import did_you_mean
+        raise ModelError(f"unknown unit {given!r}{did_you_mean(given, UNITS)}; --units takes "
+                         f"one of {', '.join(UNITS)}", path=source)
+    if found is None:
+        return given or "m"
+    if given is not None and given != found:
+        said = f" ({how})" if how else ""
+        raise ModelError(f"gives its lengths in {found}{said}, but --units says {given}; "
+                         f"leave --units out (it is for files that carry no unit)", path=source)
+    return found
+
+
+def read_mesh(path, *, tol: Tolerances = DEFAULT, units: str | None = None) -> Frame:
     """Read a mesh or line file into a checked space :class:`Frame` without supports.
 
     Parameters
@@ -48,29 +91,39 @@ def read_mesh(path, *, tol: Tolerances = DEFAULT) -> Frame:
         An ``.stl``, ``.obj``, ``.ply``, ``.off``, ``.glb`` or ``.gltf`` file.
     tol : Tolerances, optional
         ``tol.merge`` sets the distance within which vertices are one joint.
+    units : str, optional
+        The unit of length of a file that carries none (STL, OBJ, PLY, OFF);
+        default ``"m"``.  glTF is in metres.
 
     Returns
     -------
     frame : Frame
-        ``dimension == 3``, units ``"m"`` (a mesh does not say; results do
-        not depend on it).
+        ``dimension == 3``, in ``units``.
 
     Raises
     ------
     ModelError
-        For a file the loader cannot read, a mesh with no edges, a
-        non-manifold edge, an OBJ line element naming a vertex that does not
-        exist (with its line), an OFF face of more than three corners.
+        For a file the loader cannot read, a mesh with no edges, an OBJ line
+        element naming a vertex that does not exist (with its line), an OFF
+        face naming a vertex that does not exist, a unit that contradicts
+        the format's.
+
+    Warns
+    -----
+    SpaceframeWarning
+        For faces given twice over the same corners (dropped).
 
     Notes
     -----
     Cost O(V log V + E log E) for V vertices and E edges (a k-d tree for the
-    merge, a sort for unique edges).
+    merge, a sort for unique edges and faces).
     """
     source = os.fspath(path)
     suffix = Path(source).suffix.lower()
     if not Path(source).is_file():
         raise ModelError("no such file; check the path and its spelling", path=source)
+    units = file_units(_FIXED_UNITS.get(suffix), units, source,
+                       how=f"{suffix[1:]} is in metres by its specification")
     points, edges, faces = [], [], []
     if suffix == ".obj":
         v, lines, has_faces = _obj_lines(source)
@@ -79,27 +132,29 @@ def read_mesh(path, *, tol: Tolerances = DEFAULT) -> Frame:
         if has_faces:
             fv, ff = _loaded_polygons(source, "obj")
             faces.append((fv, ff, len(v)))
+    elif suffix == ".off":
+        faces.append((*_off_polygons(source), 0))
     else:
         fv, ff = _loaded_polygons(source, suffix[1:])
         faces.append((fv, ff, 0))
     offset = sum(len(p) for p in points)
     for fv, ff, _ in faces:
         points.append(fv)
-        face_edges = _polygon_edges(ff)
-        _check_manifold(face_edges, fv, source)
-        edges.append(face_edges + offset)
+        _warn_duplicate_faces(ff, fv, source)
+        edges.append(_polygon_edges(ff) + offset)
         offset += len(fv)
     coords = np.concatenate(points) if points else np.zeros((0, 3))
     all_edges = np.concatenate(edges) if edges else np.zeros((0, 2), dtype=np.int64)
     if len(all_edges) == 0:
         raise ModelError("holds no faces and no lines, so there is no member to audit; export "
                          "the frame's members as faces or as line elements", path=source)
-    return frame_from_edges(coords, all_edges, source=source, tol=tol)
+    return frame_from_edges(coords, all_edges, source=source, tol=tol, units=units)
 
 
 def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerances = DEFAULT,
                      dimension: int = 3, merge: float | None = None, name: str | None = None,
-                     what: str = "edge") -> Frame:
+                     what: str = "edge", units: str = "m", edge_ids=None, edge_tags=None,
+                     point_tags=None) -> Frame:
     """Merge coincident points into joints and unique edges into members.
 
     Parameters
@@ -111,6 +166,13 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
         Absolute merge distance; default ``tol.merge * size``.
     what : str
         What an edge is called in messages (``"edge"``, ``"line"``).
+    units : str
+        The frame's unit of length (one of :data:`spaceframe.model.UNITS`).
+    edge_ids : (e,) sequence of str, optional
+        Member ids of the edges (default ``M1, M2...`` in the order kept).
+    edge_tags, point_tags : mapping of str to (e,) or (p,) sequence of str, optional
+        Member tags of the edges; joint tags of the points (a joint takes
+        those of its first point).
 
     Returns
     -------
@@ -164,18 +226,24 @@ def frame_from_edges(points, edges, *, source: str | None = None, tol: Tolerance
         warnings.warn(f"{where(source)}{int((counts - 1).sum())} {what}(s) drawn twice over the "
                       f"same two joints, counted once; the first between {_point(coords[ends[k, 0]])}"
                       f" and {_point(coords[ends[k, 1]])}", SpaceframeWarning, stacklevel=3)
+    kept = np.flatnonzero(~loops)[np.sort(first)]     # input edge of each member
     ends = ends[np.sort(first)]
     stem = Path(source).stem if source is not None else ""
+    member_ids = (tuple(f"M{i + 1}" for i in range(len(ends))) if edge_ids is None
+                  else tuple(str(edge_ids[k]) for k in kept))
     frame = Frame(joint_ids=tuple(f"J{i + 1}" for i in range(len(coords))), coords=coords,
-                  member_ids=tuple(f"M{i + 1}" for i in range(len(ends))), ends=ends,
+                  member_ids=member_ids, ends=ends,
                   restraint_joint=np.zeros(0, dtype=np.int64),
                   restraint_dir=np.zeros((0, dimension)), dimension=dimension,
-                  name=stem if name is None else name, source=source)
+                  name=stem if name is None else name, units=units, source=source,
+                  joint_tags={k: [str(v[i]) for i in rep[keep]] for k, v in
+                              (point_tags or {}).items()},
+                  member_tags={k: [str(v[i]) for i in kept] for k, v in (edge_tags or {}).items()})
     return checked(frame, tol=tol)
 
 
 def _point(x) -> str:
-    return "(" + ", ".join(f"{v:.6g}" for v in x) + ")"
+    return "(" + ", ".join(f"{v + 0.0:.6g}" for v in x) + ")"      # no "-0"
 
 
 def _polygon_edges(faces) -> np.ndarray:
@@ -187,24 +255,25 @@ def _polygon_edges(faces) -> np.ndarray:
     return np.array(out, dtype=np.int64).reshape(-1, 2)
 
 
-def _check_manifold(edges: np.ndarray, points: np.ndarray, source: str) -> None:
-    if len(edges) == 0:
+def _warn_duplicate_faces(faces, points: np.ndarray, source: str) -> None:
+    """Warn about faces given twice over the same corners (the edges are counted once anyway)."""
+    if not len(faces):
         return
     # compare by coordinates: loaders may give each face its own corners
     _, inverse = np.unique(np.round(points, 12), axis=0, return_inverse=True)
-    key = np.sort(inverse.reshape(-1)[edges], axis=1)
-    _, counts = np.unique(key, axis=0, return_counts=True)
-    if (counts > 2).any():
-        k = np.flatnonzero(counts > 2)
-        uniq = np.unique(key, axis=0)
-        a, b = uniq[k[0]]
-        pa = points[np.flatnonzero(inverse.reshape(-1) == a)[0]]
-        pb = points[np.flatnonzero(inverse.reshape(-1) == b)[0]]
-        raise ModelError(f"is a non-manifold mesh: {len(k)} edge(s) are sides of three faces or "
-                         f"more, the first from {_point(pa)} to {_point(pb)} "
-                         f"({counts[k[0]]} faces); faces are given twice or stacked there: "
-                         f"remove the extra faces, or export the members as lines (OBJ 'l' "
-                         f"elements or a CSV pair)", path=source)
+    inverse = inverse.reshape(-1)
+    seen, twice, first = set(), 0, None
+    for face in faces:
+        key = tuple(sorted(int(inverse[int(i)]) for i in face))
+        if key in seen:
+            twice += 1
+            first = face if first is None else first
+        seen.add(key)
+    if twice:
+        warnings.warn(f"{where(source)}{twice} face(s) given twice over the same corners, "
+                      f"dropped (each edge is a member once); the first has corners "
+                      f"{', '.join(_point(points[int(i)]) for i in first)}", SpaceframeWarning,
+                      stacklevel=4)
 
 
 def _loaded_polygons(source: str, file_type: str) -> tuple[np.ndarray, list]:
@@ -249,29 +318,61 @@ def _loaded_polygons(source: str, file_type: str) -> tuple[np.ndarray, list]:
             faces.extend([[int(i) + offset for i in face] for face in f])
         verts.append(v)
         offset += len(v)
-    if file_type == "off":
-        _check_off_polygons(source, len(faces))
     return (np.concatenate(verts) if verts else np.zeros((0, 3))), faces
 
 
-def _check_off_polygons(source: str, triangles: int) -> None:
-    """Refuse OFF faces of more than 3 corners: the loader splits them, adding members."""
-    with open(source, "rb") as fh:
-        words = []
-        for raw in fh:
-            line = raw.split(b"#")[0].split()
-            words.extend(line)
-            if len(words) >= 3 and words[0].upper().endswith(b"OFF"):
-                break
+def _off_polygons(source: str) -> tuple[np.ndarray, list]:
+    """Vertices and polygons of an OFF file (``OFF``, ``COFF``, ``NOFF``... headers).
+
+    The header keyword, then the counts ``V F E``, then ``V`` vertex rows
+    (``x y z`` and any colour or normal after), then ``F`` face rows (``k``
+    then ``k`` vertex numbers from 0, any colour after).  ``#`` starts a
+    comment.
+    """
     try:
-        declared = int(words[2])
+        text = Path(source).read_text(encoding="utf-8", errors="replace")
+    except OSError as exc:
+        raise ModelError(f"cannot be read ({exc})", path=source) from None
+    rows = [(n, line.split("#")[0].split()) for n, line in enumerate(text.splitlines(), 1)]
+    rows = [(n, words) for n, words in rows if words]
+    if not rows or not rows[0][1][0].upper().endswith("OFF"):
+        raise ModelError("is not an OFF file: its first word must be OFF (or COFF, NOFF...)",
+                         path=source, line=rows[0][0] if rows else None)
+    first = rows[0][1][1:]
+    rows = rows[1:]
+    if not first:
+        if not rows:
+            raise ModelError("has no counts line 'vertices faces edges' after OFF", path=source)
+        (counts_line, first), rows = rows[0], rows[1:]
+    else:
+        counts_line = 1
+    try:
+        nv, nf = int(first[0]), int(first[1])
     except (IndexError, ValueError):
-        return
-    if triangles > declared:
-        raise ModelError(f"has faces of more than three corners ({declared} faces became "
-                         f"{triangles} triangles); the OFF loader splits them, adding diagonals "
-                         f"that are not in the frame: export as OBJ or PLY, which keep "
-                         f"polygons, or as triangles only", path=source)
+        raise ModelError("the counts line must be 'vertices faces edges' (whole numbers)",
+                         path=source, line=counts_line) from None
+    if len(rows) < nv + nf:
+        raise ModelError(f"declares {nv} vertices and {nf} faces but has only {len(rows)} rows "
+                         f"after the counts; the file is cut short", path=source)
+    try:
+        verts = np.array([[float(x) for x in words[:3]] for _, words in rows[:nv]], dtype=float)
+    except ValueError:
+        raise ModelError("a vertex row has a coordinate that is not a number; fix the number",
+                         path=source) from None
+    faces = []
+    for number, words in rows[nv:nv + nf]:
+        try:
+            k = int(words[0])
+            face = [int(w) for w in words[1:1 + k]]
+        except ValueError:
+            raise ModelError("a face row must be 'k i1 ... ik' with whole numbers", path=source,
+                             line=number) from None
+        if len(face) != k or any(not 0 <= i < nv for i in face):
+            raise ModelError(f"face {' '.join(words)!r} names a vertex that does not exist "
+                             f"(vertices are numbered 0 to {nv - 1}); correct it", path=source,
+                             line=number)
+        faces.append(face)
+    return verts.reshape(-1, 3), faces
 
 
 def _obj_lines(source: str) -> tuple[np.ndarray, np.ndarray, bool]:

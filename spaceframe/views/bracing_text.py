@@ -5,7 +5,7 @@ from __future__ import annotations
 from ..analysis.bracing import BRACING_CAUTION
 from ..results import CAUTION
 from .bracing_document import bracing_document
-from .text import verdict
+from .text import is_imported, joint_label, verdict
 
 __all__ = ["render_bracing"]
 
@@ -25,6 +25,7 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     """
     f, doc = r.frame, bracing_document(r)
     units = f.units
+    name = (lambda j: joint_label(f, j)) if is_imported(f) else str   # where, for imports
     lines = [f"Bracing recommendation: {f.name or '(unnamed frame)'}"
              + (f"  [{f.source}]" if f.source else "")]
     b = r.before
@@ -42,7 +43,8 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
         lines.append(f"Members to add ({len(added)}), the fewest and then the shortest that "
                      f"remove what the candidates can:")
         rows = [("id", "from", "to", f"length {units}", "where", "modes acted on")]
-        rows += [(a["id"], a["ends"][0], a["ends"][1], f"{a['length']:.3f}", a["location"],
+        rows += [(a["id"], name(a["ends"][0]), name(a["ends"][1]), f"{a['length']:.3f}",
+                  a["location"],
                   _modes(a["modes"])) for a in added[:max_rows]]
         lines += _table(rows)
         if len(added) > max_rows:
@@ -53,7 +55,7 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
         lines.append("")
         lines.append(f"Restraints to add ({len(doc['restraints_added'])}):")
         rows = [("joint", "held direction", "modes acted on")]
-        rows += [(x["joint"], x["axis"] or str(x["direction"]), _modes(x["modes"]))
+        rows += [(name(x["joint"]), x["axis"] or str(x["direction"]), _modes(x["modes"]))
                  for x in doc["restraints_added"][:max_rows]]
         lines += _table(rows)
     lines.append("")
