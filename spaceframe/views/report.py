@@ -38,7 +38,7 @@ LIMITS = (
     "First-order analysis: a mechanism found may be infinitesimal only; one that a prestress "
     "would stiffen is still a mechanism unless the model declares that prestress, and "
     "relying on prestress for stability is a design decision for a competent engineer.",
-        "Stability and, where load cases are given, first-order axial forces of the idealised "
+    "Stability and, where load cases are given, first-order axial forces of the idealised "
     "frame only: no member sizing, buckling or connection design; load values are the user's.",
     "Movements in the 3D view are drawn enlarged, at "
     f"{AMPLITUDE:.0%} of the frame's size: the shape of a mechanism, not its size.",
