@@ -7,16 +7,13 @@ import io
 
 import numpy as np
 
+from ..naming import count as counted
 from ..force_results import FORCES_CAUTION, STIFFNESS_NOTE, ForcesResult
 
 __all__ = ["render_forces", "forces_csv", "bracing_members"]
 
 #: Member tags that mark bracing and ties (an extruded model's ``group``, or ``role``).
 _BRACING = {"brace", "tie", "purlin", "ridge", "bracing"}
-
-
-def _count(n: int, word: str) -> str:
-    return f"{n} {word}{'' if n == 1 else 's'}"
 
 
 def _state(value: float) -> str:
@@ -58,7 +55,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         ea = ("from the model's [properties.members.EA]" if r.ea_given
               else "taken as uniform because the model gives no [properties.members.EA]")
         out.append(STIFFNESS_NOTE.format(ea=ea)
-                   + f" ({_count(r.self_stress_states, 'state')} of self-stress.)")
+                   + f" ({counted(r.self_stress_states, 'state')} of self-stress.)")
     width = max([len(m) for m in f.member_ids] + [6])
     for i, name in enumerate(r.names):
         total = ", ".join(f"{v:.4g}" for v in r.loads[i].sum(axis=0))
@@ -75,7 +72,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         t = r.shown_forces(i)
         order = np.argsort(-np.abs(t), kind="stable")
         nt, nc = int(np.sum(t > 0)), int(np.sum(t < 0))
-        out.append(f"  carried ({r.methods[i]}): {_count(nt, 'member')} in tension, {nc} in "
+        out.append(f"  carried ({r.methods[i]}): {counted(nt, 'member')} in tension, {nc} in "
                    f"compression, {f.n_members - nt - nc} carrying nothing")
         if r.slack[i]:
             out.append(f"  slack (tension-only, left out): {', '.join(r.slack[i])}")
@@ -123,8 +120,8 @@ def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
     order = np.argsort(-peak, kind="stable")
     ever_t, ever_c = int(np.sum(env.tension > 0)), int(np.sum(env.compression < 0))
     cw = max(len(n) for n in r.names)
-    out = ["", f"Envelope over the {_count(int(r.carried.sum()), 'carried case')}: "
-               f"{_count(ever_t, 'member')} in tension and {ever_c} in compression in some case "
+    out = ["", f"Envelope over the {counted(int(r.carried.sum()), 'carried case')}: "
+               f"{counted(ever_t, 'member')} in tension and {ever_c} in compression in some case "
                f"(members in compression need restraint against buckling)",
            f"  {'member':<{width}}  {'tension ' + u:>12}  {'case':<{cw}}  "
            f"{'compression ' + u:>14}  case"]
