@@ -30,7 +30,8 @@ import scipy.sparse as sp
 from ..model import Frame
 from ..tolerances import DEFAULT, Tolerances
 
-__all__ = ["FreeDofs", "free_dofs", "compatibility_matrix", "rigid_body_motions",
+__all__ = ["FreeDofs", "free_dofs", "compatibility_matrix", "axial_stiffness", "stiffness_matrix",
+           "rigid_body_motions",
            "to_joint_displacements"]
 
 
@@ -150,6 +151,28 @@ def compatibility_matrix(frame: Frame, dofs: FreeDofs | None = None) -> sp.csr_m
                       shape=(m, dofs.total))
     C.eliminate_zeros()
     return C
+
+
+def axial_stiffness(lengths, ea=None) -> np.ndarray:
+    """Each member's axial stiffness ``EA / L``, ``(m,) float``; ``EA`` uniform (1) when None.
+
+    Parameters
+    ----------
+    lengths : (m,) float
+        Member lengths.
+    ea : (m,) float, optional
+        Axial stiffnesses (the model's ``[properties.members.EA]``; only ratios matter).
+    """
+    lengths = np.asarray(lengths, float)
+    return (np.ones(len(lengths)) if ea is None else np.asarray(ea, float)) / lengths
+
+
+def stiffness_matrix(C: sp.spmatrix, lengths, ea=None) -> sp.csc_matrix:
+    """The stiffness matrix ``K = C.T diag(EA / L) C`` on the free coordinates, CSC.
+
+    Cost O(nnz(C) * (joint degree)).
+    """
+    return (C.T @ sp.diags(axial_stiffness(lengths, ea)) @ C).tocsc()
 
 
 def to_joint_displacements(vectors: np.ndarray, dofs: FreeDofs) -> np.ndarray:

@@ -52,7 +52,8 @@ from ..force_results import ExcitedMechanism, ForcesResult
 from ..loads import LoadSet
 from ..model import Frame, one_way_members
 from ..tolerances import DEFAULT, Tolerances
-from .equilibrium import FreeDofs, compatibility_matrix, free_dofs
+from .equilibrium import (FreeDofs, axial_stiffness, compatibility_matrix, free_dofs,
+                          stiffness_matrix)
 
 __all__ = ["forces"]
 
@@ -342,8 +343,8 @@ def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs, tol: Tolerances) -
     from .nullspace import _ordering
 
     N = C.shape[1]
-    w = (np.ones(C.shape[0]) if ea is None else np.asarray(ea, float)) / lengths
-    K = (C.T @ sp.diags(w) @ C).tocsc()
+    w = axial_stiffness(lengths, ea)
+    K = stiffness_matrix(C, lengths, ea)
     diag = K.diagonal()
     typical = float(np.median(diag[diag > 0]))
     M, _ = np.linalg.qr(mech) if mech.shape[1] else (mech, None)

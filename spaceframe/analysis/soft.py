@@ -24,6 +24,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from .equilibrium import axial_stiffness, stiffness_matrix
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["SoftModes", "soft_modes", "typical_stiffness"]
@@ -88,8 +89,7 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None
     empty = SoftModes(np.zeros(0), np.zeros((N, 0)), 0)
     if width <= 0 or m == 0:
         return empty
-    w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
-    K = (C.T @ sp.diags(w) @ C).tocsc()
+    K = stiffness_matrix(C, lengths, ea)
     if typical is None:
         diag = K.diagonal()
         typical = float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
@@ -114,9 +114,7 @@ def typical_stiffness(C, lengths, ea=None) -> float:
 
     The diagonal is ``sum_e w_e C[e, i]**2``, formed without the matrix: O(nnz(C)).
     """
-    m = C.shape[0]
-    w = (np.ones(m) if ea is None else np.asarray(ea, float)) / lengths
-    diag = np.asarray(sp.csr_matrix(C).multiply(C).T @ w).ravel()
+    diag = np.asarray(sp.csr_matrix(C).multiply(C).T @ axial_stiffness(lengths, ea)).ravel()
     return float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
 
 
