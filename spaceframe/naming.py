@@ -10,6 +10,8 @@ from __future__ import annotations
 import re
 from typing import Iterable
 
+import numpy as np
+
 from .tolerances import DISPLAY
 
 __all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz"]
@@ -99,3 +101,23 @@ def xyz(point, size: float = 1.0) -> str:
     """Coordinates as ``2.5, 0, 1.5`` (3 significant figures; tiny values as 0)."""
     return ", ".join(f"{0.0 if abs(c) <= DISPLAY.zero_coordinate * size else c:.3g}"
                      for c in point)
+
+
+def direction_words(v, *, signed: bool = True) -> str:
+    """A direction in words: ``along +x`` when nearly along an axis (``along x`` with
+    ``signed`` false), else ``along (+0.50, +0.87, +0.00)``.
+
+    "Nearly" is ``|v_a| >= Display.along_axis * ||v||`` for the largest component.
+
+    Examples
+    --------
+    >>> direction_words([0.0, -1.0, 0.01]), direction_words([0.0, -1.0, 0.0], signed=False)
+    ('along -y', 'along y')
+    >>> direction_words([0.6, 0.8, 0.0])
+    'along (+0.60, +0.80, +0.00)'
+    """
+    v = np.asarray(v, dtype=float)
+    a = int(np.argmax(np.abs(v)))
+    if abs(v[a]) >= DISPLAY.along_axis * np.linalg.norm(v):
+        return f"along {('+' if v[a] > 0 else '-') if signed else ''}{'xyz'[a]}"
+    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"

@@ -104,6 +104,13 @@ class Display:
         A plane is named by an axis (``horizontal plane z = 2.4``, ``the
         plane y = 0``) when its unit normal ``n`` has ``|n_a| > axis_plane``,
         and called vertical when ``|n_z| < 1 - axis_plane``.  Default ``0.999``.
+    along_axis : float
+        A direction ``v`` is worded by its axis (``along +x``) when its
+        largest component has ``|v_a| >= along_axis * ||v||``, and otherwise by
+        its components (``along (+0.50, +0.87, +0.00)``); a slide is called
+        along the building when its unit direction ``u`` and the extrusion
+        direction ``e`` have ``|u . e| >= along_axis``.  Default ``0.98``
+        (within about 11 degrees of the axis).
     """
 
     moving: float = 0.05
@@ -112,6 +119,7 @@ class Display:
     force_decimals: int = 3
     zero_coordinate: float = 1e-9
     axis_plane: float = 0.999
+    along_axis: float = 0.98
 
 
 @dataclass(frozen=True)

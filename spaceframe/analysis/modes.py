@@ -33,7 +33,8 @@ import numpy as np
 import scipy.sparse as sp
 
 from ..model import Frame
-from ..naming import count, join_words, natural_key, numbered_only, placed, xyz
+from ..naming import (count, direction_words, join_words, natural_key, numbered_only, placed,
+                      xyz)
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
@@ -422,8 +423,8 @@ class _Context:
             pattern = {"local": "local", "out-of-plane": "out-of-plane", "lean": "leaning",
                        "tie-line": "sliding", "sway": "swaying", "other": "spread-out"}[kind]
             text = (f"{count(len(jids), 'joint')} move, most at {self.label(peak)} "
-                    f"({_dir_words(direction)} mostly), in a {pattern} pattern held only weakly "
-                    f"by member stretching")
+                    f"({direction_words(direction)} mostly), in a {pattern} pattern held only "
+                    f"weakly by member stretching")
         else:
             kind, text, extra = self._internal(u, moving, direction, parallel, frames, peak)
             text += self._plane_note(u, moving)
@@ -468,8 +469,8 @@ class _Context:
         if spin < self.tol.pure_translation * max(np.linalg.norm(t), 1e-300):
             direction = t / np.linalg.norm(t)
             building = " (along the building)" if self.extrusion is not None and \
-                abs(direction @ self.extrusion) >= 0.98 else ""
-            return (f"The whole frame can slide {_dir_words(direction)}{building}: no support "
+                abs(direction @ self.extrusion) >= DISPLAY.along_axis else ""
+            return (f"The whole frame can slide {direction_words(direction)}{building}: no support "
                     f"holds it that way.", direction)
         if d == 2:
             p = c + np.array([-t[1], t[0]]) / om[0]
@@ -484,7 +485,7 @@ class _Context:
         if len(on_axis) >= 2:
             where = f"the line through joints {on_axis[0]} and {on_axis[-1]}"
         else:
-            where = f"an axis {_dir_words(axis, along=True)} through ({xyz(p, self.size)})"
+            where = f"an axis {direction_words(axis, signed=False)} through ({xyz(p, self.size)})"
         return (f"The whole frame can turn about {where}: the supports do not stop the "
                 f"rotation.", axis)
 
@@ -512,23 +513,24 @@ class _Context:
         if n_mov == 1 and len(self.members_at(moving[0])) == 0:
             if moving[0] in self.held:
                 return "local", (f"Joint {first} has no members and its support leaves it free "
-                                 f"{_dir_words(direction)}."), {}
+                                 f"{direction_words(direction)}."), {}
             return "local", (f"Joint {first} has no members and no support: it is free "
-                             f"{_dir_words(direction)}."), {}
+                             f"{direction_words(direction)}."), {}
         # out of the plane of the members at each moving joint
         if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
             if n_mov == 1:
                 return "out-of-plane", (f"Joint {first} is free out of the plane of its "
-                                        f"members ({_dir_words(direction)}): no member or "
+                                        f"members ({direction_words(direction)}): no member or "
                                         f"support holds it that way."), {}
             return "out-of-plane", (f"Joints {names} can move out of the plane of their members "
-                                    f"({_dir_words(direction)}), with nothing to stop them."), {}
+                                    f"({direction_words(direction)}), with nothing to stop "
+                                    f"them."), {}
         # collinear members: free sideways
         if n_mov == 1:
             ms = self.members_at(moving[0])
             if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
                 return "local", (f"Joint {first} lies on a straight line of members and is "
-                                 f"free sideways to them ({_dir_words(direction)})."), {}
+                                 f"free sideways to them ({direction_words(direction)})."), {}
         along_building = self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 \
             and abs(direction @ self.extrusion) >= 0.9
         if along_building:
@@ -540,16 +542,17 @@ class _Context:
             # a row of frames leaning together: whole frames move the same way along it
             if np.all(along > 0) or np.all(along < 0):
                 return "lean", (f"Frames {_span(frames)} can lean together along the building "
-                                f"({_dir_words(direction)}): no bracing between those frames "
+                                f"({direction_words(direction)}): no bracing between those frames "
                                 f"holds them."), {}
         # several joints moving together sideways
         if n_mov >= 2 and parallel >= 0.9 and abs(direction[self.up]) <= 0.5:
             return self._sway(u, moving, direction)
         if n_mov <= LOCAL_JOINTS:
-            return "local", (f"Joints {names} can move together ({_dir_words(direction)} "
+            return "local", (f"Joints {names} can move together ({direction_words(direction)} "
                              f"mostly) without any member changing length."), {}
         return "other", (f"{n_mov} joints move together, most at {self.label(peak)} "
-                         f"({_dir_words(direction)} mostly), with no member changing length."), {}
+                         f"({direction_words(direction)} mostly), with no member changing "
+                         f"length."), {}
 
     # -- lines of joints along an extruded building ----------------------------------------
     def _lines_of(self, moving):
@@ -618,21 +621,21 @@ class _Context:
                 up = self.frame.coords[:, self.up]
                 to = "down to" if up[pivots].max() < up[moving].min() else "to"
                 if len(mov) + len(self.held) >= f.n_joints:   # everything not held moves
-                    return "sway", (f"The frame can sway {_dir_words(direction)} on its "
+                    return "sway", (f"The frame can sway {direction_words(direction)} on its "
                                     f"supports: joints {names} move together while the "
                                     f"members {to} {down} turn about them, and nothing "
                                     f"braces it that way."), {"pivots": pivot_ids}
-                return "sway", (f"Joints {names} can sway {_dir_words(direction)} on the "
+                return "sway", (f"Joints {names} can sway {direction_words(direction)} on the "
                                 f"supports at {down} while the rest of the frame stays put: "
                                 f"the members {to} the supports turn about them, and "
                                 f"nothing braces them that way."), {"pivots": pivot_ids}
-            return "sway", (f"Joints {names} can move together {_dir_words(direction)} while "
+            return "sway", (f"Joints {names} can move together {direction_words(direction)} while "
                             f"the rest of the frame stays put: the panels between them and "
                             f"the joints that stay can rack, with nothing to stop them."), {}
         plus = self.labels([j for j, a in zip(moving, side) if a > 0])
         minus = self.labels([j for j, a in zip(moving, side) if a < 0])
-        axis = _dir_words(direction)
-        back = _dir_words(-direction)
+        axis = direction_words(direction)
+        back = direction_words(-direction)
         return "sway", (f"Joints {join_words(plus, most=4)} move {axis} while "
                         f"{join_words(minus, most=4)} move {back}, and the rest of the frame "
                         f"stays put: the panels between them can rack, with nothing to stop "
@@ -644,10 +647,3 @@ def _span(frames) -> str:
     return f"{frames[0]}-{frames[-1]}" if len(frames) > 2 else " and ".join(frames)
 
 
-def _dir_words(v, *, along=False):
-    """A direction in words: 'along +x' when nearly an axis, else its components."""
-    a = int(np.argmax(np.abs(v)))
-    if abs(v[a]) >= 0.98 * np.linalg.norm(v):
-        return f"along {'+' if v[a] > 0 else '-'}{_AXES[a]}" if not along else \
-            f"along {_AXES[a]}"
-    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"

@@ -56,6 +56,7 @@ import scipy.sparse as sp
 
 from ..errors import InternalError
 from ..model import Frame, one_way_members
+from ..naming import direction_words
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["OneWayResult", "one_way_test", "one_way_members"]
@@ -232,9 +233,7 @@ def _describe(frame: Frame, motion: np.ndarray, slack: tuple[str, ...], tension:
     info = describe_modes(frame, motion[None], ("internal",))[0]
     moving = [frame.joint_ids.index(j) for j in info.joints]
     direction = info.direction * (1.0 if np.sum(motion[moving] @ info.direction) >= 0 else -1.0)
-    a = int(np.argmax(np.abs(direction)))
-    way = (f"along {'+-'[int(direction[a] < 0)]}{'xyz'[a]}" if abs(direction[a]) >= 0.98 else
-           "along (" + ", ".join(f"{c:+.2f}" for c in direction) + ")")
+    way = direction_words(direction)
     joints = list(info.joints)
     who = f"Joint {joints[0]} moves" if len(joints) == 1 else f"Joints {_and(joints)} move"
     rods = [m for m in slack if m in tension]

@@ -9,8 +9,9 @@ import numpy as np
 
 from ..analysis.prestress import NOT_STIFFENED, STIFFENED
 from ..naming import count as counted
-from ..naming import join_words, natural_sorted, numbered_only, placed
+from ..naming import direction_words, join_words, natural_sorted, numbered_only, placed
 from ..results import CAUTION, AuditResult
+from ..tolerances import DISPLAY
 
 __all__ = ["render_audit", "verdict", "joint_label", "is_imported"]
 
@@ -159,8 +160,8 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                 how = "out of the plane of their members" if kind == "out-of-plane" else \
                     "on their own"
                 lines.append(f"    {i + 1}-{run[-1] + 1}. Joints {_traced(r, names)} are each "
-                             f"free {how} ({_axis_words(info.direction)}): no member or support "
-                             f"holds them that way.{_order_note(r, i, plural=True)}")
+                             f"free {how} ({direction_words(info.direction, signed=False)}): "
+                             f"no member or support holds them that way.{_order_note(r, i, plural=True)}")
                 i = run[-1] + 1
             else:
                 lines.append(f"    {i + 1}. {_traced(r, r.mode_info[i].description)}"
@@ -355,13 +356,6 @@ def _frame_grouped(r: AuditResult, joints: list[str]) -> str:
     return ", ".join(joints)
 
 
-def _axis_words(v: np.ndarray) -> str:
-    a = int(np.argmax(np.abs(v)))
-    if abs(v[a]) >= 0.98 * np.linalg.norm(v):
-        return f"along {_AXES[a]}"
-    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
-
-
 def _robustness(r: AuditResult, max_entries: int) -> list[str]:
     """Key members and redundancy shares."""
     out = [""]
@@ -396,6 +390,6 @@ def _direction(u: np.ndarray, d: int) -> str:
     """A movement in words: its axis when it is nearly along one, else its vector."""
     n = float(np.linalg.norm(u))
     a = int(np.argmax(np.abs(u)))
-    if abs(u[a]) >= 0.98 * n:
+    if abs(u[a]) >= DISPLAY.along_axis * n:
         return f"{'+' if u[a] > 0 else '-'}{_AXES[a]} {n:.2f}"
     return "(" + ", ".join(f"{x:+.2f}" for x in u) + ")"
