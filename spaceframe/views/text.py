@@ -308,11 +308,14 @@ def _prestress_lines(r: AuditResult) -> list[str]:
     if not (r.internal_mechanisms and any(o == STIFFENED for o in r.mode_orders)):
         return []
     whole = {True: "one state of self-stress would stiffen every internal mechanism at once "
-                   "(prestress stable)",
-             False: "some internal mechanism is stiffened by no prestress",
+                   "(prestress stable), but only if the frame is built and kept prestressed "
+                   "in it",
+             False: "some internal mechanism is stiffened by no prestress at all, and the "
+                    "others only if the frame is built and kept prestressed",
              None: "no single state of self-stress was found that stiffens every internal "
-                   "mechanism at once"}[r.prestress_stable]
-    return [f"  Prestress: {whole}, but only if the frame is built and kept prestressed in it. "
+                   "mechanism at once; each marked one is stiffened only if the frame is "
+                   "built and kept prestressed"}[r.prestress_stable]
+    return [f"  Prestress: {whole}. "
             f"Frames normally are not: these are mechanisms unless that prestress is designed "
             f"in (a model declares it as [prestress], member = force)."]
 

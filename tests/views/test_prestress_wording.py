@@ -140,3 +140,16 @@ def test_declared_prestress_is_written_and_read_back(tmp_path, suffix):
     back = load(tmp_path / f"m{suffix}")
     assert back.prestress.tolist() == [2.5, 2.5]
     assert audit(back).stable
+
+
+def test_summary_never_pairs_no_prestress_with_only_if_prestressed():
+    """A roof whose tie lines no prestress can stiffen (finite slides: common practice, a
+    sliding line of purlins needs bracing) while its out-of-plane chord joints would be:
+    the summary says which is which instead of one clause that contradicts itself."""
+    from spaceframe.families import plane_truss_roof
+
+    r = audit(plane_truss_roof(4, 4))
+    assert r.prestress_stable is False
+    line = next(s for s in render_audit(r).splitlines() if s.strip().startswith("Prestress:"))
+    assert "stiffened by no prestress at all, and the others only if" in line
+    assert "no prestress, but only if" not in line
