@@ -113,11 +113,12 @@ def direction_words(v, *, signed: bool = True) -> str:
     --------
     >>> direction_words([0.0, -1.0, 0.01]), direction_words([0.0, -1.0, 0.0], signed=False)
     ('along -y', 'along y')
-    >>> direction_words([0.6, 0.8, 0.0])
+    >>> direction_words([0.6, 0.8, -0.001])
     'along (+0.60, +0.80, +0.00)'
     """
     v = np.asarray(v, dtype=float)
     a = int(np.argmax(np.abs(v)))
     if abs(v[a]) >= DISPLAY.along_axis * np.linalg.norm(v):
         return f"along {('+' if v[a] > 0 else '-') if signed else ''}{'xyz'[a]}"
-    return "along (" + ", ".join(f"{c:+.2f}" for c in v) + ")"
+    # a component that rounds to zero is written +0.00, never -0.00
+    return "along (" + ", ".join(f"{0.0 if abs(c) < 0.005 else c:+.2f}" for c in v) + ")"
