@@ -1,6 +1,7 @@
 # Each target does its own set-up: a virtual environment in .venv with the
-# package installed (editable) and what the target needs: the core for the demo,
-# every extra and the test tools for the tests and benchmarks.
+# package installed (editable) and what the target needs: the core and the engine's
+# fast factorisation (the extra pardiso) for the demo, every extra and the test tools
+# for the tests and benchmarks.
 PYTHON ?= python3
 VENV   := .venv
 BIN    := $(VENV)/bin
@@ -12,7 +13,7 @@ STAMP  := $(VENV)/.installed
 $(CORE): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
 	$(BIN)/python -m pip install --quiet --upgrade pip
-	$(BIN)/python -m pip install --quiet -e .
+	$(BIN)/python -m pip install --quiet -e '.[pardiso]'
 	touch $(CORE)
 
 $(STAMP): $(CORE)

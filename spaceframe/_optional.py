@@ -9,6 +9,7 @@ come with the package's extras (``pyproject.toml``)::
     pip install 'spaceframe[imports]'    # trimesh, svg.path, lxml, networkx
     pip install 'spaceframe[batch]'      # dask.distributed, rich
     pip install 'spaceframe[ifc]'        # ifcopenshell, for IFC models in and out
+    pip install 'spaceframe[pardiso]'    # MKL PARDISO: the sparse engine's fast factorisation
     pip install 'spaceframe[all]'
 
 Every optional import goes through :func:`require`, inside the function that
@@ -38,6 +39,8 @@ EXTRAS: dict[str, tuple[str, str]] = {
     "svg": ("imports", "SVG drawing imports"),
     "lxml": ("imports", "SVG drawing imports"),
     "ifcopenshell": ("ifc", "Reading and writing IFC models"),
+    "pypardiso": ("pardiso", "The sparse engine's fast factorisation (SuperLU is used without "
+                             "it)"),
     "dask": ("batch", "Batches on Dask"),
     "distributed": ("batch", "Batches on Dask"),
 }

@@ -45,6 +45,15 @@ class RankGap:
         by ``s_max**2``: ``tolerance**2`` unless the factorisation had to move
         it, and then ``sqrt(shift)`` is the relative threshold the count used.
         None for the dense engine (and where no count was needed).
+    scale : float or None
+        The frame's bending scale (:meth:`spaceframe.model.Frame.bending_scale`),
+        from which ``tolerance`` was set
+        (:meth:`spaceframe.tolerances.Tolerances.rank_threshold`); None when
+        the frame has none (a line of joints).
+    factorisation : str or None
+        The sparse engine's factorisation, ``"PARDISO"`` or ``"SuperLU"``
+        (None for the dense engine).  Not part of :meth:`AuditResult.to_dict`:
+        it says how, not what, and the document stays the same with either.
     """
 
     tolerance: float
@@ -54,6 +63,8 @@ class RankGap:
     method: str
     narrow: bool
     shift: float | None = None
+    scale: float | None = None
+    factorisation: str | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -259,6 +270,7 @@ class AuditResult:
                 "ratio": None if g.ratio is None or not np.isfinite(g.ratio) else g.ratio,
                 "narrow": g.narrow,
                 "shift": None if g.shift is None else float(f"{g.shift:.6g}"),
+                "bending_scale": None if g.scale is None else float(f"{g.scale:.6g}"),
             },
             "warnings": list(self.warnings),
             "caution": CAUTION,

@@ -51,6 +51,12 @@ class Limits:
         The search for one state of self-stress that stiffens every internal
         mechanism at once runs when ``internal_mechanisms <= common_prestress``
         (otherwise ``prestress_stable`` stays undetermined).  Default ``12``.
+    pardiso_engine : int
+        The sparse engine factorises with MKL PARDISO (the optional extra
+        ``pardiso``, where installed) when ``free_coordinates >=
+        pardiso_engine``, with SuperLU otherwise (and always without the
+        extra).  Both give the same counts; below this size SuperLU is as
+        fast.  Default ``2_000``.
     split_basis : int
         With mechanisms found joint by joint, the mechanism basis is made
         canonical block by block (``nullspace.canonical_split``, never a dense
@@ -64,6 +70,7 @@ class Limits:
     redundancy_max: int = 20_000
     dense_soft: int = 1_500
     common_prestress: int = 12
+    pardiso_engine: int = 2_000
     split_basis: int = 1_000_000
 
 
@@ -136,7 +143,26 @@ class Tolerances:
         ``1.5e-8 * s_max``, because it works with the squared matrix), while
         the smallest non-zero singular value of a well-made double-layer grid
         falls with size to about ``7e-5 * s_max`` at 100,000 members and an
-        extrapolated ``7e-6 * s_max`` at 1,000,000.  ``1e-6`` sits between.
+        extrapolated ``7e-6 * s_max`` at 1,000,000.  ``1e-6`` sits between
+        for a compact frame; a slender or very large one is judged with the
+        lower threshold of :meth:`rank_threshold`.
+    rank_floor : float
+        The lowest relative threshold :meth:`rank_threshold` goes to, however
+        slender the frame: ``s <= rank_floor * s_max`` is always zero.
+        Default ``1e-7``: the sparse engine counts eigenvalues of ``C.T C``
+        below ``(threshold)**2``, and a count at ``1e-14 * s_max**2`` still
+        stands some 45 times above the rounding of those eigenvalues
+        (``eps * s_max**2``, ``eps = 2.2e-16``).
+    slender_margin : float
+        A slender frame's genuine stiffness is expected no lower than its
+        bending scale ``b`` (:meth:`spaceframe.model.Frame.bending_scale`:
+        ``(depth / length) * (member / length)``), and the relative rank
+        threshold is kept this factor below it, ``threshold <= b /
+        slender_margin`` (see :meth:`rank_threshold`); the same factor keeps
+        the one-way decision below it (:meth:`one_way_threshold`).  Default
+        ``20``: measured on lone towers of 100 to 900 storeys, the smallest
+        bending singular value is 0.36 to 0.4 of ``b``, and so 7 to 8 times
+        above the threshold.
     narrow_gap : float
         A warning is given when the smallest singular value judged non-zero
         is less than ``narrow_gap`` times the largest judged zero,
@@ -340,9 +366,15 @@ class Tolerances:
         (``lp_feasibility``, ``1e-7`` absolute on forces of at most 1; tighter,
         its interior-point method stalls on frames of 20,000 members), while a
         rod force a hundred thousand times smaller than the largest force in
-        the frame is no force to rely on.  A one-way member
-        counts as going slack in the motion that proves a frame not held when
-        it slackens by more than ``one_way`` of the most slackened one.
+        the frame is no force to rely on (in a compact frame; a slender one is
+        decided with the lower threshold of :meth:`one_way_threshold`).  A
+        one-way member counts as going slack in the motion that proves a
+        frame not held when it slackens by more than ``one_way`` of the most
+        slackened one.
+    one_way_floor : float
+        The lowest threshold :meth:`one_way_threshold` goes to: a proper state
+        with ``t* <= one_way_floor`` never holds the frame.  Default ``1e-6``:
+        ten times ``lp_feasibility``, the programmes' own error on forces.
     lp_feasibility : float
         The primal and dual feasibility tolerance given to HiGHS for the two
         linear programmes of the one-way test: a point is feasible when every
@@ -373,6 +405,8 @@ class Tolerances:
     """
 
     rank: float = 1e-6
+    rank_floor: float = 1e-7
+    slender_margin: float = 20.0
     narrow_gap: float = 100.0
     near_threshold: float = 2.0
     coincident: float = 1e-9
@@ -412,10 +446,53 @@ class Tolerances:
     forces_stalled: float = 0.25
     forces_fault: float = 1e-5
     one_way: float = 1e-5
+    one_way_floor: float = 1e-6
     lp_feasibility: float = 1e-7
     prestress_balance: float = 1e-3
     local_mechanism: float = 1e-9
     limits: Limits = Limits()
+
+    def rank_threshold(self, scale: float | None) -> float:
+        """The relative rank threshold for a frame of bending scale ``scale``.
+
+        ``min(rank, max(rank_floor, scale / slender_margin))``: singular
+        values ``s <= threshold * s_max`` are judged zero.  A compact frame
+        (``scale >= slender_margin * rank``, e.g. ``2e-5`` and above) keeps
+        ``rank``; a slender or very large one, whose bending stiffness falls
+        with the square of its length (a lone tower 1,000 times taller than
+        wide has bending singular values near ``1e-6``), is judged with a
+        threshold ``slender_margin`` below its scale, but never below
+        ``rank_floor``.  ``scale`` None (unknown) gives ``rank``.
+
+        Examples
+        --------
+        >>> t = Tolerances()
+        >>> t.rank_threshold(0.05), t.rank_threshold(4e-6), t.rank_threshold(1e-9)
+        (1e-06, 2e-07, 1e-07)
+        """
+        if scale is None or not scale > 0:
+            return self.rank
+        return min(self.rank, max(self.rank_floor, scale / self.slender_margin))
+
+    def one_way_threshold(self, scale: float | None) -> float:
+        """The one-way margin for a frame of bending scale ``scale``.
+
+        ``min(one_way, max(one_way_floor, scale / slender_margin))``: the
+        frame is held when its best proper state has ``t* >`` this.  In a
+        slender frame the forces of a state of self-stress can differ as
+        much as its stiffnesses do (a 400-storey tower's plan diagonals carry
+        ``6e-6`` of its legs' force in the only state that tensions them), so
+        the margin falls with the scale as the rank threshold does.
+
+        Examples
+        --------
+        >>> t = Tolerances()
+        >>> t.one_way_threshold(0.05), t.one_way_threshold(4.2e-6)
+        (1e-05, 1e-06)
+        """
+        if scale is None or not scale > 0:
+            return self.one_way
+        return min(self.one_way, max(self.one_way_floor, scale / self.slender_margin))
 
 
 DEFAULT = Tolerances()

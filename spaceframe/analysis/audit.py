@@ -8,7 +8,7 @@ from ..errors import InternalError
 from ..model import Frame
 from ..naming import natural_key
 from ..results import AuditResult, RankGap
-from ..tolerances import DEFAULT, Tolerances
+from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
 from .modes import KINDS, describe_modes, local_basis, order_rigid
 from .nullspace import canonical_basis, canonical_split, decide_rank
@@ -110,9 +110,10 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     known = {"joints": frame.n_joints, "members": frame.n_members,
              "restraints": frame.n_restraints, "free_coordinates": C.shape[1],
              "maxwell": frame.n_members + frame.n_restraints - d * frame.n_joints}
+    scale = frame.bending_scale()  # a slender frame is judged with lower thresholds
     try:
         decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
-                               method=method, tol=tol)
+                               method=method, scale=scale, tol=tol)
     except InternalError as exc:
         exc.partial = {**known, **exc.partial}
         raise
@@ -153,7 +154,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
                          forces=force)
     declared = declared_prestress_test(frame, C, dofs, modes[:ni],
                                        rigid_body_modes=rigid.shape[1], tol=tol)
-    one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol,
+    one_way = one_way_test(frame, C, dofs, mechanisms=k, scale=scale, tol=tol,
                            prestress=declared.forces if declared and declared.holds else None)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
                       projected=both[:, :2], tol=tol)
@@ -178,11 +179,14 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
     # a soft mode worth a designer's attention is a local weakness, not the frame's
-    # global flexibility: keep those moving at most a quarter of the joints
-    local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]
-    soft_u, soft_info = soft_u[local], tuple(soft_info[i] for i in local)
+    # global flexibility: keep those moving at most a quarter of the joints (the joints a
+    # description names, counted before describing only those)
+    size = np.linalg.norm(soft_u, axis=2)
+    moving = np.sum(size > DISPLAY.moving * size.max(axis=1, initial=0.0)[:, None], axis=1)
+    local = np.flatnonzero(moving <= max(3, frame.n_joints // 4))
+    soft_u = soft_u[local]
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
     soft_ratio = sm.ratios[local] if sm else np.zeros(0)
     if redundancy is None:
         redundancy = decision.method == "dense" or C.shape[1] <= tol.limits.redundancy_auto
@@ -196,7 +200,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         raise InternalError("the extended Maxwell rule does not hold between the counts",
                             stage="counts", partial=known)
 
-    gap, warnings = _gap(decision, tol)
+    gap, warnings = _gap(decision, scale, tol)
     if q < s and self_stress_cap:
         warnings.append(f"{s} states of self-stress: the first {q} are listed "
                         f"(raise the cap to see more)")
@@ -233,10 +237,11 @@ def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances,
                             partial={**known, "rigid_body_motions": r})
 
 
-def _gap(decision, tol: Tolerances):
+def _gap(decision, scale, tol: Tolerances):
     s_max = decision.s_max
     rel = (lambda v: None if v is None or s_max == 0 else v / s_max)
     lz, sn = rel(decision.largest_zero), rel(decision.smallest_nonzero)
+    used = tol.rank if decision.tolerance is None else decision.tolerance
     ratio = None
     if lz is not None and sn is not None:
         ratio = float("inf") if lz == 0 else sn / lz
@@ -248,9 +253,42 @@ def _gap(decision, tol: Tolerances):
                         f"non-zero is only {ratio:.3g} times the largest judged zero; the frame "
                         f"may be nearly a mechanism, or nearly stiff")
     for label, v in (("judged zero", lz), ("judged non-zero", sn)):
-        if v is not None and tol.rank / tol.near_threshold < v < tol.rank * tol.near_threshold:
+        if v is not None and used / tol.near_threshold < v < used * tol.near_threshold:
             narrow = True
             warnings.append(f"a singular value {label} ({v:.3g} of the largest) lies within a "
-                            f"factor {tol.near_threshold:g} of the threshold {tol.rank:g}")
-    return RankGap(tolerance=tol.rank, largest_zero=lz, smallest_nonzero=sn, ratio=ratio,
-                   method=decision.method, narrow=narrow, shift=decision.shift), warnings
+                            f"factor {tol.near_threshold:g} of the threshold {used:.3g}")
+    notes, slender_narrow = _slender_notes(lz, sn, used, scale, tol)
+    warnings += notes
+    narrow |= slender_narrow
+    return RankGap(tolerance=used, largest_zero=lz, smallest_nonzero=sn, ratio=ratio,
+                   method=decision.method, narrow=narrow, shift=decision.shift,
+                   scale=scale, factorisation=decision.factorisation), warnings
+
+
+def _slender_notes(lz, sn, used, scale, tol: Tolerances):
+    """What a slender frame's lower threshold (``Tolerances.rank_threshold``) means for its verdict.
+
+    Returns the notes and whether the decision is not clear-cut: the threshold
+    is at ``rank_floor`` (the frame is too slender for the margin it should
+    have) and a singular value on either side lies within ``slender_margin``
+    of it.
+    """
+    if used >= tol.rank:
+        return [], False
+    notes, narrow = [], False
+    floor = scale / tol.slender_margin < tol.rank_floor
+    near = [(label, v) for label, v in (("judged zero", lz), ("judged non-zero", sn))
+            if v is not None and used / tol.slender_margin < v < used * tol.slender_margin]
+    if floor and near:
+        narrow = True
+        label, v = near[-1]
+        notes.append(f"the rank decision is not clear-cut: the frame is so slender (bending scale "
+                     f"{scale:.3g}) that its genuine stiffness comes close to the lowest "
+                     f"threshold the engine resolves, {tol.rank_floor:g}: a singular value "
+                     f"{label} ({v:.3g} of the largest) lies within a factor "
+                     f"{tol.slender_margin:g} of it")
+    if sn is not None and sn <= tol.rank:
+        notes.append(f"the frame is slender (bending scale {scale:.3g}): its smallest singular "
+                     f"value judged non-zero ({sn:.3g} of the largest) is below the threshold "
+                     f"{tol.rank:g} of a compact frame and was judged with {used:.3g}")
+    return notes, narrow

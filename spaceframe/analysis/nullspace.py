@@ -13,8 +13,14 @@ of the compatibility matrix ``C`` is judged zero when
     ``tau = (tol.rank * s_max)**2``.  It is counted exactly, by Sylvester's law
     of inertia, as the number of negative pivots of an ``L D L.T``
     factorisation of ``K - tau I`` (the Sturm sequence check of structural
-    eigenvalue analysis, Bathe [2]_), computed by SuperLU with diagonal
-    pivoting after a nested-dissection ordering of the joints by METIS [3]_.
+    eigenvalue analysis, Bathe [2]_), after a nested-dissection ordering of
+    the joints by METIS [3]_.  The factorisation is MKL PARDISO's supernodal
+    ``L D L.T`` on every core (:mod:`spaceframe.analysis.pardiso`, the
+    optional extra ``pardiso``) from ``tol.limits.pardiso_engine`` free
+    coordinates on, when installed; otherwise, and whenever PARDISO had to
+    perturb a pivot (its inertia would then not be proof), SuperLU with
+    diagonal pivoting.  Both give the same count; which one ran is
+    :attr:`RankDecision.factorisation`.
     The same factorisation then drives a block inverse (subspace) iteration
     that gives an orthonormal basis of those mechanisms and an estimate of the
     smallest non-zero singular value.  The number of states of self-stress
@@ -52,9 +58,10 @@ import scipy.sparse.linalg as spla
 
 from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
+from . import pardiso
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
-           "canonical_pivots", "canonical_split"]
+           "canonical_pivots", "canonical_split", "factorise_definite"]
 
 _SEED = 20261201
 _BLOCK = 16  # right-hand sides per solve: SuperLU's multi-vector solve grows faster past this
@@ -115,6 +122,13 @@ class RankDecision:
         The fill-reducing ordering of the free coordinates the sparse engine
         computed for ``C.T C`` (None in the dense engine); any matrix with
         the pattern of ``C.T C`` may reuse it.
+    tolerance : float or None
+        The relative threshold the decision used, ``threshold / s_max``:
+        :meth:`spaceframe.tolerances.Tolerances.rank_threshold` of the
+        frame's bending scale (``tol.rank`` when none was given).
+    factorisation : str or None
+        The sparse engine's factorisation: ``"PARDISO"`` or ``"SuperLU"``
+        (None for the dense engine and where nothing was factorised).
     """
 
     rank: int
@@ -131,6 +145,8 @@ class RankDecision:
     local_modes: sp.csc_matrix | None = None
     rest: sp.csc_matrix | None = None
     ordering: np.ndarray | None = None
+    tolerance: float | None = None
+    factorisation: str | None = None
 
     @property
     def local(self) -> int:
@@ -176,7 +192,7 @@ class LocalSplit:
 
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
-                self_stress_cap: int = 16, method: str = "auto",
+                self_stress_cap: int = 16, method: str = "auto", scale: float | None = None,
                 tol: Tolerances = DEFAULT) -> RankDecision:
     """Rank of the compatibility matrix and bases of its null spaces.
 
@@ -192,6 +208,10 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         always exact).  Default 16.
     method : {"auto", "dense", "sparse"}, keyword-only
         ``"auto"`` takes the dense engine when ``m * n <= tol.limits.dense_engine``.
+    scale : float, optional, keyword-only
+        The frame's bending scale (:meth:`spaceframe.model.Frame.bending_scale`):
+        the relative threshold is ``tol.rank_threshold(scale)``, ``tol.rank``
+        for a compact frame and lower for a slender one.  ``tol.rank`` when absent.
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative threshold on singular values.
 
@@ -220,20 +240,21 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         method = "dense" if m * n <= tol.limits.dense_engine else "sparse"
     if method not in ("dense", "sparse"):
         raise SpaceframeError(f"method must be 'auto', 'dense' or 'sparse', not {method!r}")
+    rel = tol.rank if scale is None else tol.rank_threshold(scale)
     split = local_mechanisms(C, joint_of, tol=tol)
     if split.count == 0:
         if method == "dense":
-            return _dense(C, self_stress_cap, tol)
-        return _sparse(C, joint_of, self_stress_cap, tol)
+            return _dense(C, self_stress_cap, tol, rel)
+        return _sparse(C, joint_of, self_stress_cap, tol, rel)
     # The engine sees C restricted to the complement of the local mechanisms: same rank,
     # same non-zero singular values, same null space of C.T (see local_mechanisms).
     Cr = (C @ split.rest).tocsr()
     Cr.eliminate_zeros()
     try:
         if method == "dense":
-            reduced = _dense(Cr, self_stress_cap, tol)
+            reduced = _dense(Cr, self_stress_cap, tol, rel)
         else:
-            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, full=(C, joint_of))
+            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, rel, full=(C, joint_of))
     except InternalError as exc:  # what was known is the whole frame's, not the reduced one's
         if "free_coordinates" in exc.partial:
             exc.partial["free_coordinates"] = n
@@ -249,7 +270,8 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
                         smallest_nonzero=reduced.smallest_nonzero, method=reduced.method,
                         project=reduced.project, local_modes=L, rest=split.rest,
                         ordering=reduced.ordering if method == "sparse" else None,
-                        shift=reduced.shift)
+                        shift=reduced.shift, tolerance=rel,
+                        factorisation=reduced.factorisation)
 
 
 def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
@@ -414,7 +436,7 @@ def local_mechanisms(C: sp.spmatrix, joint_of: np.ndarray | None = None, *,
     return LocalSplit(local=local, rest=rest, joint_of=np.repeat(joints, rest_count))
 
 
-def _dense(C, cap, tol) -> RankDecision:
+def _dense(C, cap, tol, rel) -> RankDecision:
     m, n = C.shape
     A = C.toarray()
     if A.size == 0:
@@ -422,7 +444,7 @@ def _dense(C, cap, tol) -> RankDecision:
     else:
         u, s, vt = np.linalg.svd(A, full_matrices=True)
     s_max = float(s[0]) if s.size else 0.0
-    threshold = tol.rank * s_max
+    threshold = rel * s_max
     rank = int(np.sum(s > threshold)) if s_max > 0 else 0
     mech = vt[rank:].T
     null_t = u[:, rank:]
@@ -432,10 +454,10 @@ def _dense(C, cap, tol) -> RankDecision:
     return RankDecision(rank=rank, mechanisms=mech, self_stress=stress,
                         self_stress_count=m - rank, s_max=s_max, threshold=threshold,
                         largest_zero=largest_zero, smallest_nonzero=smallest, method="dense",
-                        project=_DenseProjector(null_t))
+                        project=_DenseProjector(null_t), tolerance=rel)
 
 
-def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
+def _sparse(C, joint_of, cap, tol, rel, full=None) -> RankDecision:
     """The sparse engine on ``C``.
 
     ``full = (C0, joint_of0)``, when given, is the whole frame's matrix of
@@ -449,14 +471,14 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
     K0 = K if full is None else (full[0].T @ full[0]).tocsc()
     if n == 0:
         return RankDecision(0, np.zeros((0, 0)), np.zeros((m, 0)), m, 0.0, 0.0, None, None,
-                            "sparse", project=_EveryMember(m))
+                            "sparse", project=_EveryMember(m), tolerance=rel)
     if K.nnz == 0:  # no member touches a free coordinate
         stress = np.eye(m, min(cap, m))
         return RankDecision(0, np.eye(n), stress, m, 0.0, 0.0, 0.0, None, "sparse",
-                            project=_EveryMember(m))
+                            project=_EveryMember(m), tolerance=rel)
     lam_max = _largest_eigenvalue(K0, tol)
     s_max = float(np.sqrt(lam_max))
-    threshold = tol.rank * s_max
+    threshold = rel * s_max
     tau = threshold ** 2
     if full is None:
         perm = ordering = _ordering(K, joint_of)
@@ -465,8 +487,8 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
         ordering = _expand(joint_order, full[1], K0.shape[0])
         perm = _expand(joint_order, joint_of, n, like=full[1])
     Kp = K[perm][:, perm].tocsc()
-    lu, tau = _shifted_ldl(Kp, tau)
-    k = int(np.count_nonzero(lu.U.diagonal() < 0))
+    lu, tau = _shifted_ldl(Kp, tau, tol)
+    k = lu.negative
     rank = n - k
     basis, ritz = _subspace(Kp, lu, k, n)
     inv = np.empty_like(perm)
@@ -484,7 +506,8 @@ def _sparse(C, joint_of, cap, tol, full=None) -> RankDecision:
                         self_stress_count=m - rank,
                         s_max=s_max, threshold=threshold, largest_zero=largest_zero,
                         smallest_nonzero=smallest, method="sparse", project=project,
-                        ordering=ordering, shift=tau / lam_max)
+                        ordering=ordering, shift=tau / lam_max, tolerance=rel,
+                        factorisation=lu.path)
 
 
 def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
@@ -541,26 +564,76 @@ def _expand(joint_perm, joint_of, n, like=None):
     return np.argsort(np.argsort(joint_perm, kind="stable")[dof_joint], kind="stable")
 
 
-def _shifted_ldl(Kp, tau):
-    """SuperLU factorisation of ``Kp - tau I`` with diagonal pivots only.
+class _SuperLU:
+    """SuperLU's factorisation with the interface of :class:`pardiso.PardisoFactor`.
 
     With the diagonal as pivot throughout, ``U = D L.T`` and the signs of
-    ``diag(U)`` are the inertia of ``Kp - tau I``.  SuperLU may still swap
-    rows where a pivot is exactly zero; then the shift is moved a little and
-    the factorisation repeated; the shift used is returned with it (and
+    ``diag(U)`` are the inertia (``negative``, read on first use: it converts
+    the factor).
+    """
+
+    path = "SuperLU"
+
+    def __init__(self, lu):
+        self.lu = lu
+
+    @property
+    def negative(self) -> int:
+        return int(np.count_nonzero(self.lu.U.diagonal() < 0))
+
+    def solve(self, B):
+        return self.lu.solve(np.asfortranarray(B))
+
+
+def _superlu(A):
+    """SuperLU of ``A`` with diagonal pivots in the given order, or None where it pivoted."""
+    n = A.shape[0]
+    try:
+        lu = spla.splu(A.tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0,
+                       options=dict(SymmetricMode=True))
+    except RuntimeError:
+        return None
+    if np.array_equal(lu.perm_r, np.arange(n)) and np.array_equal(lu.perm_c, np.arange(n)):
+        return _SuperLU(lu)
+    return None
+
+
+def _pardiso(A, definite: bool, tol: Tolerances):
+    """PARDISO's factorisation of ``A`` when installed and worth it, else None.
+
+    None too when it perturbed a pivot or the inertia it reports does not add
+    up to the order (then the count would not be proof), or when it failed.
+    """
+    fn = pardiso.load() if A.shape[0] >= tol.limits.pardiso_engine else None
+    if fn is None:
+        return None
+    try:
+        f = pardiso.PardisoFactor(A, definite=definite, fn=fn)
+    except pardiso.PardisoError:
+        return None
+    if f.perturbed or (not definite and f.negative + f.positive != A.shape[0]):
+        f.free()
+        return None
+    return f
+
+
+def _shifted_ldl(Kp, tau, tol: Tolerances = DEFAULT):
+    """Factorisation of ``Kp - tau I`` whose negative pivots count the eigenvalues below ``tau``.
+
+    PARDISO's ``L D L.T`` (:func:`_pardiso`) where it applies; otherwise
+    SuperLU with diagonal pivots only.  SuperLU may still swap rows where a
+    pivot is exactly zero; then the shift is moved a little and the
+    factorisation repeated; the shift used is returned with it (and
     recorded in :attr:`RankDecision.shift`).
     """
     n = Kp.shape[0]
     eye = sp.identity(n, format="csc")
+    fast = _pardiso(Kp - tau * eye, False, tol)
+    if fast is not None:
+        return fast, tau
     for attempt in range(4):
-        try:
-            lu = spla.splu((Kp - tau * eye).tocsc(), permc_spec="NATURAL",
-                           diag_pivot_thresh=0.0,
-                           options=dict(SymmetricMode=True))
-        except RuntimeError:
-            lu = None
-        if lu is not None and np.array_equal(lu.perm_r, np.arange(n)) \
-                and np.array_equal(lu.perm_c, np.arange(n)):
+        lu = _superlu(Kp - tau * eye)
+        if lu is not None:
             return lu, tau
         tau *= 1.37
     raise InternalError(f"the sparse engine could not factorise the shifted stiffness matrix "
@@ -568,6 +641,19 @@ def _shifted_ldl(Kp, tau):
                         f"{attempt + 1} shifts; the dense engine (method='dense') may do for "
                         f"a small frame", stage="factorisation",
                         partial={"free_coordinates": n, "shifts_tried": attempt + 1})
+
+
+def factorise_definite(A, *, tol: Tolerances = DEFAULT):
+    """A factorisation of the positive definite ``A`` (rows in the order wanted), with ``solve``.
+
+    PARDISO's Cholesky where it applies (as for :func:`_shifted_ldl`),
+    SuperLU with diagonal pivots otherwise; ``.path`` says which.
+    """
+    fast = _pardiso(A, True, tol)
+    if fast is not None:
+        return fast
+    return _SuperLU(spla.splu(A.tocsc(), permc_spec="NATURAL", diag_pivot_thresh=0.0,
+                              options=dict(SymmetricMode=True)))
 
 
 def _subspace(Kp, lu, k, n, iterations: int = 3):
@@ -585,7 +671,7 @@ def _subspace(Kp, lu, k, n, iterations: int = 3):
     X = np.random.default_rng(_SEED).standard_normal((n, width))
     theta = np.zeros(width)
     for _ in range(iterations):
-        X = lu.solve(np.asfortranarray(X))
+        X = lu.solve(X)
         X, _ = np.linalg.qr(X)
         H = X.T @ (Kp @ X)
         theta, V = np.linalg.eigh((H + H.T) / 2)
@@ -629,7 +715,8 @@ class _Projector:
     ``K - tau I`` is followed by a step of iterative refinement where the
     residual exceeds ``tol.refine`` of the right-hand side, and by the removal of any
     mechanism component (``C`` maps it to zero anyway).  Columns are taken
-    ``_BLOCK`` at a time.
+    ``_BLOCK`` at a time with SuperLU, and ``PardisoFactor.block`` at a time
+    (a few hundred for 10^5 coordinates) with PARDISO, whose solve gains from more.
     """
 
     def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
@@ -644,16 +731,18 @@ class _Projector:
         Y = Y[:, None] if flat else Y
         C, Kp, lu, mech = self.C, self.Kp, self.lu, self.mech
         T = np.empty_like(Y)
-        for lo in range(0, Y.shape[1], _BLOCK):
-            y = Y[:, lo:lo + _BLOCK]
+        block = getattr(lu, "block", _BLOCK)
+        for lo in range(0, Y.shape[1], block):
+            y = Y[:, lo:lo + block]
             rhs = (C.T @ y)[self.perm]
-            x = lu.solve(np.asfortranarray(rhs))
-            if np.linalg.norm(rhs - Kp @ x) > self.refine * np.linalg.norm(rhs):
-                x += lu.solve(np.asfortranarray(rhs - Kp @ x))
+            x = lu.solve(rhs)
+            r = rhs - Kp @ x
+            if np.linalg.norm(r) > self.refine * np.linalg.norm(rhs):
+                x += lu.solve(r)
             x = x[self.inv]
             if mech.shape[1]:
                 x -= mech @ (mech.T @ x)
-            T[:, lo:lo + _BLOCK] = y - C @ x
+            T[:, lo:lo + block] = y - C @ x
         return T[:, 0] if flat else T
 
     def redundancy(self, *, max_solves: int | None = None):

@@ -17,7 +17,9 @@ The second condition is a linear programme over member forces::
                             -1 <= s <= 1,  0 <= t,
 
 ``sigma_e = +1`` for tension-only and ``-1`` for compression-only members;
-the frame is held when ``t* > tol.one_way``.  Exactly when ``t* = 0``,
+the frame is held when ``t* > tol.one_way_threshold(scale)`` (``tol.one_way``
+for a compact frame, lower for a slender one, whose states of self-stress
+can hold forces as different as its stiffnesses are).  Exactly when ``t* = 0``,
 Gordan's alternative (the dual programme) gives a motion ``u`` of the joints
 that proves it is not held::
 
@@ -92,8 +94,10 @@ class OneWayResult:
         A joint movement that stretches no two-way member and only slackens
         one-way members (largest joint movement 1); None when held, when the
         two-way frame already has mechanisms, or when a proper state exists
-        with a margin at or below ``tol.one_way`` (held only just: no
+        with a margin at or below ``threshold`` (held only just: no
         motion is found, and the frame is not counted as held).
+    threshold : float or None
+        The margin ``t*`` had to exceed: ``tol.one_way_threshold(scale)``.
     """
 
     tension: tuple[str, ...]
@@ -104,6 +108,7 @@ class OneWayResult:
     slack: tuple[str, ...] = ()
     motion: np.ndarray | None = None
     info: object = None
+    threshold: float | None = None
 
     @property
     def members(self) -> tuple[str, ...]:
@@ -112,7 +117,7 @@ class OneWayResult:
 
 
 def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
-                 prestress: np.ndarray | None = None,
+                 prestress: np.ndarray | None = None, scale: float | None = None,
                  tol: Tolerances = DEFAULT) -> OneWayResult | None:
     """Decide whether a frame with one-way members is held (Roth & Whiteley).
 
@@ -135,8 +140,11 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
         prestress keeps each of them in its one way, by more than
         ``tol.one_way`` of its largest force (Connelly & Whiteley's prestress
         stability of a tensegrity with that proper stress).
+    scale : float, optional
+        The frame's bending scale (:meth:`spaceframe.model.Frame.bending_scale`).
     tol : Tolerances, keyword-only
-        ``tol.one_way`` decides ``t*``.
+        ``tol.one_way_threshold(scale)`` decides ``t*`` (``tol.one_way``
+        without a scale).
 
     Returns
     -------
@@ -188,24 +196,25 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
     names = (tuple(ids[i] for i in ten), tuple(ids[i] for i in com))
     one = np.concatenate([ten, com])
     sigma = np.concatenate([np.ones(len(ten)), -np.ones(len(com))])
+    least = tol.one_way_threshold(scale)
     if mechanisms and prestress is not None:
         t = prestress / np.abs(prestress).max()
         margin = float(np.min(sigma * t[one]))
-        return OneWayResult(*names, held=margin > tol.one_way, margin=margin,
-                            state=t if margin > tol.one_way else None)
+        return OneWayResult(*names, held=margin > least, margin=margin,
+                            state=t if margin > least else None, threshold=least)
     if mechanisms:
-        return OneWayResult(*names, held=False, margin=None)
+        return OneWayResult(*names, held=False, margin=None, threshold=least)
     C = sp.csr_matrix(C)
     # the motion first: when one exists the frame is not held (no proper state can exist),
     # and that programme is the cheaper of the two
     u = _slackening_motion(C, one, sigma, tol)
     if u is None:
         margin, state = _proper_state(C, one, sigma, tol)
-        if margin > tol.one_way:
+        if margin > least:
             state.setflags(write=False)
-            return OneWayResult(*names, held=True, margin=margin, state=state)
-        # t* in [0, tol.one_way]: a proper state only just, or none to the precision used
-        return OneWayResult(*names, held=False, margin=max(margin, 0.0) + 0.0)
+            return OneWayResult(*names, held=True, margin=margin, state=state, threshold=least)
+        # t* in [0, least]: a proper state only just, or none to the precision used
+        return OneWayResult(*names, held=False, margin=max(margin, 0.0) + 0.0, threshold=least)
     margin = 0.0
     from .equilibrium import to_joint_displacements
 
@@ -217,7 +226,7 @@ def one_way_test(frame: Frame, C: sp.spmatrix, dofs, *, mechanisms: int,
     motion.setflags(write=False)
     slack_ids = tuple(ids[one[i]] for i in slack)
     return OneWayResult(*names, held=False, margin=margin, slack=slack_ids, motion=motion,
-                        info=_describe(frame, motion, slack_ids, set(names[0])))
+                        info=_describe(frame, motion, slack_ids, set(names[0])), threshold=least)
 
 
 def _describe(frame: Frame, motion: np.ndarray, slack: tuple[str, ...], tension: set):

@@ -13,7 +13,12 @@ model gives none (then only ``1 / L`` weights the members).
 The eigenvalues come from a block inverse iteration with the factorisation of
 ``K + delta I`` (``delta``: ``Tolerances.soft_shift`` of the typical stiffness), the mechanisms
 projected out at every step, followed by Rayleigh-Ritz; small frames use a
-dense symmetric eigensolver.
+dense symmetric eigensolver.  ``K`` has the pattern of the rank decision's
+``C.T C`` but other numbers (``EA / L`` weights each member), so it is a
+second numerical factorisation; it reuses the rank decision's fill-reducing
+ordering, and with PARDISO (:func:`spaceframe.analysis.nullspace.factorise_definite`)
+it is a Cholesky factorisation on every core whose symbolic analysis in that
+order costs little.
 """
 
 from __future__ import annotations
@@ -22,7 +27,6 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from .equilibrium import axial_stiffness, stiffness_matrix
 from ..tolerances import DEFAULT, Tolerances
@@ -103,7 +107,7 @@ def soft_modes(C, lengths, mech, joint_of, *, count: int = 3, ea=None, perm=None
             vals, vecs = vals[keep], vecs[:, keep]
         vals, vecs = vals[:width], vecs[:, :width]
     else:
-        vals, vecs = _iterate(K, tol.soft_shift * typical, mech, joint_of, width, perm)
+        vals, vecs = _iterate(K, tol.soft_shift * typical, mech, joint_of, width, perm, tol)
     ratios = vals / typical
     soft = ratios < tol.soft
     return SoftModes(ratios[soft], vecs[:, soft], width)
@@ -118,8 +122,8 @@ def typical_stiffness(C, lengths, ea=None) -> float:
     return float(np.median(diag[diag > 0])) if np.any(diag > 0) else 0.0
 
 
-def _iterate(K, delta, mech, joint_of, width, perm, iterations: int = 4):
-    from .nullspace import _ordering
+def _iterate(K, delta, mech, joint_of, width, perm, tol, iterations: int = 4):
+    from .nullspace import _ordering, factorise_definite
 
     N = K.shape[0]
     if perm is None:
@@ -127,16 +131,14 @@ def _iterate(K, delta, mech, joint_of, width, perm, iterations: int = 4):
     inv = np.empty_like(perm)
     inv[perm] = np.arange(N)
     Kp = K[perm][:, perm].tocsc()
-    lu = spla.splu((Kp + delta * sp.identity(N, format="csc")).tocsc(),
-                   permc_spec="NATURAL", diag_pivot_thresh=0.0,
-                   options=dict(SymmetricMode=True))
+    lu = factorise_definite(Kp + delta * sp.identity(N, format="csc"), tol=tol)
     M = mech[perm]
     block = width + 4
     X = np.random.default_rng(_SEED).standard_normal((N, min(block, N - M.shape[1])))
     for _ in range(iterations):
         if M.shape[1]:
             X -= M @ (M.T @ X)
-        X = lu.solve(np.asfortranarray(X))
+        X = lu.solve(X)
         if M.shape[1]:
             X -= M @ (M.T @ X)
         X, _ = np.linalg.qr(X)
