@@ -156,13 +156,13 @@ class Tolerances:
     slender_margin : float
         A slender frame's genuine stiffness is expected no lower than its
         bending scale ``b`` (:meth:`spaceframe.model.Frame.bending_scale`:
-        ``(depth / length) * (member / length)``), and the relative rank
-        threshold is kept this factor below it, ``threshold <= b /
+        ``(depth / length) * (member / length)``) by much, and the relative
+        rank threshold is kept this factor below it, ``threshold <= b /
         slender_margin`` (see :meth:`rank_threshold`); the same factor keeps
         the one-way decision below it (:meth:`one_way_threshold`).  Default
-        ``20``: measured on lone towers of 100 to 900 storeys, the smallest
-        bending singular value is 0.36 to 0.4 of ``b``, and so 7 to 8 times
-        above the threshold.
+        ``100``: measured, the smallest non-zero singular value is 0.12 of
+        ``b`` on lone towers of 100 to 900 storeys and 0.45 of it on
+        double-layer grids, so 12 to 45 times above the threshold.
     narrow_gap : float
         A warning is given when the smallest singular value judged non-zero
         is less than ``narrow_gap`` times the largest judged zero,
@@ -406,7 +406,7 @@ class Tolerances:
 
     rank: float = 1e-6
     rank_floor: float = 1e-7
-    slender_margin: float = 20.0
+    slender_margin: float = 100.0
     narrow_gap: float = 100.0
     near_threshold: float = 2.0
     coincident: float = 1e-9
@@ -457,7 +457,7 @@ class Tolerances:
 
         ``min(rank, max(rank_floor, scale / slender_margin))``: singular
         values ``s <= threshold * s_max`` are judged zero.  A compact frame
-        (``scale >= slender_margin * rank``, e.g. ``2e-5`` and above) keeps
+        (``scale >= slender_margin * rank``, ``1e-4`` and above) keeps
         ``rank``; a slender or very large one, whose bending stiffness falls
         with the square of its length (a lone tower 1,000 times taller than
         wide has bending singular values near ``1e-6``), is judged with a
@@ -467,7 +467,7 @@ class Tolerances:
         Examples
         --------
         >>> t = Tolerances()
-        >>> t.rank_threshold(0.05), t.rank_threshold(4e-6), t.rank_threshold(1e-9)
+        >>> t.rank_threshold(0.05), t.rank_threshold(2e-5), t.rank_threshold(1e-9)
         (1e-06, 2e-07, 1e-07)
         """
         if scale is None or not scale > 0:
@@ -487,7 +487,7 @@ class Tolerances:
         Examples
         --------
         >>> t = Tolerances()
-        >>> t.one_way_threshold(0.05), t.one_way_threshold(4.2e-6)
+        >>> t.one_way_threshold(0.05), t.one_way_threshold(1.3e-5)
         (1e-05, 1e-06)
         """
         if scale is None or not scale > 0:
