@@ -6,10 +6,11 @@ Run from the repository root::
     python benchmarks/bench_engine.py --prev /tmp/engine_prev  # and the previous engine
     python benchmarks/bench_engine.py --million              # add the 1,002,528-member grid
     python benchmarks/bench_engine.py --quick                # small sizes, a minute
+    python benchmarks/bench_engine.py --only grid "grid holed"   # some rows only
 
 ``--prev`` names a checkout of the previous engine, made for instance with::
 
-    git archive 95f407c | tar -x -C /tmp/engine_prev
+    git archive 91be4a4 | tar -x -C /tmp/engine_prev
 
 Rows (every frame built deterministically here and written once to a ``.npz`` model,
 then audited by the call users make, ``spaceframe.audit(spaceframe.load(path))``,
@@ -24,14 +25,18 @@ in a fresh process per engine so that ``ru_maxrss`` is that audit's peak):
                  (p - 1) F + p + 1 = 18,641 mechanisms (derived in
                  ``tests/analysis/test_local_mechanisms.py``);
 ``roof 5k``      the same with 50 trusses (5,080 members, 971 mechanisms);
+``grid 5k``      a 25 x 25 grid (5,000 members), against the previous engine;
 ``grid 1M``      ``double_layer_grid(354)``, ``audit(frame, soft=False)`` (``--million``);
-``grid 5k ref``  a 25 x 25 grid (5,000 members) against ``scipy.linalg.null_space`` of
-                 C and of C.T in the same run (the counts must agree).
+``grid 5k ref``  the 25 x 25 grid against ``scipy.linalg.null_space`` of C and of C.T in
+                 the same process (the counts must agree): the reference's median of
+                 ``--repeat`` runs against the median of five audits after a first one
+                 (which loads the libraries).
 
 Each child's address space is capped (``--memory``, default 6 GiB) so that an engine
 that cannot hold a frame fails instead of swapping the shared machine; such a row
-says so.  The path column says which engine ran (dense or sparse with SuperLU, and
-how many mechanisms were found joint by joint).  Timings are single runs unless
+says so.  The path column says which engine ran (dense, or sparse with the
+factorisation it used: PARDISO with the extra ``pardiso``, SuperLU without it or
+below ``Limits.pardiso_engine``; and how many mechanisms were found joint by joint).  Timings are single runs unless
 ``--repeat``; on a shared machine they are disturbed, so compare the ratios, which
 are taken side by side in the same run.
 """
@@ -70,7 +75,9 @@ def _child(path: str, soft: bool) -> None:
     result = spaceframe.audit(frame) if soft else spaceframe.audit(frame, soft=False)
     t2 = time.perf_counter()
     out = {"load_s": t1 - t0, "audit_s": t2 - t1, "peak": _peak_rss_bytes(),
-           **{k: int(getattr(result, k)) for k in COUNTS}, "method": result.gap.method}
+           **{k: int(getattr(result, k)) for k in COUNTS}, "method": result.gap.method,
+           # engines before the choice of factorisation had SuperLU only
+           "factorisation": getattr(result.gap, "factorisation", "SuperLU")}
     try:
         from spaceframe.analysis.equilibrium import compatibility_matrix, free_dofs
         from spaceframe.analysis.nullspace import local_mechanisms
@@ -124,6 +131,8 @@ def _frames(quick: bool, million: bool):
     for label, F in (("roof", trusses), ("roof 5k", 50 if not quick else 10)):
         yield label, plane_truss_roof(F, p), True, {"mechanisms": (p - 1) * F + p + 1,
                                                       "self_stress_states": F}
+    yield "grid 5k", double_layer_grid(12 if quick else 25, supports="minimal"), True, \
+        {"mechanisms": 1}
     if million:
         yield "grid 1M", double_layer_grid(354, supports="minimal"), False, {"mechanisms": 1}
 
@@ -138,13 +147,15 @@ def _reference(quick: bool, repeat: int):
     grid = double_layer_grid(12 if quick else 25, supports="minimal")
     C, _ = dense_compatibility(grid)
     ref_t, ours_t = [], []
+    spaceframe.audit(grid)  # once first: the libraries loaded, as in a session that audits more
     for _ in range(repeat):
         t = time.perf_counter()
         N, S = dense_reference(C)
         ref_t.append(time.perf_counter() - t)
-        t = time.perf_counter()
-        r = spaceframe.audit(grid)
-        ours_t.append(time.perf_counter() - t)
+        for _ in range(5):
+            t = time.perf_counter()
+            r = spaceframe.audit(grid)
+            ours_t.append(time.perf_counter() - t)
     same = (N.shape[1], S.shape[1]) == (r.mechanisms, r.self_stress_states)
     return grid, statistics.median(ref_t), statistics.median(ours_t), same, r
 
@@ -167,6 +178,9 @@ def main(argv=None) -> int:
     ap.add_argument("--memory", type=float, default=6.0, help="GiB cap per child (default 6)")
     ap.add_argument("--timeout", type=float, default=900.0, help="seconds per child")
     ap.add_argument("--repeat", type=int, default=1, help="runs of the reference row")
+    ap.add_argument("--only", nargs="+", metavar="ROW",
+                    help="rows to run (labels as printed: grid, 'grid holed', roof, 'roof 5k', "
+                         "'grid 1M', 'grid 5k ref')")
     args = ap.parse_args(argv)
     if args.child:  # runs the engine on PYTHONPATH: this checkout or --prev
         _child(args.child, not args.no_soft)
@@ -178,6 +192,8 @@ def main(argv=None) -> int:
     tmp = Path(tempfile.mkdtemp(prefix="bench_engine_"))
     rows, bad = [], False
     for label, frame, soft, expect in _frames(args.quick, args.million):
+        if args.only and label not in args.only:
+            continue
         path = tmp / f"{label.replace(' ', '_')}.npz"
         save(frame, path)
         new = _run(REPO, path, soft, memory, args.timeout)
@@ -199,7 +215,8 @@ def main(argv=None) -> int:
             print(f"| {label} | {frame.n_members:,} | {call} | {new['error']} | | | | | | "
                   f"{_fmt(old)} | | |")
             continue
-        path = f"{new['method']}, SuperLU" if new["method"] == "sparse" else new["method"]
+        path = f"{new['method']}, {new['factorisation']}" if new["method"] == "sparse" \
+            else new["method"]
         if new.get("local") is not None:
             path += f"; {new['local']:,} local"
         prev_s, prev_m, ratio = _fmt(old), "", ""
@@ -210,10 +227,12 @@ def main(argv=None) -> int:
               f"{new['load_s']:.2f} | {new['peak'] / 2 ** 20:,.0f} | {new['mechanisms']:,} | "
               f"{new['self_stress_states']:,} | {path} | {prev_s} | {prev_m} | {ratio} |"
               + ("" if ok else " **counts differ from the derived ones**"))
+    if args.only and "grid 5k ref" not in args.only:
+        return 1 if bad else 0
     grid, ref_s, ours_s, same, r = _reference(args.quick, args.repeat)
     bad |= not same
     print(f"| grid 5k ref | {grid.n_members:,} | audit(frame), same process | {ours_s:.3f} | | | "
-          f"{r.mechanisms} | {r.self_stress_states:,} | {r.gap.method} | "
+          f"{r.mechanisms} | {r.self_stress_states:,} | {r.gap.method}, {r.gap.factorisation} | "
           f"null_space(C), null_space(C.T): {ref_s:.1f} s | | {ref_s / ours_s:.0f}x "
           f"{'(counts agree)' if same else '**counts differ**'} |")
     return 1 if bad else 0

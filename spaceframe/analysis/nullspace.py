@@ -2,7 +2,9 @@
 
 Two engines give the same decision with one tolerance: a singular value ``s``
 of the compatibility matrix ``C`` is judged zero when
-``s <= tol.rank * s_max`` (see :class:`spaceframe.tolerances.Tolerances`).
+``s <= tol.rank * s_max`` (see :class:`spaceframe.tolerances.Tolerances`;
+a slender frame's lower threshold is ``tol.rank_threshold(scale)`` in place
+of ``tol.rank``).
 
 ``dense``
     The singular value decomposition of ``C`` (LAPACK through NumPy), for
@@ -10,7 +12,7 @@ of the compatibility matrix ``C`` is judged zero when
 ``sparse``
     For everything else.  The number of mechanisms is the number of
     eigenvalues of the stiffness-like matrix ``K = C.T C`` below
-    ``tau = (tol.rank * s_max)**2``.  It is counted exactly, by Sylvester's law
+    ``tau = (threshold * s_max)**2``.  It is counted exactly, by Sylvester's law
     of inertia, as the number of negative pivots of an ``L D L.T``
     factorisation of ``K - tau I`` (the Sturm sequence check of structural
     eigenvalue analysis, Bathe [2]_), after a nested-dissection ordering of
@@ -91,7 +93,7 @@ class RankDecision:
         Largest singular value of ``C`` (in the sparse engine an estimate to
         about two digits, which moves the threshold by as little).
     threshold : float
-        ``tol.rank * s_max``: singular values at or below it are judged zero.
+        ``tolerance * s_max``: singular values at or below it are judged zero.
     largest_zero : float or None
         The largest singular value judged zero: ``max ||C x||`` over the unit
         mechanism vectors ``x`` (None when there is no mechanism).
@@ -109,7 +111,7 @@ class RankDecision:
         (or None where it would cost too much).
     shift : float or None
         The sparse engine's final shift ``tau`` of the inertia count, divided
-        by ``s_max**2``: ``tol.rank**2`` unless the factorisation had to move
+        by ``s_max**2``: ``tolerance**2`` unless the factorisation had to move
         it (then ``sqrt(shift)`` is the relative singular value threshold the
         count used).  None for the dense engine and where no count was made.
     local_modes : (dofs, local) scipy.sparse.csc_matrix or None
@@ -213,7 +215,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         the relative threshold is ``tol.rank_threshold(scale)``, ``tol.rank``
         for a compact frame and lower for a slender one.  ``tol.rank`` when absent.
     tol : Tolerances, keyword-only
-        ``tol.rank`` is the relative threshold on singular values.
+        ``tol.rank`` is the relative threshold on singular values (of a compact frame).
 
     Returns
     -------
