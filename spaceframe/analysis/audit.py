@@ -62,8 +62,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     soft : bool, keyword-only
         Look for soft modes (:mod:`spaceframe.analysis.soft`; default True).
     tol : Tolerances, keyword-only
-        ``tol.rank`` is the relative singular value threshold; every other
-        test and limit of the audit is a field of it too.
+        ``tol.rank`` is the relative singular value threshold of a compact
+        frame; a slender one is judged with ``tol.rank_threshold(scale)`` and
+        ``tol.one_way_threshold(scale)``, ``scale`` its
+        :meth:`~spaceframe.model.Frame.bending_scale` (recorded in
+        ``gap.scale``); every other test and limit of the audit is a field of
+        it too.
 
     Returns
     -------
