@@ -199,6 +199,23 @@ class RestraintResult:
                 best = (v, i)
         return best
 
+    def summary(self) -> dict:
+        """The verdict as data (``audit --continuous-chords --json``): held pin-jointed, held
+        with continuous chords, the mechanisms that are not, the longest lengths."""
+        ids = self.frame.joint_ids
+        longest = {}
+        for d in LATERAL:
+            got = self.longest(d)
+            longest[d] = None if got is None else {
+                "length": round(got[0], DISPLAY.decimals), "chord": self.chord_id(got[1]),
+                "joints": [ids[self.chords[got[1]].joints[0]], ids[self.chords[got[1]].joints[-1]]]}
+        return {"chord_rule": self.rule, "chords": len(self.chords),
+                "held_pin_jointed": self.held_pin_jointed,
+                "held_with_continuous_chords": self.held_with_continuous_chords,
+                "not_held_by_chords": [{"mode": i + 1, "joints": [ids[j] for j in js]}
+                                       for i, js in self.not_held],
+                "longest": longest}
+
     def to_dict(self) -> dict:
         """The JSON document of ``spaceframe restraints --json``."""
         f = self.frame

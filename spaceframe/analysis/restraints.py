@@ -259,8 +259,8 @@ def _incidence(frame: Frame):
 
 
 def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] | None = None,
-               fraction: float | None = None, audit=None, forces=None,
-               tol: Tolerances = DEFAULT) -> RestraintResult:
+               fraction: float | None = None, compression: bool = True, audit=None,
+               forces=None, tol: Tolerances = DEFAULT) -> RestraintResult:
     """Chords, their restraint points and unrestrained lengths, and restraint forces.
 
     Parameters
@@ -274,6 +274,9 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
         (default all the model has; none without ``frame.loads``).
     fraction : float, optional
         The restraint force fraction, ``0 < fraction < 1``: needs load cases.
+    compression : bool
+        Solve the load cases for the chords' compression (default); False
+        leaves the forces out (no fraction then).
     audit : AuditResult, optional
         The frame's audit, when already computed (its mechanism basis is used).
     forces : ForcesResult, optional
@@ -325,7 +328,7 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
             raise SpaceframeError(f"the restraint force fraction must lie strictly between 0 "
                                   f"and 1 (a share of the chord force, e.g. 0.025 for 2.5 %); "
                                   f"got {fraction!r}")
-        if frame.loads is None:
+        if frame.loads is None or not compression:
             raise SpaceframeError("a restraint force fraction needs the chords' compression, "
                                   "so load cases: add [loads.NAME] tables to the model")
     use = chord_members(frame, chords)
@@ -348,7 +351,8 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
     names: tuple[str, ...] = ()
     T = np.zeros((0, frame.n_members))
     force_units = ""
-    if frame.loads is not None and (frame.loads.cases or frame.loads.self_weight):
+    if compression and frame.loads is not None and (frame.loads.cases
+                                                     or frame.loads.self_weight):
         if forces is None:
             from .forces import forces as solve
             forces = solve(frame, cases, tol=tol)

@@ -11,7 +11,7 @@ import numpy as np
 from ..naming import count, fixed_decimals, join_words
 from ..restraint_results import LATERAL, RESTRAINT_CAUTION, RestraintResult
 
-__all__ = ["render_restraints", "continuous_verdict", "chord_span", "why_lines",
+__all__ = ["render_restraints", "render_continuous", "continuous_verdict", "chord_span", "why_lines",
            "DIRECTION_WORDS"]
 
 #: The lateral directions as the text names them.
@@ -97,6 +97,21 @@ def why_lines(r: RestraintResult, most: int = 6) -> list[str]:
     if len(out) > most:
         out = out[:most] + [f"... and {len(out) - most} more chords alike (--all lists them)"]
     return out
+
+
+def render_continuous(r: RestraintResult, *, most: int = 6) -> str:
+    """The section ``audit --continuous-chords`` adds: the verdict read with continuous chords,
+    where restraint points are missing, and the caution."""
+    out = ["", "Read with continuous chords ("
+           + (f"chords among the members with {r.rule}" if r.rule else
+              "every straight chain of two or more members")
+           + f", {count(len(r.chords), 'chord')}):", continuous_verdict(r)]
+    why = why_lines(r, most=most)
+    if why:
+        out += ["Where restraint points are missing:"] + [f"  {w}" for w in why]
+    out.append("(spaceframe restraints gives every chord's restraint points and lengths.) "
+               + RESTRAINT_CAUTION)
+    return "\n".join(out) + "\n"
 
 
 def render_restraints(r: RestraintResult, *, max_rows: int = 12) -> str:
