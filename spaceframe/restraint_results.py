@@ -119,6 +119,15 @@ class Chord:
         got = self.lengths.get(direction)
         return None if got is None else float(np.max(got))
 
+    def member_lengths(self, direction: str) -> np.ndarray:
+        """``(p - 1,) float``: for each of its members, the unrestrained length it lies in."""
+        pos, ok = self.positions, self.restrained[direction]
+        cuts = np.unique(np.concatenate([[pos[0]], pos[ok], [pos[-1]]]))
+        mid = (pos[1:] + pos[:-1]) / 2
+        at = np.clip(np.searchsorted(cuts, mid) - 1, 0, max(len(cuts) - 2, 0))
+        seg = np.diff(cuts) if len(cuts) > 1 else np.array([pos[-1]])
+        return seg[at]
+
     def points(self, direction: str) -> np.ndarray:
         """Joint indices of its restraint points in ``direction``, in order along it."""
         return self.joints[self.restrained[direction]]

@@ -423,13 +423,13 @@ def _outside(U: np.ndarray, allowed: dict, tol: Tolerances) -> tuple:
     mode's movement at every joint, less its projection onto those, must be
     within ``tol.restraint_motion``.  Returns ``((mode, joints outside), ...)``.
     """
-    R = U.copy()
+    size = np.linalg.norm(U, axis=2)                           # (k, n)
     for j, dirs in allowed.items():
         D = np.array(dirs).T                                   # (d, r)
         q, s, _ = np.linalg.svd(D, full_matrices=False)
         B = q[:, s > 1e-12 * s[0]]
-        R[:, j, :] -= (R[:, j, :] @ B) @ B.T
-    size = np.linalg.norm(R, axis=2)                           # (k, n)
+        u = U[:, j, :]
+        size[:, j] = np.linalg.norm(u - (u @ B) @ B.T, axis=1)
     out = []
     for i in range(len(U)):
         bad = np.flatnonzero(size[i] > tol.restraint_motion)

@@ -56,8 +56,11 @@ def continuous_verdict(r: RestraintResult) -> str:
                 f"{longest}. The chords must be designed for buckling over those lengths.")
     ids = r.frame.joint_ids
     first = r.not_held[0]
-    return (f"NOT HELD, EVEN WITH CONTINUOUS CHORDS - {count(len(r.not_held), 'mechanism')} of "
-            f"{r.mechanisms} move{'s' if len(r.not_held) == 1 else ''} joints that no chord "
+    n = len(r.not_held)
+    which = (("its one mechanism moves" if n == 1 else f"every one of its {n} mechanisms moves")
+             if n == r.mechanisms else
+             f"{count(n, 'mechanism')} of {r.mechanisms} move{'s' if n == 1 else ''}")
+    return (f"NOT HELD, EVEN WITH CONTINUOUS CHORDS - {which} joints that no chord "
             f"holds between restraint points (mechanism {first[0] + 1} moves "
             f"{join_words([ids[j] for j in first[1]], most=6)}): brace or restrain "
             f"{'it' if len(r.not_held) == 1 else 'them'} first (spaceframe brace). Longest "
