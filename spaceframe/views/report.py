@@ -23,7 +23,7 @@ import numpy as np
 
 from .. import __version__
 from ..errors import SpaceframeError
-from ..naming import count, join_words
+from ..naming import count, fixed_decimals, join_words
 from ..results import AuditResult
 from ..tolerances import DISPLAY
 from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of
@@ -220,7 +220,8 @@ def restraints_document(r) -> dict:
                             for v in c.compression.tolist()]})
     top = max((max(c["segments"]) for c in chords), default=0.0)
     return {"verdict": continuous_verdict(r), "held": r.held_with_continuous_chords,
-            "rule": r.rule, "units": r.frame.units, "chords": chords, "longest": top,
+            "rule": r.rule, "units": r.frame.units, "size": r.frame.size(), "chords": chords,
+            "longest": top,
             "cases": list(r.case_names), "force_units": r.force_units, "why": why_lines(r),
             "fraction": r.fraction, "caution": RESTRAINT_CAUTION}
 
@@ -400,11 +401,12 @@ def _restraints_html(d: dict | None, most: int = 40) -> str:
     if d["cases"]:
         head += f"<th>largest compression ({e(d['force_units'])})</th>"
     rows = []
+    dp = fixed_decimals([d["size"]])
     for c in d["chords"][:most]:
-        cells = [(c["span"], "ids"), (c["joints"], "num"), (f"{c['length']:.3f}", "num")]
+        cells = [(c["span"], "ids"), (c["joints"], "num"), (f"{c['length']:.{dp}f}", "num")]
         for k in dirs:
             got = c["longest"].get(k)
-            cells += [(f"{got:.3f}" if got is not None else "-", "num"),
+            cells += [(f"{got:.{dp}f}" if got is not None else "-", "num"),
                       (c["counts"].get(k, "-"), "num")]
         if d["cases"]:
             pairs = [(v, n) for v, n in zip(c["compression"], d["cases"]) if v]
