@@ -349,14 +349,15 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
 
     # load cases: the chords' compression
     names: tuple[str, ...] = ()
-    T = np.zeros((0, frame.n_members))
+    shown = np.zeros((0, frame.n_members))         # (q, m) forces, round-off as 0; NaN: not carried
     force_units = ""
     if compression and frame.loads is not None and (frame.loads.cases
                                                      or frame.loads.self_weight):
         if forces is None:
             from .forces import forces as solve
             forces = solve(frame, cases, tol=tol)
-        names, T, force_units = forces.names, forces.member_forces, forces.force_units
+        names, force_units = forces.names, forces.force_units
+        shown = np.stack([forces.shown_forces(c) for c in range(len(names))])
     else:
         forces = None
 
@@ -390,10 +391,7 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
                 if where.size and where[0] < i < where[-1]:
                     allowed.setdefault(j, []).append(e)   # between restraint points
             loose[name] = tuple(reasons)
-        comp = np.full(len(names), np.nan)
-        for c in range(len(names)):
-            if forces.carried[c]:
-                comp[c] = max(0.0, -float(np.min(forces.shown_forces(c)[K])))
+        comp = np.maximum(0.0, -shown[:, K].min(axis=1)) if K.size else np.zeros(len(names))
         made.append(Chord(joints=J, members=K, positions=pos, axis=axis, directions=dirs,
                           plane=plane, frame_label=label, restrained=restrained,
                           lengths=lengths, ends_held=held, unrestrained=loose,
@@ -405,7 +403,7 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
                   not_held=not_held, case_names=tuple(names), forces=forces,
                   force_units=force_units, tol=tol)
     if fraction is not None:
-        F = _restraint_loads(frame, made, forces, fraction)
+        F = _restraint_loads(frame, made, shown, fraction)
         solved = None
         if np.any(F):
             from .forces import forces as solve
@@ -438,16 +436,15 @@ def _outside(U: np.ndarray, allowed: dict, tol: Tolerances) -> tuple:
     return tuple(out)
 
 
-def _restraint_loads(frame: Frame, chords, forces, fraction: float) -> np.ndarray:
+def _restraint_loads(frame: Frame, chords, shown: np.ndarray, fraction: float) -> np.ndarray:
     """The restraint-force case ``(n, d)``: ``fraction`` x the chord's compression at each of
-    its restraint points (largest over the carried cases of the two members there), along
-    its out-of-plane direction (in plane for a plane frame)."""
+    its restraint points (largest over the carried cases, rows of ``shown (q, m)``, of the
+    two members there), along its out-of-plane direction (in plane for a plane frame)."""
     F = np.zeros((frame.n_joints, frame.dimension))
-    use = np.flatnonzero(forces.carried)
-    if not use.size:
+    carried = shown[np.all(np.isfinite(shown), axis=1)]
+    if not len(carried):
         return F
-    T = np.stack([forces.shown_forces(c) for c in use])                 # (q', m)
-    squeeze = np.maximum(0.0, -T.min(axis=0))                            # (m,) compression
+    squeeze = np.maximum(0.0, -carried.min(axis=0))                      # (m,) compression
     for c in chords:
         name = "out_of_plane" if "out_of_plane" in c.directions else "in_plane"
         e = c.directions[name]
