@@ -126,7 +126,7 @@ def find_chords(frame: Frame, members: np.ndarray | None = None, *,
     -----
     At a joint where several pairs qualify, the most nearly opposite pairs are
     matched first, each member at most once.  Cost O(sum of deg^2) over the
-    joints, plus O(m) to walk the chains.
+    joints (vectorised over the joints of one degree), plus O(m) to walk the chains.
 
     Examples
     --------
@@ -145,24 +145,31 @@ def find_chords(frame: Frame, members: np.ndarray | None = None, *,
     slot = np.concatenate([np.zeros(len(k), np.int64), np.ones(len(k), np.int64)])
     order = np.lexsort((member, joint))
     joint, member, slot = joint[order], member[order], slot[order]
-    starts = np.flatnonzero(np.r_[True, joint[1:] != joint[:-1]]) if joint.size else []
-    bounds = list(starts) + [len(joint)]
+    starts = np.flatnonzero(np.r_[True, joint[1:] != joint[:-1]]) if joint.size else \
+        np.zeros(0, np.int64)
+    degree = np.diff(np.r_[starts, len(joint)])
     limit = -(1.0 - tol.chord_straight)
-    for a, b in zip(bounds[:-1], bounds[1:]):
-        if b - a < 2:
-            continue
-        ms, ss = member[a:b], slot[a:b]
-        away = unit[ms] * np.where(ss == 0, 1.0, -1.0)[:, None]
-        dots = away @ away.T
-        i, j = np.triu_indices(len(ms), 1)
-        ok = dots[i, j] <= limit
-        i, j, v = i[ok], j[ok], dots[i, j][ok]
-        taken = np.zeros(len(ms), dtype=bool)
-        for p in np.lexsort((j, i, v)):
-            if not taken[i[p]] and not taken[j[p]]:
-                taken[i[p]] = taken[j[p]] = True
-                partner[ms[i[p]], ss[i[p]]] = ms[j[p]]
-                partner[ms[j[p]], ss[j[p]]] = ms[i[p]]
+    for g in np.unique(degree[degree >= 2]).tolist():      # the joints of one degree at once
+        at = starts[degree == g][:, None] + np.arange(g)    # (c, g) rows of the sorted lists
+        ms, ss = member[at], slot[at]
+        away = unit[ms] * np.where(ss == 0, 1.0, -1.0)[..., None]
+        i, j = np.triu_indices(g, 1)
+        v = np.einsum("cpk,cpk->cp", away[:, i], away[:, j])  # (c, pairs) cosines
+        ok = v <= limit
+        uses = np.zeros((len(at), g), dtype=np.int64)
+        np.add.at(uses, (np.nonzero(ok)[0], i[np.nonzero(ok)[1]]), 1)
+        np.add.at(uses, (np.nonzero(ok)[0], j[np.nonzero(ok)[1]]), 1)
+        clash = (uses > 1).any(axis=1)                      # a member in two straight pairs
+        c, p = np.nonzero(ok & ~clash[:, None])
+        partner[ms[c, i[p]], ss[c, i[p]]] = ms[c, j[p]]
+        partner[ms[c, j[p]], ss[c, j[p]]] = ms[c, i[p]]
+        for c in np.flatnonzero(clash).tolist():            # the straightest pairs first
+            taken = np.zeros(g, dtype=bool)
+            for p in np.lexsort((j, i, v[c])).tolist():
+                if ok[c, p] and not taken[i[p]] and not taken[j[p]]:
+                    taken[i[p]] = taken[j[p]] = True
+                    partner[ms[c, i[p]], ss[c, i[p]]] = ms[c, j[p]]
+                    partner[ms[c, j[p]], ss[c, j[p]]] = ms[c, i[p]]
     seen = np.zeros(m, dtype=bool)
     chains = []
     for first in k.tolist():
@@ -341,8 +348,8 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
     normals = _frame_normals(frame, tol) if frame.dimension == 3 else {}
     principal = None
     if frame.dimension == 3:
-        _, _, vt = np.linalg.svd(X - X.mean(axis=0), full_matrices=True)
-        principal = vt[::-1]
+        _, _, vt = np.linalg.svd(X - X.mean(axis=0), full_matrices=False)
+        principal = vt[::-1]                           # (3, 3): least spread first
     ptr, at = _incidence(frame)
     unit = X[frame.ends[:, 1]] - X[frame.ends[:, 0]]
     unit = unit / np.linalg.norm(unit, axis=1)[:, None]

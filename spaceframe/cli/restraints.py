@@ -49,7 +49,8 @@ def restraints_command(model, chords, cases, fraction, as_json, show_all, suppor
         if as_json:
             click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
         else:
-            click.echo(render_restraints(result, max_rows=sys.maxsize if show_all else 12),
+            many = sys.maxsize if show_all else None
+            click.echo(render_restraints(result, max_rows=many or 12, max_details=many or 4),
                        nl=False)
         return result
 

@@ -117,9 +117,10 @@ def render_continuous(r: RestraintResult, *, most: int = 6) -> str:
     return "\n".join(out) + "\n"
 
 
-def render_restraints(r: RestraintResult, *, max_rows: int = 12) -> str:
+def render_restraints(r: RestraintResult, *, max_rows: int = 12, max_details: int = 4) -> str:
     """The restraints report as plain text: verdict, a table of chords (longest first), the
-    compressed chords per case, the restraint forces, the caution."""
+    restraint points and lengths of the first ``max_details`` chords, the compressed chords
+    per case, the restraint forces, the caution."""
     f = r.frame
     u = f.units
     where = f"  [{f.source}]" if f.source else ""
@@ -135,7 +136,7 @@ def render_restraints(r: RestraintResult, *, max_rows: int = 12) -> str:
     if why:
         out += ["", "Where restraint points are missing:"] + [f"  {w}" for w in why]
     if r.chords:
-        out += ["", *_table(r, max_rows)]
+        out += ["", *_table(r, max_rows), "", *_details(r, max_details)]
     if r.case_names:
         out += ["", *_cases(r, max_rows)]
     if r.fraction is not None:
@@ -151,7 +152,7 @@ def _table(r: RestraintResult, max_rows: int) -> list[str]:
     head = f"{'chord':<{w}}  {'joints':>6}  {'length':>9}"
     for d in LATERAL:
         if any(d in c.directions for c in r.chords):
-            head += f"  {'longest ' + DIRECTION_WORDS[d]:>22}  {'points':>6}"
+            head += f"  {'longest ' + DIRECTION_WORDS[d]:>22}  {'restraint points':>16}"
     if r.case_names:
         head += f"  largest compression ({r.force_units})"
     lines = [head]
@@ -161,14 +162,48 @@ def _table(r: RestraintResult, max_rows: int) -> list[str]:
         row = f"{spans[i]:<{w}}  {len(c.joints):>6}  {c.length:>9.{dp}f}"
         for d in LATERAL:
             if d in c.directions:
-                row += f"  {c.longest(d):>22.{dp}f}  {int(c.restrained[d].sum()):>6}"
+                row += f"  {c.longest(d):>22.{dp}f}  {int(c.restrained[d].sum()):>16}"
             elif any(d in x.directions for x in r.chords):
-                row += f"  {'-':>22}  {'-':>6}"
+                row += f"  {'-':>22}  {'-':>16}"
         if r.case_names:
             row += "  " + _compression(r, c)
         lines.append(row)
     if len(order) > max_rows:
         lines.append(f"... and {len(order) - max_rows} more chords (--all lists every chord)")
+    return lines
+
+
+def _runs(values, dp: int) -> str:
+    """Lengths in order, repeats folded: ``4000 x 3, 2000``."""
+    words = [f"{v:.{dp}f}" for v in values]
+    out, i = [], 0
+    while i < len(words):
+        j = i
+        while j + 1 < len(words) and words[j + 1] == words[i]:
+            j += 1
+        out.append(words[i] + (f" x {j - i + 1}" if j > i else ""))
+        i = j + 1
+    return ", ".join(out)
+
+
+def _details(r: RestraintResult, most: int) -> list[str]:
+    """Each chord's restraint points and unrestrained lengths, longest first."""
+    ids = r.frame.joint_ids
+    dp = fixed_decimals([r.frame.size()])
+    lines = [f"Restraint points and unrestrained lengths ({r.frame.units}), chord by chord:"]
+    order = r.order_longest()
+    for i in order[:most]:
+        c = r.chords[i]
+        lines.append(f"  {chord_span(r, i)}")
+        for d in LATERAL:
+            if d not in c.directions:
+                continue
+            pts = c.points(d)
+            which = ("every joint" if len(pts) == len(c.joints) else
+                     "none" if not len(pts) else join_words([ids[j] for j in pts], most=8))
+            lines.append(f"    {DIRECTION_WORDS[d]}: {which}; lengths {_runs(c.lengths[d], dp)}")
+    if len(order) > most:
+        lines.append(f"  ... and {len(order) - most} more (--all lists every chord)")
     return lines
 
 

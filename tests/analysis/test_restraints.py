@@ -60,6 +60,10 @@ def test_bottom_chords_restrained_at_tied_joints_and_bearings():
         np.testing.assert_allclose(bottom.directions["out_of_plane"], [0, 1, 0], atol=1e-12)
         np.testing.assert_allclose(bottom.directions["in_plane"], [0, 0, 1], atol=1e-12)
         assert bottom.plane == "frame"
+    from spaceframe.views.restraints_text import render_restraints
+    text = render_restraints(r)
+    assert "HELD WITH CONTINUOUS CHORDS" in text and "longest: 4000 mm out of plane" in text
+    assert "out of plane: F1.L0, F1.L2, F1.L4 and F1.L6; lengths 4000 x 3" in text
     doc = r.to_dict()
     assert doc["held_with_continuous_chords"] is True and doc["held_pin_jointed"] is False
     assert doc["chords"][0]["lengths"]["out_of_plane"] == [4000.0, 4000.0, 4000.0]
@@ -162,6 +166,10 @@ def test_find_chords_stops_at_a_kink_and_pairs_the_straightest():
                               [[0, 1], [1, 2], [3, 1], [1, 4]])
     got = [(J.tolist(), K.tolist()) for J, K in find_chords(cross)]
     assert got == [([0, 1, 2], [0, 1]), ([3, 1, 4], [2, 3])]
+    # two members within the tolerance of continuing member 0 (0.29 degrees off for member
+    # 2): the exactly opposite one is its partner, the other ends there
+    fork = Frame.from_arrays([[0, 0], [1, 0], [-1, 0.005], [-1, 0]], [[0, 1], [0, 2], [0, 3]])
+    assert [(J.tolist(), K.tolist()) for J, K in find_chords(fork)] == [([3, 0, 1], [2, 0])]
 
 
 def test_restraint_forces_on_a_braced_bay_by_hand():
