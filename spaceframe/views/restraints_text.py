@@ -130,7 +130,9 @@ def render_restraints(r: RestraintResult, *, max_rows: int = 12, max_details: in
               "two or more members)") + f"; lengths in {u}"
            + (f", forces in {r.force_units}" if r.case_names else "") + ".",
            "A restraint point is a chord joint no mechanism of the pin-jointed frame moves "
-           "sideways (supports count); an unrestrained length runs between two of them.",
+           "sideways (supports count); an unrestrained length runs between two of them."
+           + (" A plane frame analysed in its plane: in plane only (out of plane is not "
+              "modelled)." if f.dimension == 2 else ""),
            "", continuous_verdict(r)]
     why = why_lines(r, most=max_rows)
     if why:
