@@ -307,6 +307,8 @@ def page_text(doc: dict) -> dict:
                 "- compression (it pushes).")
     key = a["key_members"] or []
     cautions = [a["caution"], *doc["limits"], *(a["warnings"] or [])]
+    if doc.get("restraints"):
+        cautions.append(doc["restraints"]["caution"])
     if (a.get("rank_decision") or {}).get("narrow"):
         cautions.append("The rank decision was narrow: the result is sensitive to the "
                         "geometry's precision.")
