@@ -15,7 +15,8 @@ __all__ = ["report_command"]
               help="The HTML file to write.")
 @click.option("--bracing/--no-bracing", default=True, show_default=True,
               help="For a frame with mechanisms, include the bracing proposal of "
-                   "`spaceframe brace` (default candidates) and the audit after it.")
+                   "`spaceframe brace` (default candidates) and the audit after it, with the "
+                   "robust proposal (`brace --robust`) beside it.")
 @supports_option
 @force_option
 @debug_option
@@ -39,15 +40,16 @@ def report_command(model, out, bracing, supports, force, debug):
                             what="a report")
         frame = supports_for(load(model), model, supports)
         result = audit(frame)
-        proposal = None
+        proposal = robust = None
         if bracing and not result.stable:
             from ..analysis.bracing import recommend_bracing
             proposal = recommend_bracing(frame)
+            robust = recommend_bracing(frame, robust=True)
         loads = None
         if frame.loads is not None:
             from .. import forces
             loads = forces(frame)
-        write_text(path, render_report(result, proposal, loads), overwrite=force)
+        write_text(path, render_report(result, proposal, loads, robust), overwrite=force)
         click.echo(f"spaceframe: wrote {path}", err=True)
 
     run_guarded(job, debug=debug)

@@ -33,7 +33,7 @@
   });
   const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
   const show = { mode: -1, state: -1, loadcase: -1, t0: 0, picked: null, bracing: false };
-  const bracing = doc.bracing;
+  let bracing = doc.bracing;              // the proposal drawn: least cost, or robust
   const loads = doc.loads;                        // null for a model without load cases
   function fmt(v) { return (v > 0 ? "+" : "") + Number(v.toPrecision(4)) + " " + loads.force_units; }
   let animating = false;
@@ -369,19 +369,42 @@
     document.getElementById("bracing-controls").hidden = false;
     const toggle = document.getElementById("bracing-toggle");
     const after = document.getElementById("bracing-after");
+    const afterText = () => {
+      const a = bracing.after;
+      after.textContent = "Audit after bracing: " + plural(a.mechanisms, "mechanism") + ", " +
+        plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
+    };
     toggle.addEventListener("click", () => {
       show.bracing = !show.bracing;
       toggle.setAttribute("aria-pressed", String(show.bracing));
       toggle.textContent = show.bracing ? "Hide the proposed bracing" : "Show the proposed bracing";
       after.hidden = !show.bracing;
-      const a = bracing.after;
-      after.textContent = "Audit after bracing: " + plural(a.mechanisms, "mechanism") + ", " +
-        plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
+      afterText();
       if (show.bracing) {               // at rest, seen as for the first mode: across its motion
         atRest();
         if (geo.views.length) { fit(geo.views[0]); draw(); }
       } else { legend(); if (!animating) draw(); }
     });
+    // two proposals (least cost, robust): a switch on top of the two plain tables
+    const sw = document.getElementById("bracing-switch");
+    if (!sw || !doc.bracing_robust) return;
+    const blocks = { default: document.getElementById("bracing-block"),
+      robust: document.getElementById("bracing-block-robust") };
+    const choose = which => {
+      bracing = which === "robust" ? doc.bracing_robust : doc.bracing;
+      for (const b of sw.querySelectorAll("button")) {
+        b.setAttribute("aria-pressed", String(b.dataset.proposal === which));
+      }
+      blocks.default.hidden = which !== "default";
+      blocks.robust.hidden = which !== "robust";
+      afterText();
+      if (!animating) draw();
+    };
+    for (const b of sw.querySelectorAll("button")) {
+      b.addEventListener("click", () => choose(b.dataset.proposal));
+    }
+    sw.hidden = false;
+    choose("default");
   }
 
   function legend() {
@@ -433,6 +456,7 @@
     chooseMode(i) { chooseMode(i, buttons[i]); },
     chooseCase(i) { chooseCase(i, buttons.find(b => b.dataset.loadcase === String(i))); },
     bracingShown() { return show.bracing; },
+    bracingShownCount() { return show.bracing && bracing ? bracing.added.length : 0; },
     atRest,
   };
 
