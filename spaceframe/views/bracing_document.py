@@ -223,8 +223,9 @@ def _robust_note(r, key) -> str:
             f"method {how}{ratio}")
     if key:
         text = (f"robust as far as the candidates allow: {join_words(_ids(r, key), most=8)} "
-                f"stay key (no candidate can stand in for "
-                f"{'it' if len(key) == 1 else 'them'}); method {how}{ratio}")
+                f"stay key (no candidate allowed makes good the loss of "
+                f"{'it' if len(key) == 1 else 'any of them'}: allow more with --within or "
+                f"--candidates); method {how}{ratio}")
     return text
 
 

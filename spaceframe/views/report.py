@@ -353,14 +353,14 @@ def _proposal_block(b: dict, units: str, suffix: str, title: str) -> str:
                  m.get("location") or "", ", ".join(str(k) for k in m.get("modes") or []),
                  "key" if m.get("key") else "-"]
         if b.get("forces"):
-            cells.append((_largest(m.get("forces")), "num"))
+            cells.append(_largest(m.get("forces")))
         rows.append(_row(cells))
     for q in b["restraints_added"]:
         cells = ["restraint", q["joint"], "", "", "both ways",
                  "hold along (" + ", ".join(f"{v:.2f}" for v in q["direction"]) + ")",
                  ", ".join(str(k) for k in q.get("modes") or []), "key" if q.get("key") else "-"]
         if b.get("forces"):
-            cells.append((_largest(q.get("forces")), "num"))
+            cells.append(_largest(q.get("forces")))
         rows.append(_row(cells))
     width = 9 if b.get("forces") else 8
     rows += [_row(["left", "", "", "", "", t, "", ""] + [""] * (width - 8))

@@ -264,6 +264,8 @@ def hold_single_losses(frame: Frame, cand: CandidateSet, chosen, A, *, tension_o
     coloop among the added items): each added member in turn is left out
     and the one-way test run; when it finds a motion, the cheapest candidate
     that resists it (:func:`_resisting`) is added and the round starts again.
+    A loss that no candidate left can make good is passed over (that member
+    stays key) and the others are still repaired.
 
     Returns
     -------
@@ -280,23 +282,27 @@ def hold_single_losses(frame: Frame, cand: CandidateSet, chosen, A, *, tension_o
     """
     chosen = list(chosen)
     added: list[int] = []
+    stuck: set[int] = set()       # losses no candidate left can make good
     for _ in range(len(cand) + 1):
         braced = braced_frame(frame, cand, chosen, rods=rods_of(cand, chosen, tension_only))
         mem = [i for i in chosen if cand.joint[i] < 0]
-        weak = None
+        fix = None
         for k, i in enumerate(mem):
+            if i in stuck:
+                continue
             test = one_way_motion(_without(braced, frame.n_members, 0, k, True), tol=tol)
-            if test is not None and not test.held:
-                weak = test
-                break
-        if weak is None:
-            return chosen, added, True
-        if weak.motion is None:
-            return chosen, added, False
-        i = _resisting(A, cand, weak.motion, chosen, tension_only, tol)
-        if i is None:
-            return chosen, added, False
-        more = [j for j in with_needed_ties(cand, [i]) if j not in chosen]
+            if test is None or test.held:
+                continue
+            j = None if test.motion is None else _resisting(A, cand, test.motion, chosen,
+                                                            tension_only, tol)
+            if j is None:
+                stuck.add(i)
+                continue
+            fix = j
+            break
+        if fix is None:
+            return chosen, added, not stuck
+        more = [j for j in with_needed_ties(cand, [fix]) if j not in chosen]
         chosen += more
         added += more
     return chosen, added, False
