@@ -29,6 +29,8 @@ from scipy.optimize import linprog
 import spaceframe
 from spaceframe import Frame
 from spaceframe.analysis.bracing import recommend_bracing
+from spaceframe.edit import remove_members
+from spaceframe.io import save
 from spaceframe.tolerances import DEFAULT, Limits, Tolerances
 from spaceframe.views.bracing_document import bracing_document, bracing_notes
 
@@ -99,7 +101,7 @@ def test_canopy_tension_only_rods_are_one_way_and_held(tmp_path):
     assert _held_one_way(r.braced)
     # with one rod only (either), a motion slackens it: not held (common practice)
     for k in (0, 1):
-        one = spaceframe.edit.remove_members(r.braced, [frame.n_members + k])
+        one = remove_members(r.braced, [frame.n_members + k])
         assert _mechanisms(_matrix(one)) == 0 and not _held_one_way(one)
     # brace --write writes the rods tagged; read back they are one-way and held
     out = tmp_path / "canopy_rods.toml"
@@ -191,13 +193,13 @@ def test_model_rods_are_tested_one_way_without_the_option():
     assert "Nothing to brace" not in res
 
 
-def run_frame(frame, *args, tmp=None):
+def run_frame(frame, *args):
     """The text of ``brace`` on a frame written to a temporary model file."""
     import tempfile
 
     with tempfile.TemporaryDirectory() as d:
         path = Path(d) / "bay.toml"
-        spaceframe.io.save(frame, path)
+        save(frame, path)
         return run(*args, path, "--within", "5.5").output
 
 
@@ -373,3 +375,22 @@ def test_forces_under_the_model_cases_in_text_json_and_csv(tmp_path):
     text = run("brace", MODELS / "canopy_sway.toml").output
     assert "Forces in what is added (kN" in text and "local codes set it" in text
     assert "the added member is key: losing it brings a mechanism back" in text
+
+
+def test_cli_guys_from_a_candidate_list_tension_only(tmp_path):
+    # source: derived, as test_guyed_mast_tension_only_has_guys_on_all_sides; through the
+    # command line, the user's list is kept under --tension-only and every guy is a rod.
+    anchors = [(4, 0), (-4, 0), (0, 4), (0, -4), (3, 3)]
+    frame, _ = _mast(anchors, [1.0] * 5)
+    model = tmp_path / "mast.toml"
+    save(frame, model)
+    guys = tmp_path / "guys.csv"
+    guys.write_text("start,end,weight\n" + "".join(
+        f"top,A{k},{w}\n" for k, w in enumerate([1.0, 1.2, 1.1, 1.3, 0.9])))
+    res = run("brace", model, "--no-panels", "--candidates", guys, "--tension-only", "--json")
+    assert res.exit_code == 0, res.output
+    doc = json.loads(res.stdout)
+    assert doc["one_way_held"] is True and len(doc["added"]) >= 3
+    assert {a["carries"] for a in doc["added"]} == {"tension"}
+    assert {a["origin"] for a in doc["added"]} == {"listed"}
+    assert any(a["added_for"] == "one-way repair" for a in doc["added"])
