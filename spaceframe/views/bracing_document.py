@@ -18,7 +18,7 @@ from ..naming import count, join_words
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
 from ..results import CAUTION
 from ..supports import AXES
-from ..tolerances import DISPLAY
+from ..tolerances import DEFAULT, DISPLAY
 
 __all__ = ["bracing_document", "candidate_entry", "location", "remedy_text", "bracing_notes",
            "forces_section", "force_note"]
@@ -251,9 +251,10 @@ def force_note(r, i: int, k: int, pf) -> str:
 
 
 def _zero(pf) -> float:
+    """What counts as no force: ``Tolerances.zero_force`` of the largest added force."""
     finite = np.abs(pf.members[np.isfinite(pf.members)])
     finite = np.r_[finite, np.abs(pf.restraints[np.isfinite(pf.restraints)])]
-    return DISPLAY.floor * (float(finite.max()) if finite.size else 0.0)
+    return DEFAULT.zero_force * (float(finite.max()) if finite.size else 0.0)
 
 
 def _extreme(values, names, sign):
@@ -271,7 +272,9 @@ def forces_section(r) -> dict | None:
     if pf is None:
         return None
     z = _zero(pf)
-    clean = lambda v: None if not np.isfinite(v) else round(0.0 if abs(v) <= z else float(v), 6)  # noqa: E731
+
+    def clean(v):
+        return None if not np.isfinite(v) else round(0.0 if abs(v) <= z else float(v), 6)
 
     def entry(values, slack=None):
         vals = [clean(v) for v in values]

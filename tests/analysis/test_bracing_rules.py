@@ -31,7 +31,7 @@ from spaceframe import Frame
 from spaceframe.analysis.bracing import recommend_bracing
 from spaceframe.edit import remove_members
 from spaceframe.io import save
-from spaceframe.tolerances import DEFAULT, Limits, Tolerances
+from spaceframe.tolerances import Limits, Tolerances
 from spaceframe.views.bracing_document import bracing_document, bracing_notes
 
 from common.bracing_frames import box_frame, plane_grid, small_extruded
