@@ -241,10 +241,13 @@ def force_note(r, i: int, k: int, pf) -> str:
                    if p in mid and not all(pf.slack[:, r.members_added.index(p)][
                        [n in slack for n in pf.names]]) else
                    "the rest of the frame carries the load then (forces shown with it slack)")
-        return (f"rod: would be in compression, so goes slack, under "
-                f"{join_words(slack, most=4)}; {instead}")
+        when = ("in every case" if len(slack) == len(pf.names) else
+                f"under {join_words(slack, most=4)}")
+        return f"rod: would be in compression, so goes slack, {when}; {instead}"
     ok = pf.carried & np.isfinite(t)
     comp = [n for n, v, c in zip(pf.names, t, ok) if c and v < -_zero(pf)]
+    if comp and len(comp) == int(ok.sum()):
+        return "compression in every case: check it for buckling"
     if comp:
         return f"compression under {join_words(comp, most=4)}: check it for buckling"
     return ""

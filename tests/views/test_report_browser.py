@@ -244,8 +244,9 @@ def test_report_reads_with_scripts_off(browser, tmp_path):
     frame = spaceframe.load(MODELS / "canopy_sway.toml")
     result = spaceframe.audit(frame)
     proposal = recommend_bracing(frame)
+    robust = recommend_bracing(frame, robust=True)
     path = tmp_path / "noscript.html"
-    path.write_text(render_report(result, proposal), encoding="utf-8")
+    path.write_text(render_report(result, proposal, robust=robust), encoding="utf-8")
     context = browser.new_context(java_script_enabled=False, viewport={"width": 1300,
                                                                         "height": 1000})
     page = context.new_page()
@@ -264,6 +265,9 @@ def test_report_reads_with_scripts_off(browser, tmp_path):
         assert result.mode_info[0].description in mech.nth(0).inner_text()
         assert page.locator("#states tbody tr").count() == result.self_stress_forces.shape[0]
         assert page.locator("#bracing tbody tr").count() == len(proposal.members_added)
+        # both proposals read as plain tables; the switch is the script's
+        assert page.locator("#bracing-robust tbody tr").count() == len(robust.members_added)
+        assert not page.is_visible("#bracing-switch")
         assert "competent engineer" in page.inner_text("#cautions")
         assert not page.is_visible("#viewer-section")
         assert "needs JavaScript" in page.inner_text("main")

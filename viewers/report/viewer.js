@@ -371,7 +371,8 @@
     const after = document.getElementById("bracing-after");
     const afterText = () => {
       const a = bracing.after;
-      after.textContent = "Audit after bracing: " + plural(a.mechanisms, "mechanism") + ", " +
+      const which = doc.bracing_robust && bracing === doc.bracing_robust ? "the robust " : "";
+      after.textContent = "Audit after " + which + "bracing: " + plural(a.mechanisms, "mechanism") + ", " +
         plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
     };
     toggle.addEventListener("click", () => {
