@@ -46,7 +46,8 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
         lines.append(f"Members to add ({len(added)}), "
                      + ("that stay held after the loss of any one:" if r.robust is not None
                         else "the fewest and then the shortest that remove what the "
-                             "candidates can:"))
+                             "candidates can" + (", with what the notes below add:"
+                                                 if r.rules.ties or r.rules.repaired else ":")))
         rows = [("id", "from", "to", f"length {units}", "carries", "where", "modes acted on",
                  "key")]
         rows += [(a["id"], name(a["ends"][0]), name(a["ends"][1]), f"{a['length']:.3f}",

@@ -65,7 +65,8 @@ from .forces import proposal_forces
 from .result import (BracingResult, LateralRestraint, MemberRules, Remedy, RobustInfo,
                      braced_frame)
 from .robust import robust_elements
-from .rules import hold_one_way, hold_single_losses, key_items, rods_of, with_needed_ties
+from .rules import (hold_one_way, hold_single_losses, key_items, one_way_motion, rods_of,
+                    with_needed_ties)
 
 __all__ = ["recommend_bracing", "reach_rows", "greedy_basis", "matroid_elements",
            "expand_elements", "remedies", "lateral_restraint", "planar_plane", "PER_MODE"]
@@ -440,6 +441,10 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                                  tension_only)
     rule = _member_rules(frame, cand, chosen, A, k - len(basis), tension_only, robust, tol)
     chosen = rule["chosen"]
+    if rule["ties"] or rule["repaired"]:
+        alts = []           # the rules changed the choice: a same-size swap no longer says it
+    elif rule["one_way"]:
+        alts = [(alt, c) for alt, c in alts if _one_way_held(frame, cand, alt, tension_only, tol)]
     braced = braced_frame(frame, cand, chosen, rods=rods_of(cand, chosen, tension_only))
     after = audit(braced, tol=tol, **opts)
     acts_on = tuple(tuple(int(m) + 1 for m in np.flatnonzero(acts_all[i] > tol.acts))
@@ -469,6 +474,13 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                                                                tension_only)) if rc else ()),
                          proposal_forces=proposal_forces(braced, frame, tol=tol) if forces
                          else None)
+
+
+def _one_way_held(frame, cand, chosen, tension_only, tol) -> bool:
+    """Is ``frame`` braced with ``chosen`` held under the one-way test?"""
+    test = one_way_motion(braced_frame(frame, cand, with_needed_ties(cand, chosen),
+                                       rods=rods_of(cand, chosen, tension_only)), tol=tol)
+    return test is None or test.held
 
 
 def _member_rules(frame, cand, chosen, A, left, tension_only, robust, tol):
