@@ -215,6 +215,9 @@ def _robust_note(r, key) -> str:
     b = r.robust
     how = (f"exact: the cheapest such set ({count(b.searched, 'subset')} of the candidates "
            f"searched in order of cost)" if b.method == "exact" else
+           "greedy + repair: a set robust with every member two-way, then what the one-way "
+           "repair adds while the loss of one member leaves a motion that slackens one-way "
+           "members; not proven the cheapest" if b.method == "repair" else
            f"greedy augmentation of the least-cost basis (the exact search stopped after "
            f"{count(b.searched, 'subset')}): not proven the cheapest")
     ratio = (f"; cost {r.cost:.3f} against {b.least_cost:.3f} for the least-cost basis "

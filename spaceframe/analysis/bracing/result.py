@@ -122,8 +122,10 @@ class RobustInfo:
     Attributes
     ----------
     method : str
-        ``"exact"`` (proven the cheapest such set) or ``"greedy"``
-        (augmentation of the least-cost basis).
+        ``"exact"`` (proven the cheapest such set), ``"greedy"``
+        (augmentation of the least-cost basis) or ``"repair"`` (with one-way
+        members: either of those, then candidates added by the one-way
+        repair, :mod:`.rules`).
     searched : int
         Subsets the exact search looked at.
     least_cost : float

@@ -468,7 +468,8 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                              key=key_items(frame, cand, chosen, reach, threshold, braced,
                                            tol=tol)),
                          robust=None if not robust else RobustInfo(
-                             method=rc.method if rc else "exact",
+                             method="repair" if rule["repaired"] else
+                             rc.method if rc else "exact",
                              searched=rc.searched if rc else 0, least_cost=least,
                              uncoverable=tuple(expand_elements(rc.uncoverable, cand,
                                                                tension_only)) if rc else ()),
