@@ -147,10 +147,12 @@ def bracing_notes(r) -> list[str]:
     if r.restraints_used and not len(r.frame.restraint_joint):
         notes.append("the frame has no support: restraint candidates stand at every joint")
     if r.tension_only:
+        paired = any(r.candidates.partner[i] in set(r.chosen) for i in r.members_added)
         notes.append("tension-only bracing: the added braces are rods (tagged carries = "
-                     "tension in the braced model) that go slack in compression; each chosen "
-                     "panel gets both diagonals, one for each racking direction; ties and "
-                     "restraints carry both ways")
+                     "tension in the braced model) that go slack in compression"
+                     + ("; each chosen panel gets both diagonals, one for each racking "
+                        "direction" if paired else "")
+                     + "; ties and restraints carry both ways")
     notes += _rule_notes(r)
     if r.after.mechanisms > r.expected_after:
         notes.append(f"the re-audit finds {r.after.mechanisms} mechanisms where the selection "

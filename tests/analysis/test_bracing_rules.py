@@ -394,3 +394,21 @@ def test_cli_guys_from_a_candidate_list_tension_only(tmp_path):
     assert {a["carries"] for a in doc["added"]} == {"tension"}
     assert {a["origin"] for a in doc["added"]} == {"listed"}
     assert any(a["added_for"] == "one-way repair" for a in doc["added"])
+
+
+def test_stage_mast_demo_gets_guys_all_round():
+    # source: Roth & Whiteley 1981 (independent check) and derived: the two shortest guys
+    # (north 9.43 m, east 9.71 m) hold the head two-way, but both go slack when it moves
+    # between them; the repair adds the west guy (10.0 m), then the south one (10.25 m)
+    # against a movement north that slackens the north guy alone.
+    from spaceframe.io.candidates import read_candidate_list
+
+    frame = spaceframe.load(MODELS / "stage_mast.toml")
+    listed = read_candidate_list(MODELS / "stage_mast.guys.csv", frame)[:2]
+    r = recommend_bracing(frame, listed=listed, panels=False, tension_only=True,
+                          alternatives=0)
+    anchors = [frame.joint_ids[r.candidates.ends[i][1]] for i in r.members_added]
+    assert anchors == ["AN", "AE", "AW", "AS"]
+    assert r.after.stable and _held_one_way(r.braced)
+    assert _on_all_sides(frame, r)
+
