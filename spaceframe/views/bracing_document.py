@@ -215,13 +215,17 @@ def _rule_notes(r) -> list[str]:
 
 def _robust_note(r, key) -> str:
     b = r.robust
+    parts = (f", in {b.parts} independent parts" if b.parts > 1 else "")
     how = (f"exact: the cheapest such set ({count(b.searched, 'subset')} of the candidates "
-           f"searched in order of cost)" if b.method == "exact" else
+           f"searched in order of cost{parts})" if b.method == "exact" else
            "greedy + repair: a set robust with every member two-way, then what the one-way "
            "repair adds while the loss of one member leaves a motion that slackens one-way "
            "members; not proven the cheapest" if b.method == "repair" else
            f"greedy augmentation of the least-cost basis (the exact search stopped after "
-           f"{count(b.searched, 'subset')}): not proven the cheapest")
+           f"{count(b.searched, 'subset')}"
+           + (f"; exact in {b.exact_parts} of its {b.parts} independent parts"
+              if b.parts > 1 and b.exact_parts else "")
+           + "): not proven the cheapest")
     ratio = (f"; cost {r.cost:.3f} against {b.least_cost:.3f} for the least-cost basis "
              f"({r.cost / b.least_cost:.2f} x)" if b.least_cost > 0 else "")
     text = (f"robust: the braced frame stays held after the loss of any one added item; "
@@ -358,7 +362,8 @@ def bracing_document(r) -> dict:
         "one_way": r.rules.one_way,
         "one_way_held": None if r.after.one_way is None else bool(r.after.one_way.held),
         "robust": None if rb is None else {
-            "method": rb.method, "searched": rb.searched, "cost": round(r.cost, 6),
+            "method": rb.method, "searched": rb.searched, "parts": rb.parts,
+            "exact_parts": rb.exact_parts, "cost": round(r.cost, 6),
             "least_cost": round(rb.least_cost, 6),
             "ratio": round(r.cost / rb.least_cost, 6) if rb.least_cost > 0 else None,
             "uncoverable": _ids(r, [i for i in rb.uncoverable if i in set(r.chosen)])},

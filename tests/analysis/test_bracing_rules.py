@@ -412,3 +412,18 @@ def test_stage_mast_demo_gets_guys_all_round():
     assert r.after.stable and _held_one_way(r.braced)
     assert _on_all_sides(frame, r)
 
+
+
+def test_robust_search_splits_into_independent_parts():
+    # source: derived.  Two bays 4 x 3 apart (no member joins them), each pinned at its feet,
+    # sway independently: the matroid has two components (Krogdahl 1977), each needing both
+    # of its diagonals (5 m) to survive the loss of one, so 4 diagonals, 20 m, proven by the
+    # search part by part; checked again by losing each in turn (independent SVD).
+    coords = [[0, 0], [0, 3], [4, 3], [4, 0], [10, 0], [10, 3], [14, 3], [14, 0]]
+    ends = [[0, 1], [1, 2], [2, 3], [4, 5], [5, 6], [6, 7]]
+    frame = Frame.from_arrays(coords, ends, supports={j: "pin" for j in (0, 3, 4, 7)})
+    r = recommend_bracing(frame, robust=True, alternatives=0, forces=False)
+    assert r.robust.method == "exact" and r.robust.parts == 2 and r.robust.exact_parts == 2
+    assert len(r.members_added) == 4 and r.total_length == pytest.approx(20.0)
+    assert _survives_each_loss(frame, r)
+    assert any("in 2 independent parts" in n for n in bracing_notes(r))

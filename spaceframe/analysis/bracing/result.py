@@ -134,12 +134,18 @@ class RobustInfo:
     uncoverable : tuple of int
         Candidates of that basis no other candidate can stand in for: key in
         every proposal.
+    parts : int
+        Independent parts (connected components of the matroid) searched.
+    exact_parts : int
+        Those the exact search solved.
     """
 
     method: str
     searched: int
     least_cost: float
     uncoverable: tuple[int, ...] = ()
+    parts: int = 1
+    exact_parts: int = 0
 
 
 @dataclass(frozen=True, eq=False)

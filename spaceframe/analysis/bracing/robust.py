@@ -9,13 +9,16 @@ general (it contains the minimum 2-edge-connected spanning subgraph problem
 of graphic matroids, NP-hard), so two methods:
 
 Exact search
-    Subsets of the useful elements (those with a reach) in order of
+    The matroid splits into its connected components (:func:`_parts`), and
+    the cheapest robust set is the union of each one's cheapest.  In each,
+    subsets of the useful elements (those with a reach) in order of
     nondecreasing total cost (a heap: from the subset whose dearest element
     is ``i``, the next are it with ``i + 1`` added and with ``i`` replaced
     by ``i + 1``; every subset comes once, none cheaper after a dearer one),
     the first spanning set without coloop being the cheapest.  It stops after
-    ``Limits.robust_search`` subsets, or as soon as the subsets cost more
-    than the greedy set below (which is then the cheapest).
+    ``Limits.robust_search`` subsets in all, or as soon as the subsets cost
+    more than the greedy set below (which is then the cheapest); a component
+    the search does not finish keeps the greedy set's part.
 Greedy augmentation
     Above that: the least-cost basis ``B`` and, as in the greedy rule for
     weighted set cover (Chvatal [1]_), the element that stands in for the most
@@ -35,7 +38,10 @@ References
 .. [1] V. Chvatal, "A greedy heuristic for the set-covering problem", Math.
    Oper. Res. 4(3), 233-235, 1979.
 .. [2] J. Oxley, *Matroid Theory*, 2nd ed., Oxford University Press, 2011
-   (coloops, fundamental circuits).
+   (coloops, fundamental circuits, connected components).
+.. [3] S. Krogdahl, "The dependence graph for bases in matroids", Discrete
+   Math. 19(1), 47-59, 1977 (a matroid is connected exactly when the
+   fundamental-circuit graph of a basis is).
 """
 
 from __future__ import annotations
@@ -66,12 +72,19 @@ class RobustChoice:
     uncoverable : tuple of int
         Elements of the least-cost basis that no other candidate can stand
         in for: every set that removes as much contains them, as coloops.
+    parts : int
+        Connected components of the matroid of the useful elements (each
+        searched on its own).
+    exact_parts : int
+        Those whose cheapest robust set the exact search proved.
     """
 
     elements: tuple[int, ...]
     method: str
     searched: int
     uncoverable: tuple[int, ...] = ()
+    parts: int = 1
+    exact_parts: int = 0
 
 
 def _effective_cost(cost, is_member):
@@ -118,10 +131,15 @@ def _exact(rows, items, cost, rank, threshold, budget, bound):
 
 
 def _greedy(rows, basis, items, cost, threshold):
-    """Greedy set cover of the basis by the other useful items, then pruned."""
+    """Greedy set cover of the basis by the other useful items, then pruned.
+
+    Returns ``(chosen, blocked, others, cover)``: the elements chosen, the
+    basis elements no other item covers, the other items and the ``(o, r)``
+    cover matrix (:func:`_cover`).
+    """
     others = [i for i in items if i not in set(basis)]
     if not others:
-        return tuple(basis), tuple(basis)
+        return tuple(basis), tuple(basis), others, np.zeros((0, len(basis)), dtype=bool)
     cover = _cover(rows, basis, others, threshold)       # (o, r)
     can = cover.any(axis=0)
     uncovered = can.copy()
@@ -138,7 +156,37 @@ def _greedy(rows, basis, items, cost, threshold):
         if rest and not (can & ~cover[rest].any(axis=0)).any():
             picked = rest
     chosen = list(basis) + sorted((others[k] for k in picked), key=rank_of.get)
-    return tuple(chosen), tuple(b for b, ok in zip(basis, can) if not ok)
+    return tuple(chosen), tuple(b for b, ok in zip(basis, can) if not ok), others, cover
+
+
+def _parts(basis, others, cover) -> list[tuple[list[int], list[int]]]:
+    """The connected components of the matroid: ``(basis elements, other elements)`` each.
+
+    Two elements lie in one component exactly when the bipartite graph of
+    fundamental circuits (an other element joined to each basis element of
+    its circuit, the rows of ``cover``) joins them (Krogdahl [3]_); the
+    cheapest robust set is the union of the cheapest of each component.
+    """
+    r = len(basis)
+    parent = list(range(r + len(others)))
+
+    def find(x):
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    for f, e in zip(*np.nonzero(cover)):
+        a, b = find(r + int(f)), find(int(e))
+        if a != b:
+            parent[max(a, b)] = min(a, b)
+    groups: dict[int, tuple[list[int], list[int]]] = {}
+    for e in range(r):
+        groups.setdefault(find(e), ([], []))[0].append(basis[e])
+    for f in range(len(others)):
+        if cover[f].any():
+            groups[find(r + f)][1].append(others[f])
+    return [groups[k] for k in sorted(groups)]
 
 
 def robust_elements(rows: np.ndarray, order, cost, is_member, basis, threshold: float, *,
@@ -179,13 +227,25 @@ def robust_elements(rows: np.ndarray, order, cost, is_member, basis, threshold: 
     norms = np.linalg.norm(rows, axis=1)
     items = [int(i) for i in order if norms[i] > threshold]
     eff = _effective_cost(cost, np.asarray(is_member, dtype=bool))
-    chosen, blocked = _greedy(rows, basis, items, eff, threshold)
+    chosen, blocked, others, cover = _greedy(rows, basis, items, eff, threshold)
     if blocked:     # some element of the basis is a coloop of every spanning set
         return RobustChoice(chosen, "greedy", 0, blocked)
-    bound = float(eff[list(chosen)].sum())
-    found, seen = _exact(rows, items, eff, rank, threshold, tol.limits.robust_search, bound)
-    if found == ():
-        return RobustChoice(chosen, "exact", seen)
-    if found is not None:
-        return RobustChoice(found, "exact", seen)
-    return RobustChoice(chosen, "greedy", seen)
+    position = {i: k for k, i in enumerate(items)}
+    parts = sorted(_parts(basis, others, cover), key=lambda g: (len(g[0]) + len(g[1]),
+                                                                 position[g[0][0]]))
+    found, seen, exact = [], 0, 0
+    greedy_set = set(chosen)
+    for part_basis, part_others in parts:
+        members = sorted(part_basis + part_others, key=position.get)
+        mine = [i for i in members if i in greedy_set]
+        got, looked = _exact(rows, members, eff, len(part_basis), threshold,
+                             max(0, tol.limits.robust_search - seen), float(eff[mine].sum()))
+        seen += looked
+        if got is None:
+            found += mine
+        else:
+            exact += 1
+            found += mine if got == () else list(got)
+    elements = tuple(sorted(found, key=position.get))
+    return RobustChoice(elements, "exact" if exact == len(parts) else "greedy", seen,
+                        parts=len(parts), exact_parts=exact)

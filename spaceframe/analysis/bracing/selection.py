@@ -472,7 +472,9 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                              rc.method if rc else "exact",
                              searched=rc.searched if rc else 0, least_cost=least,
                              uncoverable=tuple(expand_elements(rc.uncoverable, cand,
-                                                               tension_only)) if rc else ()),
+                                                               tension_only)) if rc else (),
+                             parts=rc.parts if rc else 0,
+                             exact_parts=rc.exact_parts if rc else 0),
                          proposal_forces=proposal_forces(braced, frame, tol=tol) if forces
                          else None)
 
