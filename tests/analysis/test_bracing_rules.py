@@ -374,6 +374,8 @@ def test_forces_under_the_model_cases_in_text_json_and_csv(tmp_path):
     assert float(rows[0]["tension_max_kN"] or rows[0]["compression_max_kN"]) != 0
     text = run("brace", MODELS / "canopy_sway.toml").output
     assert "Forces in what is added (kN" in text and "local codes set it" in text
+    bare = json.loads(run("brace", MODELS / "canopy_sway.toml", "--json", "--no-forces").stdout)
+    assert bare["forces"] is None and "forces" not in bare["added"][0]
     assert "the added member is key: losing it brings a mechanism back" in text
 
 

@@ -24,18 +24,21 @@ The pieces, in the order :func:`recommend_bracing` uses them:
    ``tol.rank * s_max``, the threshold of the rank decision
    (:class:`spaceframe.tolerances.Tolerances`), ``s_max`` the largest
    singular value of the compatibility matrix.
-4. :func:`expand_elements`: elements back to candidates.
-5. :func:`braced_frame` and the re-audit with the core engine; for what is
-   left, :func:`remedies` and :func:`lateral_restraint` (data the views word).
+4. :func:`expand_elements`: elements back to candidates; with ``robust``,
+   the robust elements first (:mod:`.robust`).
+5. The member rules (:mod:`.rules`): needed ties and, with one-way members,
+   the repair under Roth & Whiteley's test; which items are key.
+6. :func:`braced_frame` and the re-audit with the core engine; for what is
+   left, :func:`remedies` and :func:`lateral_restraint` (data the views word);
+   the forces in what is added (:mod:`.forces`).
 
 Tension-only bracing
     Rods carry tension only; a panel braced against racking both ways needs
     both diagonals.  Each panel is then one element of the matroid, with the
     reach of the diagonal that moves more and the cost of both, and a chosen
-    panel gets both.  A rule for other member behaviour (members that carry
-    one sign of force) belongs in :func:`matroid_elements` and
-    :func:`expand_elements`: the greedy pass itself only sees rows, an order
-    and a threshold.
+    panel gets both.  That the rods then hold the frame acting one way is
+    checked, and repaired where they do not, by :mod:`.rules`: the greedy
+    pass itself only sees rows, an order and a threshold.
 
 References
 ----------
