@@ -354,7 +354,7 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
         members of a frame that has one-way members of its own.
     robust : bool, keyword-only
         No added item whose loss brings a mechanism back (:mod:`.robust`):
-        exact search on small candidate sets, greedy augmentation of the
+        exact search part by part while it stays small, greedy augmentation of the
         least-cost basis above (``BracingResult.robust`` says which).
     forces : bool, keyword-only
         The forces in the added members and restraints under the model's
@@ -397,7 +397,7 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
     and per added item that is not a coloop (key items); ``robust`` adds the
     exact search (at most ``tol.limits.robust_search`` subsets) or the greedy
     cover, O(u k r) for ``u`` useful candidates (measured in
-    ``benchmarks/bench_brace.py``: 2.1 x the default's selection, key check
+    ``benchmarks/bench_brace.py``: 1.6 x the default's selection, key check
     and re-audit on 19,600 members and 100 mechanisms); ``forces``, one call
     of :func:`spaceframe.analysis.forces.forces` on the braced frame.
 
