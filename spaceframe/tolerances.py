@@ -63,6 +63,11 @@ class Limits:
         ``free_coordinates x mechanisms`` array) when ``free_coordinates *
         mechanisms > split_basis``, as one dense array otherwise.  The two give
         the same modes to rounding.  Default ``1_000_000``.
+    robust_search : int
+        A robust bracing proposal (no added item whose loss brings a
+        mechanism back) is searched for exactly, subsets in order of cost,
+        while ``subsets seen <= robust_search``; above, it is the greedy
+        augmentation of the least-cost basis.  Default ``20_000``.
     """
 
     dense_engine: int = 100_000
@@ -72,6 +77,7 @@ class Limits:
     common_prestress: int = 12
     pardiso_engine: int = 2_000
     split_basis: int = 1_000_000
+    robust_search: int = 20_000
 
 
 @dataclass(frozen=True)
