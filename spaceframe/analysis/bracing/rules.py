@@ -98,7 +98,9 @@ def one_way_motion(frame: Frame, *, tol: Tolerances = DEFAULT):
     test's linear programmes alone (:func:`spaceframe.analysis.oneway.one_way_test`).
     """
     dofs = free_dofs(frame)
-    return one_way_test(frame, compatibility_matrix(frame, dofs), dofs, mechanisms=0, tol=tol)
+    # the frame's bending scale, as the audit gives it, so both judge its margin alike
+    return one_way_test(frame, compatibility_matrix(frame, dofs), dofs, mechanisms=0,
+                        scale=frame.bending_scale(), tol=tol)
 
 
 def _resisting(A, cand: CandidateSet, motion: np.ndarray, exclude, tension_only: bool,
