@@ -57,6 +57,14 @@ class Limits:
         ``free_coordinates x mechanisms`` array) when ``free_coordinates *
         mechanisms > split_basis``, as one dense array otherwise.  The two give
         the same modes to rounding.  Default ``1_000_000``.
+    dense_modes : int
+        The audit holds its mechanisms and their stiffening states dense
+        (``(k, n, d)`` and ``(k, m)`` arrays) when ``mechanisms * joints *
+        dimension <= dense_modes``, and as sparse rows otherwise
+        (:class:`spaceframe.modeset.ModeSet`), with the product forces
+        projected block by block (:mod:`spaceframe.analysis.blocks`).  The two
+        give the same modes, orders and states to rounding.  Default
+        ``20_000_000`` (160 MB of modes).
     """
 
     dense_engine: int = 100_000
@@ -65,6 +73,7 @@ class Limits:
     dense_soft: int = 1_500
     common_prestress: int = 12
     split_basis: int = 1_000_000
+    dense_modes: int = 20_000_000
 
 
 @dataclass(frozen=True)
@@ -252,6 +261,11 @@ class Tolerances:
         projection onto the states of self-stress); one state ``t`` stiffens
         all modes when the smallest eigenvalue of their geometric stiffness
         matrix exceeds ``stiffening`` times its largest entry.  Default ``1e-8``.
+    sparse_drop : float
+        A stiffening state held sparse (many modes, ``Limits.dense_modes``) and
+        projected with the whole frame's factorisation keeps member ``e`` when
+        ``|t_e| > sparse_drop * max |t|``; the rest is the rounding of the
+        solve, far below what is shown (``Display.floor``).  Default ``1e-12``.
     soft : float
         A held mode is reported as soft when its stiffness ``lambda`` (an
         eigenvalue of ``K = C.T diag(EA / L) C``) has ``lambda < soft * k``,
@@ -396,6 +410,7 @@ class Tolerances:
     axis_restraint: float = 1e-15
     key: float = 1e-8
     stiffening: float = 1e-8
+    sparse_drop: float = 1e-12
     soft: float = 1e-3
     soft_shift: float = 1e-10
     in_plane_direction: float = 1e-3

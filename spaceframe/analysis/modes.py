@@ -33,6 +33,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from ..model import Frame
+from ..modeset import ModeSet
 from ..naming import (count, direction_words, join_words, natural_key, numbered_only, placed,
                       xyz)
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
@@ -263,8 +264,9 @@ def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[st
     Parameters
     ----------
     frame : Frame
-    displacements : (k, n, d) float
-        Joint movements of each mode.
+    displacements : (k, n, d) float, or ModeSet
+        Joint movements of each mode.  A sparse ModeSet is read one mode at a
+        time at the joints it moves, O(moving joints) each instead of O(n).
     kinds_hint : tuple of str
         ``"internal"`` or ``"rigid-body"`` for each mode.
     tol : Tolerances, keyword-only
@@ -276,7 +278,71 @@ def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[st
     tuple of ModeInfo
     """
     ctx = _Context(frame, tol)
+    if isinstance(displacements, ModeSet) and displacements.sparse:
+        return _describe_sparse(ctx, displacements, kinds_hint)
+    if isinstance(displacements, ModeSet):
+        displacements = displacements.dense()
     return tuple(ctx.describe(u, hint) for u, hint in zip(displacements, kinds_hint))
+
+
+def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
+    """:func:`describe_modes` of modes held sparse, in batches.
+
+    Each internal mode is read at the joints it moves only; the singular value
+    decompositions of the modes' joint movements (one per mode) and of the
+    member directions at the joints of one-joint modes (their plane's normal)
+    are each made in one batched call per shape, so that thousands of
+    one-joint modes cost little more than their sentences.
+    """
+    prepared, groups = {}, {}
+    for i, hint in enumerate(kinds_hint):
+        if hint == "rigid-body":
+            continue
+        index, values = modes.support(i)
+        u = _AtJoints(index, values)
+        moving, peak = ctx.moving(values, index)
+        U = u[moving]
+        prepared[i] = (u, index, moving, peak, U)
+        groups.setdefault(U.shape, []).append(i)
+    svd = {}
+    for shape, idx in groups.items():
+        if 0 in shape:
+            continue
+        _, sv, vt = np.linalg.svd(np.stack([prepared[i][4] for i in idx]), full_matrices=False)
+        svd.update({i: (sv[t], vt[t]) for t, i in enumerate(idx)})
+    ctx.prime_normals([int(p[2][0]) for p in prepared.values() if len(p[2]) == 1])
+    out = []
+    for i, hint in enumerate(kinds_hint):
+        if i not in prepared:
+            out.append(ctx.describe(modes[i], hint))
+            continue
+        u, index, moving, peak, _ = prepared[i]
+        out.append(ctx.describe(u, hint, index=index, pre=(moving, peak, svd.get(i))))
+    return tuple(out)
+
+
+class _AtJoints:
+    """A mode's movement at some joints only (the others do not move): ``u[j]``, ``u[joints]``.
+
+    Reads only the joints given (those a sparse mode moves); any other joint is
+    an error, not a zero, so that a description cannot silently read one.
+    """
+
+    __slots__ = ("index", "values")
+
+    def __init__(self, index: np.ndarray, values: np.ndarray):
+        self.index, self.values = index, values
+
+    def __getitem__(self, j):
+        pos = np.searchsorted(self.index, j)
+        if not np.all(self.index[np.minimum(pos, len(self.index) - 1)] == j):
+            raise IndexError("joint not moved by this mode")
+        return self.values[pos]
+
+
+def _at_joints(index: np.ndarray, values: np.ndarray):
+    """``{u, index}`` for :meth:`_Context.describe` of a mode known at ``index`` only."""
+    return {"u": _AtJoints(index, values), "index": index}
 
 
 class _Context:
@@ -296,10 +362,13 @@ class _Context:
         order = np.argsort(inc_j, kind="stable")
         self.inc_m = inc_m[order]
         self.inc_ptr = np.searchsorted(inc_j[order], np.arange(n + 1))
+        self._rank = None
+        self._normals: dict = {}
         self.up = d - 1  # z up in space, y up in a plane frame
         self.frames = frame.tag("joint", "frame")
         self.frame_order = tuple(fr for fr in dict.fromkeys(self.frames) if fr) \
             if self.frames else ()
+        self.frame_rank = {fr: i for i, fr in enumerate(self.frame_order)}
         self.extrusion = self._extrusion_direction()
         self.size = frame.size() or 1.0
         self.held = set(frame.restraint_joint.tolist())
@@ -361,8 +430,53 @@ class _Context:
 
     def labels(self, joints) -> list[str]:
         """Labels of ``joints`` in natural order of their ids."""
-        ids = self.frame.joint_ids
-        return [self.label(j) for j in sorted(joints, key=lambda j: natural_key(ids[j]))]
+        return [self.label(j) for j in self.natural(joints)]
+
+    def natural(self, joints) -> np.ndarray:
+        """``joints`` in natural order of their ids (ties in the order given).
+
+        The same as ``sorted(joints, key=natural_key of the id)``, by one
+        ranking of all the frame's ids made on first use.
+        """
+        joints = np.asarray(joints, dtype=int).reshape(-1)
+        if len(joints) <= 1:
+            return joints
+        if self._rank is None:
+            ids = self.frame.joint_ids
+            order = sorted(range(len(ids)), key=lambda j: natural_key(ids[j]))
+            self._rank = np.empty(len(ids), dtype=int)
+            self._rank[order] = np.arange(len(ids))
+        return joints[np.argsort(self._rank[joints], kind="stable")]
+
+    def moving(self, values: np.ndarray, index: np.ndarray | None = None):
+        """The joints a mode moves (natural order) and the one it moves most.
+
+        ``values`` (s, d) are its movements at joints ``index`` (all joints when
+        None); a joint moves when ``|u_j| > Display.moving * max |u|``.
+        """
+        size = np.linalg.norm(values, axis=1)
+        top = size.max() if size.size else 0.0
+        moving = np.flatnonzero(size > DISPLAY.moving * top)
+        peak = int(moving[np.argmax(size[moving])]) if len(moving) else 0
+        if index is not None:
+            moving, peak = index[moving], int(index[peak]) if len(index) else 0
+        return self.natural(moving), peak
+
+    def prime_normals(self, joints) -> None:
+        """:meth:`joint_plane_normal` of many joints at once (one batched SVD per degree)."""
+        if self.d != 3:
+            return
+        by_degree: dict = {}
+        for j in dict.fromkeys(joints):
+            if j not in self._normals:
+                by_degree.setdefault(self.inc_ptr[j + 1] - self.inc_ptr[j], []).append(j)
+        for deg, js in by_degree.items():
+            if deg < 2:
+                self._normals.update({j: None for j in js})
+                continue
+            _, sv, vt = np.linalg.svd(np.stack([self.w[self.members_at(j)] for j in js]))
+            for t, j in enumerate(js):
+                self._normals[j] = self._plane_normal(sv[t], vt[t])
 
     def members_at(self, j):
         return self.inc_m[self.inc_ptr[j]:self.inc_ptr[j + 1]]
@@ -387,31 +501,44 @@ class _Context:
 
     def joint_plane_normal(self, j):
         """Normal of the plane of joint j's members (None unless they span exactly a plane)."""
+        if j in self._normals:
+            return self._normals[j]
         ms = self.members_at(j)
         if self.d != 3 or len(ms) < 2:
             return None
         _, s, vt = np.linalg.svd(self.w[ms])
+        return self._plane_normal(s, vt)
+
+    def _plane_normal(self, s, vt):
         eps = self.tol.direction_rank
         if s[1] > eps and (len(s) < 3 or s[2] < eps * s[0]):
             return vt[2]
         return None
 
-    def describe(self, u, hint) -> ModeInfo:
+    def describe(self, u, hint, index=None, pre=None) -> ModeInfo:
+        """The ModeInfo of one mode ``u`` (n, d); or, with ``index``, of a mode that
+        moves joints ``index`` only, ``u`` an :class:`_AtJoints` there.
+
+        ``pre = (moving, peak, (s, vt))``, where given, is what :meth:`moving` and the
+        SVD of ``u[moving]`` give (made in a batch by the caller).
+        """
         f = self.frame
-        size = np.linalg.norm(u, axis=1)
-        top = size.max() if size.size else 0.0
-        moving = np.flatnonzero(size > DISPLAY.moving * top)
-        peak = int(moving[np.argmax(size[moving])]) if len(moving) else 0
-        moving = np.array(sorted(moving, key=lambda j: natural_key(f.joint_ids[j])), int)
+        if pre is None:
+            moving, peak = self.moving(u if index is None else u.values, index)
+            svd = None
+        else:
+            moving, peak, svd = pre
         jids = tuple(f.joint_ids[j] for j in moving)
         mem = sorted({int(m) for j in moving for m in self.members_at(j)})
         mids = tuple(f.member_ids[m] for m in mem)
         frames = ()
         if self.frames:
             present = {self.frames[j] for j in moving if self.frames[j]}
-            frames = tuple(fr for fr in self.frame_order if fr in present)
-        U = u[moving]
-        _, s, vt = np.linalg.svd(U, full_matrices=False)
+            frames = tuple(sorted(present, key=self.frame_rank.__getitem__))
+        if svd is None:
+            _, s, vt = np.linalg.svd(u[moving], full_matrices=False)
+        else:
+            s, vt = svd
         direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
         parallel = s[0] ** 2 / max(np.sum(s ** 2), 1e-300)
 

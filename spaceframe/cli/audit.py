@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 import click
@@ -60,7 +59,14 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sup
         frame = supports_for(load(model, **reading), model, supports)
         result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
         if as_json:
-            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+            # written a piece at a time: thousands of mechanisms are never one document
+            pieces = []
+            for piece in result.json_chunks(indent=1):
+                pieces.append(piece)
+                if len(pieces) >= 4096:
+                    click.echo("".join(pieces), nl=False)
+                    pieces.clear()
+            click.echo("".join(pieces))
         else:
             many = sys.maxsize if show_all else 8
             click.echo(render_audit(result, max_modes=many,
