@@ -6,6 +6,7 @@ Run from the repository root::
     python benchmarks/bench_engine.py --prev /tmp/engine_prev  # and the previous engine
     python benchmarks/bench_engine.py --million              # add the 1,002,528-member grid
     python benchmarks/bench_engine.py --quick                # small sizes, a minute
+    python benchmarks/bench_engine.py --only "roof,roof 5k"  # some rows, no reference row
 
 ``--prev`` names a checkout of the previous engine, made for instance with::
 
@@ -167,6 +168,8 @@ def main(argv=None) -> int:
     ap.add_argument("--memory", type=float, default=6.0, help="GiB cap per child (default 6)")
     ap.add_argument("--timeout", type=float, default=900.0, help="seconds per child")
     ap.add_argument("--repeat", type=int, default=1, help="runs of the reference row")
+    ap.add_argument("--only", help="comma-separated row labels to run (the reference row "
+                                   "is 'grid 5k ref'); default all")
     args = ap.parse_args(argv)
     if args.child:  # runs the engine on PYTHONPATH: this checkout or --prev
         _child(args.child, not args.no_soft)
@@ -177,7 +180,10 @@ def main(argv=None) -> int:
     memory = int(args.memory * 1024 ** 3)
     tmp = Path(tempfile.mkdtemp(prefix="bench_engine_"))
     rows, bad = [], False
+    only = None if args.only is None else {x.strip() for x in args.only.split(",")}
     for label, frame, soft, expect in _frames(args.quick, args.million):
+        if only is not None and label not in only:
+            continue
         path = tmp / f"{label.replace(' ', '_')}.npz"
         save(frame, path)
         new = _run(REPO, path, soft, memory, args.timeout)
@@ -210,6 +216,8 @@ def main(argv=None) -> int:
               f"{new['load_s']:.2f} | {new['peak'] / 2 ** 20:,.0f} | {new['mechanisms']:,} | "
               f"{new['self_stress_states']:,} | {path} | {prev_s} | {prev_m} | {ratio} |"
               + ("" if ok else " **counts differ from the derived ones**"))
+    if only is not None and "grid 5k ref" not in only:
+        return 1 if bad else 0
     grid, ref_s, ours_s, same, r = _reference(args.quick, args.repeat)
     bad |= not same
     print(f"| grid 5k ref | {grid.n_members:,} | audit(frame), same process | {ours_s:.3f} | | | "

@@ -114,6 +114,25 @@ class ModeSet:
         out[np.cumsum(new) - 1, cols % per] = vals
         return index, out.reshape((-1, *self.item[1:]))
 
+    def supports(self):
+        """:meth:`support` of every vector in order, made in one pass (sparse: O(nnz))."""
+        if not self.sparse:
+            yield from (self.support(i) for i in range(len(self)))
+            return
+        per = int(np.prod(self.item[1:]))
+        R, k = self._rows, len(self)
+        first = R.indices // per
+        row = np.repeat(np.arange(k), np.diff(R.indptr))
+        new = np.ones(len(first), dtype=bool)
+        new[1:] = (first[1:] != first[:-1]) | (row[1:] != row[:-1])
+        index = first[new]
+        values = np.zeros((len(index), per))
+        values[np.cumsum(new) - 1, R.indices % per] = R.data
+        ptr = np.concatenate([[0], np.cumsum(np.bincount(row[new], minlength=k))])
+        values = values.reshape((-1, *self.item[1:]))
+        for i in range(k):
+            yield index[ptr[i]:ptr[i + 1]], values[ptr[i]:ptr[i + 1]]
+
     def any(self, i: int) -> bool:
         """Vector ``i`` has a non-zero entry."""
         if not self.sparse:

@@ -14,7 +14,7 @@ from ..tolerances import DEFAULT, Tolerances
 from .blocks import project_sparse
 from .equilibrium import (compatibility_matrix, free_dofs, joint_displacement_map,
                           rigid_body_motions, to_joint_displacements)
-from .modes import KINDS, describe_modes, local_basis, order_rigid
+from .modes import KINDS, describe_modes, local_basis, mode_context, order_rigid
 from .nullspace import canonical_basis, canonical_split, decide_rank
 from .oneway import one_way_test
 from .prestress import (declared_prestress_test, prestress_test, prestress_test_sparse,
@@ -145,7 +145,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     modes = _sparse_modes(internal, rigid, dofs, frame) if held_sparse else \
         _dense_modes(internal, rigid, dofs, frame)
     hints = ("internal",) * ni + ("rigid-body",) * rigid.shape[1]
-    info = describe_modes(frame, modes, hints, tol=tol)
+    words = mode_context(frame, tol=tol)      # shared with the soft modes' descriptions
+    info = describe_modes(frame, modes, hints, tol=tol, context=words)
     # group the internal modes by kind (local kinds first), fewest joints first within a kind
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints),
                                              natural_key(info[i].joints[0]), i))
@@ -195,7 +196,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol, context=words)
     # a soft mode worth a designer's attention is a local weakness, not the frame's
     # global flexibility: keep those moving at most a quarter of the joints
     local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]

@@ -39,7 +39,7 @@ from ..naming import (count, direction_words, join_words, natural_key, numbered_
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
-__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "KINDS"]
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "mode_context", "KINDS"]
 
 #: A mode moving at most this many joints is "local".
 LOCAL_JOINTS = 3
@@ -258,7 +258,7 @@ def _joint_count(v, joint_of):
 
 
 def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[str, ...], *,
-                   tol: Tolerances = DEFAULT):
+                   tol: Tolerances = DEFAULT, context: "_Context | None" = None):
     """Classify and describe each mode.
 
     Parameters
@@ -273,16 +273,26 @@ def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[st
         ``tol.direction_rank``, ``tol.pure_translation`` and ``tol.on_axis``
         (see :class:`~spaceframe.tolerances.Tolerances`).
 
+    context : optional, keyword-only
+        What the descriptions need of the frame (:func:`mode_context`), when the
+        caller describes several sets of modes of one frame; made here otherwise.
+
     Returns
     -------
     tuple of ModeInfo
     """
-    ctx = _Context(frame, tol)
+    ctx = _Context(frame, tol) if context is None else context
     if isinstance(displacements, ModeSet) and displacements.sparse:
         return _describe_sparse(ctx, displacements, kinds_hint)
     if isinstance(displacements, ModeSet):
         displacements = displacements.dense()
     return tuple(ctx.describe(u, hint) for u, hint in zip(displacements, kinds_hint))
+
+
+def mode_context(frame: Frame, *, tol: Tolerances = DEFAULT) -> "_Context":
+    """What :func:`describe_modes` needs of ``frame`` (lines of joints, member planes, the
+    natural order of ids), made once for several calls.  Cost O(n + m)."""
+    return _Context(frame, tol)
 
 
 def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
@@ -295,10 +305,9 @@ def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
     one-joint modes cost little more than their sentences.
     """
     prepared, groups = {}, {}
-    for i, hint in enumerate(kinds_hint):
+    for i, (hint, (index, values)) in enumerate(zip(kinds_hint, modes.supports())):
         if hint == "rigid-body":
             continue
-        index, values = modes.support(i)
         u = _AtJoints(index, values)
         moving, peak = ctx.moving(values, index)
         U = u[moving]
@@ -316,8 +325,14 @@ def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
         if i not in prepared:
             out.append(ctx.describe(modes[i], hint))
             continue
-        u, index, moving, peak, _ = prepared[i]
-        out.append(ctx.describe(u, hint, index=index, pre=(moving, peak, svd.get(i))))
+        u, index, moving, peak, U = prepared[i]
+        info = None
+        if hint == "internal" and len(moving) == 1 and i in svd:
+            vt = svd[i][1]
+            direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
+            info = ctx.describe_one(int(moving[0]), U[0], direction)
+        out.append(info if info is not None else
+                   ctx.describe(u, hint, index=index, pre=(moving, peak, svd.get(i))))
     return tuple(out)
 
 
@@ -631,33 +646,54 @@ class _Context:
         return self.label(j) if dist[j] <= self.tol.on_axis * self.size else None
 
     # -- internal ----------------------------------------------------------
-    def _internal(self, u, moving, direction, parallel, frames, peak):
-        """Kind, sentence and data (``lines``, ``pivots``) of one internal mode."""
-        n_mov = len(moving)
-        first = self.label(moving[0]) if n_mov else ""
-        names = join_words(self.labels(moving), most=4)
-        # a joint with no members at all
-        if n_mov == 1 and len(self.members_at(moving[0])) == 0:
-            if moving[0] in self.held:
+    def _one_joint(self, j, uj, direction):
+        """Kind, sentence and data of an internal mode that moves joint ``j`` alone by ``uj``,
+        where it is one of the one-joint kinds (no members, out of their plane, on a straight
+        line of them); None otherwise."""
+        first = self.label(j)
+        ms = self.members_at(j)
+        if len(ms) == 0:                                   # a joint with no members at all
+            if j in self.held:
                 return "local", (f"Joint {first} has no members and its support leaves it free "
                                  f"{direction_words(direction)}."), {}
             return "local", (f"Joint {first} has no members and no support: it is free "
                              f"{direction_words(direction)}."), {}
+        if self._out_of_plane(j, uj):                      # out of the plane of its members
+            return "out-of-plane", (f"Joint {first} is free out of the plane of its "
+                                    f"members ({direction_words(direction)}): no member or "
+                                    f"support holds it that way."), {}
+        if np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
+            return "local", (f"Joint {first} lies on a straight line of members and is "
+                             f"free sideways to them ({direction_words(direction)})."), {}
+        return None
+
+    def describe_one(self, j: int, uj: np.ndarray, direction: np.ndarray) -> ModeInfo | None:
+        """:meth:`describe` of an internal mode moving joint ``j`` alone by ``uj`` (``direction``
+        its unit direction, sign as there), for the one-joint kinds; None for any other."""
+        words = self._one_joint(j, uj, direction)
+        if words is None:
+            return None
+        kind, text, extra = words
+        f = self.frame
+        mids = tuple(f.member_ids[m] for m in np.unique(self.members_at(j)))
+        frames = (self.frames[j],) if self.frames and self.frames[j] else ()
+        text += self._plane_note(uj[None], np.zeros(1, dtype=int))
+        return ModeInfo(kind=kind, joints=(f.joint_ids[j],), members=mids, direction=direction,
+                        frames=frames, description=text, **extra)
+
+    def _internal(self, u, moving, direction, parallel, frames, peak):
+        """Kind, sentence and data (``lines``, ``pivots``) of one internal mode."""
+        n_mov = len(moving)
+        names = join_words(self.labels(moving), most=4)
+        if n_mov == 1:
+            words = self._one_joint(moving[0], u[moving[0]], direction)
+            if words is not None:
+                return words
         # out of the plane of the members at each moving joint
-        if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
-            if n_mov == 1:
-                return "out-of-plane", (f"Joint {first} is free out of the plane of its "
-                                        f"members ({direction_words(direction)}): no member or "
-                                        f"support holds it that way."), {}
+        elif all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first that is not
             return "out-of-plane", (f"Joints {names} can move out of the plane of their members "
                                     f"({direction_words(direction)}), with nothing to stop "
                                     f"them."), {}
-        # collinear members: free sideways
-        if n_mov == 1:
-            ms = self.members_at(moving[0])
-            if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
-                return "local", (f"Joint {first} lies on a straight line of members and is "
-                                 f"free sideways to them ({direction_words(direction)})."), {}
         along_building = self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 \
             and abs(direction @ self.extrusion) >= 0.9
         if along_building:
