@@ -310,7 +310,7 @@ def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
             continue
         u = _AtJoints(index, values)
         moving, peak = ctx.moving(values, index)
-        U = u[moving]
+        U = values if len(moving) == len(index) == 1 else u[moving]
         prepared[i] = (u, index, moving, peak, U)
         groups.setdefault(U.shape, []).append(i)
     svd = {}
@@ -469,6 +469,8 @@ class _Context:
         ``values`` (s, d) are its movements at joints ``index`` (all joints when
         None); a joint moves when ``|u_j| > Display.moving * max |u|``.
         """
+        if index is not None and len(index) == 1:     # one joint: it moves, unless by nothing
+            return (index if np.any(values) else index[:0]), int(index[0])
         size = np.linalg.norm(values, axis=1)
         top = size.max() if size.size else 0.0
         moving = np.flatnonzero(size > DISPLAY.moving * top)
