@@ -61,10 +61,18 @@ class Limits:
         The audit holds its mechanisms and their stiffening states dense
         (``(k, n, d)`` and ``(k, m)`` arrays) when ``mechanisms * joints *
         dimension <= dense_modes``, and as sparse rows otherwise
-        (:class:`spaceframe.modeset.ModeSet`), with the product forces
-        projected block by block (:mod:`spaceframe.analysis.blocks`).  The two
+        (:class:`spaceframe.modeset.ModeSet`).  The two
         give the same modes, orders and states to rounding.  Default
         ``20_000_000`` (160 MB of modes).
+    block_prestress : int
+        The product forces of the internal mechanisms are projected onto the
+        states of self-stress block by block (:mod:`spaceframe.analysis.blocks`,
+        a small SVD per block of ``C``) and their stiffening states held sparse
+        when ``internal_mechanisms > block_prestress``; up to it, in the solves
+        of the whole frame that also serve the key members.  The two give the
+        same orders and states to the solves' rounding (about ``1e-9``).
+        Default ``64`` (four block solves; above ``common_prestress``, so the
+        search for one state for all is made the same way either side).
     """
 
     dense_engine: int = 100_000
@@ -74,6 +82,7 @@ class Limits:
     common_prestress: int = 12
     split_basis: int = 1_000_000
     dense_modes: int = 20_000_000
+    block_prestress: int = 64
 
 
 @dataclass(frozen=True)

@@ -153,10 +153,11 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     order += list(range(ni, k))
     modes, info = modes.take(order), tuple(info[i] for i in order)
     inner = modes.take(np.arange(ni))
-    if held_sparse:
+    if ni > tol.limits.block_prestress:
         # product forces sparse, projected block by block (a one-joint mode's reach only
-        # its joint's members, and the block they lie in)
-        force = product_forces_sparse(frame, inner)
+        # its joint's members, and the block they lie in), not one solve each
+        force = product_forces_sparse(frame, inner if inner.sparse else
+                                      ModeSet(inner.matrix(), inner.item))
         pre = prestress_test_sparse(force, project_sparse(C, force, decision.project,
                                                           decision.threshold, tol=tol), tol=tol)
         both = decision.project(probes(frame.n_members))
