@@ -379,6 +379,7 @@ class _Context:
         self.inc_ptr = np.searchsorted(inc_j[order], np.arange(n + 1))
         self._rank = None
         self._normals: dict = {}
+        self._words: dict = {}
         self.up = d - 1  # z up in space, y up in a plane frame
         self.frames = frame.tag("joint", "frame")
         self.frame_order = tuple(fr for fr in dict.fromkeys(self.frames) if fr) \
@@ -526,6 +527,14 @@ class _Context:
         _, s, vt = np.linalg.svd(self.w[ms])
         return self._plane_normal(s, vt)
 
+    def words(self, direction: np.ndarray) -> str:
+        """:func:`~spaceframe.naming.direction_words` of ``direction``, remembered: the
+        thousands of one-joint modes of a roof share a few directions."""
+        key = np.asarray(direction, dtype=float).tobytes()
+        if key not in self._words:
+            self._words[key] = direction_words(direction)
+        return self._words[key]
+
     def _plane_normal(self, s, vt):
         eps = self.tol.direction_rank
         if s[1] > eps and (len(s) < 3 or s[2] < eps * s[0]):
@@ -657,16 +666,16 @@ class _Context:
         if len(ms) == 0:                                   # a joint with no members at all
             if j in self.held:
                 return "local", (f"Joint {first} has no members and its support leaves it free "
-                                 f"{direction_words(direction)}."), {}
+                                 f"{self.words(direction)}."), {}
             return "local", (f"Joint {first} has no members and no support: it is free "
-                             f"{direction_words(direction)}."), {}
+                             f"{self.words(direction)}."), {}
         if self._out_of_plane(j, uj):                      # out of the plane of its members
             return "out-of-plane", (f"Joint {first} is free out of the plane of its "
-                                    f"members ({direction_words(direction)}): no member or "
+                                    f"members ({self.words(direction)}): no member or "
                                     f"support holds it that way."), {}
         if np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
             return "local", (f"Joint {first} lies on a straight line of members and is "
-                             f"free sideways to them ({direction_words(direction)})."), {}
+                             f"free sideways to them ({self.words(direction)})."), {}
         return None
 
     def describe_one(self, j: int, uj: np.ndarray, direction: np.ndarray) -> ModeInfo | None:
@@ -677,7 +686,7 @@ class _Context:
             return None
         kind, text, extra = words
         f = self.frame
-        mids = tuple(f.member_ids[m] for m in np.unique(self.members_at(j)))
+        mids = tuple(f.member_ids[m] for m in sorted(set(self.members_at(j).tolist())))
         frames = (self.frames[j],) if self.frames and self.frames[j] else ()
         text += self._plane_note(uj[None], np.zeros(1, dtype=int))
         return ModeInfo(kind=kind, joints=(f.joint_ids[j],), members=mids, direction=direction,
