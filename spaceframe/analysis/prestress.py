@@ -247,8 +247,8 @@ def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
         ``tol.stiffening`` as in :func:`prestress_test`.  The search for one
         state for all modes is not made here (``prestress_stable`` is False
         when some mode is stiffened by none, else None): it is for at most
-        ``tol.limits.common_prestress`` modes, and modes are held sparse only
-        when there are many.
+        ``tol.limits.common_prestress`` modes, and the audit takes this path
+        only for more than ``tol.limits.block_prestress``, which is larger.
 
     Returns
     -------
