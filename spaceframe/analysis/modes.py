@@ -355,11 +355,6 @@ class _AtJoints:
         return self.values[pos]
 
 
-def _at_joints(index: np.ndarray, values: np.ndarray):
-    """``{u, index}`` for :meth:`_Context.describe` of a mode known at ``index`` only."""
-    return {"u": _AtJoints(index, values), "index": index}
-
-
 class _Context:
     """What the descriptions need of the frame, computed once."""
 
@@ -380,6 +375,7 @@ class _Context:
         self._rank = None
         self._normals: dict = {}
         self._words: dict = {}
+        self._frame_size = None
         self.up = d - 1  # z up in space, y up in a plane frame
         self.frames = frame.tag("joint", "frame")
         self.frame_order = tuple(fr for fr in dict.fromkeys(self.frames) if fr) \
@@ -410,8 +406,8 @@ class _Context:
         X = self.frame.coords
         across = X - np.outer(X @ e, e)
         grain = self.tol.on_axis * self.size       # one place: the same within on_axis
-        keys = [tuple(np.round(a / grain).astype(int)) if self.frames[j] else None
-                for j, a in enumerate(across)]
+        cells = np.round(across / grain).astype(int).tolist()
+        keys = [tuple(c) if self.frames[j] else None for j, c in enumerate(cells)]
         ids = self.frame.joint_ids
         members: dict = {}
         for j, k in enumerate(keys):
@@ -751,10 +747,11 @@ class _Context:
         per = {fr: 0 for fr in frames}
         for j in moving:
             per[labels[j]] += 1
-        total = {fr: 0 for fr in frames}
-        for fr in labels:
-            if fr in total:
-                total[fr] += 1
+        if self._frame_size is None:               # joints of each frame, counted once
+            self._frame_size = {}
+            for fr in labels:
+                self._frame_size[fr] = self._frame_size.get(fr, 0) + 1
+        total = self._frame_size
         return all(per[fr] >= 0.5 * total[fr] and per[fr] >= 2 for fr in frames)
 
     def _tie_line_words(self, lines, moving, frames, along) -> str:
