@@ -195,3 +195,21 @@ def test_cli_json_is_the_document_written_whole(tmp_path):
     whole = spaceframe.audit(spaceframe.load(path)).to_dict()
     assert out.output == json.dumps(whole, indent=1, allow_nan=False) + "\n"
     assert json.loads(out.output)["mechanisms"] == 3 * 6 + 4 + 1   # (p - 1) F + p + 1, p = 4, F = 6
+
+
+def test_views_and_bracing_read_sparse_modes_as_dense():
+    """The scene, the report's geometry and the bracing proposal of a result held sparse
+    are those of the same result held dense (the modes agree exactly, above)."""
+    from spaceframe.analysis.bracing.selection import recommend_bracing
+    from spaceframe.views.report import report_document
+    from spaceframe.views.scene import scene_of
+
+    f, a, b = _roof_pair(4, 3)
+    sa, sb = scene_of(a), scene_of(b)
+    assert len(sa.modes) == len(sb.modes) == a.mechanisms == 2 * 4 + 3 + 1   # (p-1)F+p+1, F=4, p=3
+    assert all(np.array_equal(x, y) for x, y in zip(sa.modes, sb.modes))
+    ga, gb = report_document(a)["geometry"], report_document(b)["geometry"]
+    assert ga["modes"] == gb["modes"] and ga["moving"] == gb["moving"]
+    ba, bb = recommend_bracing(f), recommend_bracing(f, tol=SPARSE)
+    assert ba.chosen == bb.chosen and ba.remaining == bb.remaining and ba.lateral == bb.lateral
+    assert bb.after.mechanisms == 0
