@@ -6,9 +6,8 @@ import sys
 
 import click
 
-from .common import (debug_option, json_option, model_argument, reading_options,
-                     run_guarded,
-                     supports_option)
+from .common import (chords_option, debug_option, json_option, model_argument,
+                     reading_options, run_guarded, supports_option)
 
 __all__ = ["audit_command"]
 
@@ -28,17 +27,22 @@ EXIT_MECHANISM = 1
 @click.option("--redundancy/--no-redundancy", default=None,
               help="Compute every member's redundancy share (default: where it is cheap, up "
                    "to 3,000 free coordinates).")
+@click.option("--continuous-chords", "continuous", is_flag=True,
+              help="Also say whether the frame is held once its chords (straight chains of "
+                   "members) are read as continuous through their joints, with the longest "
+                   "unrestrained lengths (see `spaceframe restraints`).")
+@chords_option
 @supports_option
 @reading_options
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, redundancy, supports, reading,
-                  debug):
+def audit_command(model, as_json, self_stress, method, show_all, redundancy, continuous, chords,
+                  supports, reading, debug):
     """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
     .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, .ifc, a ...joints.csv/...members.csv
     pair).
 
     Exit status: 0 when the frame is held (no mechanism), 1 when mechanisms are
-    found, 2 for bad input or usage.
+    found (also when continuous chords would hold them), 2 for bad input or usage.
     """
     def job():
         from .. import audit, load
@@ -57,11 +61,22 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sup
                                       f"not {self_stress!r}") from None
         from ..selection import supports_for
         frame = supports_for(load(model, **reading), model, supports)
+        if chords is not None and not continuous:
+            raise SpaceframeError("--chords chooses the chords of --continuous-chords; give "
+                                  "both, or leave --chords out")
         result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
+        held = None
+        if continuous:
+            from ..analysis.restraints import restraints
+            held = restraints(frame, chords=chords, audit=result, compression=False)
         if as_json:
-            # written a piece at a time: thousands of mechanisms are never one document
+            from ..jsonstream import chunks
+            doc = result.document()          # its mechanisms made one at a time as written
+            if held is not None:
+                from ..views.restraints_text import continuous_verdict
+                doc["continuous_chords"] = dict(held.summary(), verdict=continuous_verdict(held))
             pieces = []
-            for piece in result.json_chunks(indent=1):
+            for piece in chunks(doc, indent=1, allow_nan=False):
                 pieces.append(piece)
                 if len(pieces) >= 4096:
                     click.echo("".join(pieces), nl=False)
@@ -69,8 +84,12 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sup
             click.echo("".join(pieces))
         else:
             many = sys.maxsize if show_all else 8
-            click.echo(render_audit(result, max_modes=many,
-                                    max_entries=sys.maxsize if show_all else 6), nl=False)
+            text = render_audit(result, max_modes=many,
+                                max_entries=sys.maxsize if show_all else 6)
+            if held is not None:
+                from ..views.restraints_text import render_continuous
+                text += render_continuous(held, most=sys.maxsize if show_all else 6)
+            click.echo(text, nl=False)
         return result
 
     result = run_guarded(job, debug=debug)
