@@ -144,7 +144,7 @@ class ModeSet:
         """The vectors as the rows of a sparse ``(k, prod(item))`` matrix."""
         if self.sparse:
             return self._rows
-        return sp.csr_matrix(self._dense.reshape(len(self), -1))
+        return sp.csr_matrix(self._dense.reshape(len(self), int(np.prod(self.item))))
 
     def dense(self) -> np.ndarray:
         """The vectors as one dense ``(k, *item)`` array.
