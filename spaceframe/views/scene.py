@@ -16,8 +16,8 @@ from ..model import Frame
 from ..results import AuditResult
 from ..tolerances import DEFAULT, DISPLAY
 
-__all__ = ["Scene", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints", "carrying_members",
-           "AMPLITUDE"]
+__all__ = ["Scene", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints",
+           "carrying_members", "embed", "AMPLITUDE", "GLYPH"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
 AMPLITUDE = 0.12
@@ -127,11 +127,11 @@ def scene_of(result: AuditResult) -> Scene:
 def frame_scene(f: Frame, modes=None, *, one_way: int | None = None) -> Scene:
     """The :class:`Scene` of a frame with the joint movements ``modes`` ``(p, n, d)``
     (none: the frame at rest); ``one_way`` is the index of a one-way motion among them."""
-    coords = _embed(np.asarray(f.coords, float), f.dimension)
+    coords = embed(np.asarray(f.coords, float), f.dimension)
     modes = np.zeros((0, f.n_joints, f.dimension)) if modes is None else np.asarray(modes, float)
-    modes = np.stack([_embed(u, f.dimension) for u in modes]) if len(modes) else \
+    modes = np.stack([embed(u, f.dimension) for u in modes]) if len(modes) else \
         np.zeros((0, len(coords), 3))
-    dirs = _embed(np.asarray(f.restraint_dir, float), f.dimension)
+    dirs = embed(np.asarray(f.restraint_dir, float), f.dimension)
     extent = float(np.ptp(coords, axis=0).max()) if len(coords) > 1 else 0.0
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]
     ends = np.asarray(f.ends, np.int64)
@@ -257,8 +257,18 @@ def view_direction(coords: np.ndarray, motion: np.ndarray | None = None, *,
     return cand[int(np.argmax(score))]
 
 
-def _embed(a: np.ndarray, dimension: int) -> np.ndarray:
-    """``(k, 2)`` plane rows ``[x, y]`` to ``[x, 0, y]``; 3D rows unchanged."""
+def embed(a: np.ndarray, dimension: int) -> np.ndarray:
+    """Rows of a frame's space in the pictures' 3D, ``(k, 3)`` float: a plane frame's
+    ``[x, y]`` becomes ``[x, 0, y]`` (its y is up, as z is in space); 3D rows are copied.
+
+    Used for every array drawn: coordinates, modes, restraint directions, loads and
+    reactions (pictures and the report alike).
+
+    Examples
+    --------
+    >>> embed([[1.0, 2.0]], 2).tolist()
+    [[1.0, 0.0, 2.0]]
+    """
     a = np.asarray(a, float).reshape(-1, dimension)
     if dimension == 3:
         return a.copy()
