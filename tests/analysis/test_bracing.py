@@ -397,7 +397,8 @@ def _expected_braced(frame, r):
                  restraint_dir=np.vstack([frame.restraint_dir, r.candidates.direction[res]]),
                  dimension=3, name=frame.name, units=frame.units,
                  joint_tags=dict(frame.joint_tags), member_tags=tags,
-                 member_properties={"EA": np.r_[ea, np.full(len(mem), np.median(ea))]})
+                 member_properties={"EA": np.r_[ea, np.full(len(mem), np.median(ea))]},
+                 loads=frame.loads)   # loads name joints by id: bracing keeps them
 
 
 def test_braced_frame_keeps_ea_tags_and_supports(tmp_path):
