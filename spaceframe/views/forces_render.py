@@ -16,12 +16,9 @@ import numpy as np
 from ..errors import SpaceframeError
 from ..force_results import ForcesResult
 from .render import PALETTE, SIZE, Stage, force_colours, legend_entry
-from .scene import embed, frame_scene, view_direction
+from .scene import ARROW, embed, frame_scene, view_direction
 
 __all__ = ["forces_picture"]
-
-#: Longest arrow, as a fraction of the frame's largest extent.
-ARROW = 0.16
 
 
 def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:

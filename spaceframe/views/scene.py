@@ -17,13 +17,17 @@ from ..results import AuditResult
 from ..tolerances import DEFAULT, DISPLAY
 
 __all__ = ["Scene", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints",
-           "carrying_members", "embed", "AMPLITUDE", "GLYPH"]
+           "carrying_members", "embed", "AMPLITUDE", "GLYPH", "ARROW"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
 AMPLITUDE = 0.12
 
 #: Length of a support glyph's stalk, as a fraction of the frame's largest extent.
 GLYPH = 0.06
+
+#: Longest load or reaction arrow, as a fraction of the frame's largest extent (the
+#: forces still and the report's view).
+ARROW = 0.16
 
 
 @dataclass(frozen=True)
