@@ -111,6 +111,13 @@ class Display:
         along the building when its unit direction ``u`` and the extrusion
         direction ``e`` have ``|u . e| >= along_axis``.  Default ``0.98``
         (within about 11 degrees of the axis).
+    coordinate_figures : int
+        A joint's coordinates in a label (``J5 (2.5, 0, 1.5)``) are rounded to
+        ``10**-k`` with ``k = clip(coordinate_figures - 1 - floor(log10 size), 0, 6)``,
+        ``size`` the frame's bounding-box diagonal: that many significant figures of
+        the frame's size, one fixed point for every joint, trailing zeros dropped
+        (a 12 m frame to 0.01 m, a 30,000 mm one to 1 mm): two coordinates with
+        ``|x - y| < 0.5 * 10**-k`` may print the same.  Default ``4``.
     """
 
     moving: float = 0.05
@@ -120,6 +127,7 @@ class Display:
     zero_coordinate: float = 1e-9
     axis_plane: float = 0.999
     along_axis: float = 0.98
+    coordinate_figures: int = 4
 
 
 @dataclass(frozen=True)
