@@ -121,7 +121,7 @@ def animate_command(model, out, mode, every, one_way, state, case, n, fps, size,
             with progress(len(modes) * poses, f"rendering {path.name}", quiet=quiet) as step:
                 written = write_sheets(result, plan, on_frame=step)
             if not quiet:
-                click.echo(_sheets_written(plan, written), err=True)
+                click.echo(_sheets_written(plan, written, count), err=True)
             return
         rows = []
         with progress(len(modes) * poses, f"rendering {path.name}", quiet=quiet) as step:
@@ -132,22 +132,24 @@ def animate_command(model, out, mode, every, one_way, state, case, n, fps, size,
     run_guarded(job, debug=debug)
 
 
-def _sheets_written(plan, written) -> str:
+def _sheets_written(plan, written, mechanisms: int) -> str:
     """What ``animate`` wrote to PNG: the sheet, or each sheet with the modes on it."""
     from ..naming import count
     from ..views.render import SHEET_HEIGHT
 
     def which(group):
-        if group == (None,):
-            return "the frame at rest"
+        if group[0] >= mechanisms:           # after the mechanisms: the one-way motion
+            return "the one-way motion"
         a, b = group[0] + 1, group[-1] + 1
         return f"mode {a}" if a == b else f"modes {a}-{b}"
 
     w, h = plan.pose_size
-    each = f"{count(plan.poses, 'pose')} of {w}x{h} px per mode"
+    if plan.groups == ((None,),):
+        return f"spaceframe: wrote {written[0]} (the frame at rest, {w}x{h} px)."
+    each = f"{count(plan.poses, 'pose')} of {w}x{h} px"
     if len(written) == 1:
-        return f"spaceframe: wrote {written[0]} ({which(plan.groups[0])}; {each})."
-    lines = [f"spaceframe: wrote {len(written)} sheets ({each}; at most "
+        return f"spaceframe: wrote {written[0]} ({which(plan.groups[0])}: {each} each)."
+    lines = [f"spaceframe: wrote {len(written)} sheets ({each} a mode; at most "
              f"{SHEET_HEIGHT:,} px high each, so the modes are split):"]
     lines += [f"  {p}  ({which(g)})" for p, g in zip(written, plan.groups)]
     return "\n".join(lines)

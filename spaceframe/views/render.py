@@ -450,7 +450,7 @@ class SheetPlan:
     pose_size : (int, int)
         Width and height of one pose in pixels.
     width : int
-        The sheets' width in pixels.
+        The sheets' width in pixels: a row of poses.
     """
 
     paths: tuple
@@ -461,8 +461,9 @@ class SheetPlan:
     width: int
 
 
-def sheet_grid(n: int, size=SIZE, width: int = SHEET_WIDTH) -> tuple[tuple[int, int], tuple[int, int]]:
-    """Rows and columns of ``n`` poses on a sheet, and the size of one pose.
+def sheet_grid(n: int, size=SIZE, width: int = SHEET_WIDTH) -> tuple[tuple, tuple]:
+    """Rows and columns of ``n`` poses on a sheet, and the size of one pose:
+    ``((rows, cols), (w, h))``.
 
     The poses of a mode fill ``ceil(n / SHEET_COLUMNS)`` rows, as evenly as they
     go (6 poses: 2 rows of 3); a pose is ``size`` scaled down to fit ``width``
@@ -512,7 +513,8 @@ def plan_sheets(result: AuditResult, modes, path, *, n: int, size=SIZE,
     size : (int, int)
         The largest size of one pose (see :func:`sheet_grid`).
     width, height : int
-        The sheets' width and the most height in pixels.
+        The sheets' most width and height in pixels; a sheet is as wide as its
+        row of poses (a held frame's one pose: its own width).
 
     Notes
     -----
@@ -520,6 +522,7 @@ def plan_sheets(result: AuditResult, modes, path, *, n: int, size=SIZE,
     """
     path = Path(path)
     grid, pose = sheet_grid(n, size, width)
+    width = grid[1] * pose[0]       # as wide as a row of poses: no empty margin at the right
     modes = list(modes)
     foot = _legend_height(_sheet_legend(modes), width)
     heights = [_block_height(_caption_lines(_mode_words(result, k)[1], width, 10 ** 6), grid,
@@ -606,9 +609,7 @@ def contact_sheet(blocks: list[Block], legend, width: int = SHEET_WIDTH, *,
         if i:
             d.line([(0, y + _GAP // 2), (w, y + _GAP // 2)], fill="#bbbbbb", width=2)
             y += _GAP
-        d.text((10, y + 6), _fit(b.title, big, w - 20), font=big, fill=ink)
-        for k, line in enumerate(b.lines):
-            d.text((10, y + _TITLE + 16 * k), line, font=small, fill=ink)
+        _draw_caption(d, b.title, b.lines, y, w, big, small)
         top = y + _TITLE + 16 * max(len(b.lines), 1) + 6
         for k, view in enumerate(b.views):
             img.paste(Image.fromarray(view), ((k % cols) * pw, top + (k // cols) * ph))
@@ -618,10 +619,7 @@ def contact_sheet(blocks: list[Block], legend, width: int = SHEET_WIDTH, *,
             _triad(d, b.axes, (34, top + ph - 34), small, dimension)
         y += bh
     d.line([(0, y), (w, y)], fill="#dddddd")
-    for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
-        ly = y + 6 + 17 * row
-        d.rectangle([x, ly + 1, x + 13, ly + 13], fill=colour, outline="#606060")
-        d.text((x + 19, ly), words, font=small, fill=ink)
+    _draw_legend(d, legend, y + 6, w, small)
     d.text((10, total - 14), _CAUTION_SHORT, font=tiny, fill="#555555")
     return np.asarray(img)
 
@@ -655,9 +653,7 @@ def _compose(view: np.ndarray, size, title: str, caption: list[str],
     d = ImageDraw.Draw(img)
     ink = PALETTE["text"][0]
     big, small, tiny = (ImageFont.load_default(size=s) for s in (15, 12, 10))
-    d.text((10, 6), _fit(title, big, w - 20), font=big, fill=ink)
-    for k, line in enumerate(caption):
-        d.text((10, _TITLE + 16 * k), line, font=small, fill=ink)
+    _draw_caption(d, title, caption, 0, w, big, small)
     y0 = h - bottom + 6
     if scale is not None:
         bar_w = 240
@@ -672,16 +668,29 @@ def _compose(view: np.ndarray, size, title: str, caption: list[str],
         d.text((bx + bar_w + 8 + small.getlength(right) + 14, y0), "(0 in the middle: light grey)",
                font=small, fill="#555555")
         y0 += _SCALE_ROW
-    for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
-        y = y0 + 17 * row
-        d.rectangle([x, y + 1, x + 13, y + 13], fill=colour, outline="#606060")
-        d.text((x + 19, y), words, font=small, fill=ink)
+    _draw_legend(d, legend, y0, w, small)
     if axes is not None:
         _triad(d, axes, (34, top + (h - top - bottom) - 34), small, dimension)
     d.text((10, h - 14), _CAUTION_SHORT, font=tiny, fill="#555555")
     d.line([(0, top - 1), (w, top - 1)], fill="#dddddd")
     d.line([(0, h - bottom), (w, h - bottom)], fill="#dddddd")
     return np.asarray(img)
+
+
+def _draw_caption(d, title: str, lines: list, y: int, w: int, big, small):
+    """The title line and the caption's lines from ``y`` down, in a band ``w`` wide."""
+    ink = PALETTE["text"][0]
+    d.text((10, y + 6), _fit(title, big, w - 20), font=big, fill=ink)
+    for k, line in enumerate(lines):
+        d.text((10, y + _TITLE + 16 * k), line, font=small, fill=ink)
+
+
+def _draw_legend(d, legend, y: int, w: int, font):
+    """The legend's entries (a swatch and its words) in rows of width ``w`` from ``y``."""
+    for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
+        ly = y + 17 * row
+        d.rectangle([x, ly + 1, x + 13, ly + 13], fill=colour, outline="#606060")
+        d.text((x + 19, ly), words, font=font, fill=PALETTE["text"][0])
 
 
 #: Height in pixels of the colour scale's row in the legend band.

@@ -249,8 +249,10 @@ def _cases_html(loads: dict) -> str:
             rows.append(f'<tr class="not-carried">{head}<td>no</td>'
                         f'<td colspan="3">{e(why)}</td></tr>')
             continue
-        side = lambda v, n, way: (f"{v[0]} {v[1]:+.4g}, of {count(n, 'member')} in {way}"  # noqa: E731
-                                  if v else f"none in {way}")
+        def side(v, n, way):
+            return f"{v[0]} {v[1]:+.4g}, of {count(n, 'member')} in {way}" if v else \
+                f"none in {way}"
+
         rows.append(f"<tr>{head}<td>yes</td>"
                     f'<td class="ids">{e(side(c["tension"], c["in_tension"], "tension"))}</td>'
                     f'<td class="ids">'

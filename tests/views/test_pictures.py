@@ -95,9 +95,9 @@ def test_hall_sheets_split_within_the_height_and_name_their_modes():
 
 
 def test_sheet_words_each_mode_once(tmp_path):
-    """Two modes of the footbridge on one sheet of two poses: the sheet is as high as two
-    blocks (title, caption lines, one row of poses) plus one gap and one legend band, not
-    two pictures each with its own caption and legend; a forced low height puts each mode
+    """Two modes of the footbridge on one sheet of two poses: the sheet is as wide as a row
+    of poses and as high as two blocks (title, caption lines, one row of poses) plus one
+    gap and one legend band, not two pictures each with its own caption and legend; a forced low height puts each mode
     on its sheet, named by the mode.  Heights read back with Pillow (``Image.size``)."""
     from PIL import Image
 
@@ -109,9 +109,10 @@ def test_sheet_words_each_mode_once(tmp_path):
     written = write_sheets(r, plan)
     assert written == [tmp_path / "b.png"]
     w, h = Image.open(written[0]).size
-    heads = [_TITLE + 16 * len(_caption_lines(_mode_words(r, k)[1], 1600, 10 ** 6)) + 6
+    # as wide as the row of two 320 px poses; the captions wrap to that width
+    heads = [_TITLE + 16 * len(_caption_lines(_mode_words(r, k)[1], 640, 10 ** 6)) + 6
              for k in (0, 1)]
-    assert (w, h) == (1600, sum(heads) + 2 * 240 + _GAP + _legend_height(_mode_legend(0), 1600))
+    assert (w, h) == (640, sum(heads) + 2 * 240 + _GAP + _legend_height(_mode_legend(0), 640))
     split = plan_sheets(r, [0, 1], tmp_path / "c.png", n=2, size=(320, 240), height=400)
     assert [p.name for p in split.paths] == ["c-mode-01.png", "c-mode-02.png"]
     for p in write_sheets(r, split):
