@@ -17,7 +17,7 @@ SUFFIXES = (".gif", ".mp4", ".png")
 @click.command("animate")
 @model_argument
 @click.option("-o", "--output", "out", required=True, metavar="OUT",
-              help="Picture to write: .gif (looping), .mp4, or .png (a sheet 1,600 px wide: "
+              help="Picture to write: .gif (looping), .mp4, or .png (a sheet at most 1,600 px wide: "
                    "each mode's caption once above its poses, the legend once at the foot; "
                    "modes that pass 4,800 px in height go on more sheets, OUT-modes-A-B.png).")
 @click.option("--mode", "mode", type=int, default=None, metavar="K",
