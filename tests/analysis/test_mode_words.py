@@ -162,6 +162,7 @@ def test_one_rule_for_joint_labels():
     assert not placed_joints(Frame.from_arrays(X, [[0, 1]], joint_ids=list("ABC")))
 
 
+@pytest.mark.filterwarnings("ignore:.*T-junctions", "ignore:.*drawn twice")
 def test_imported_joints_read_the_same_in_json_and_text(tmp_path):
     """A drawing's joints: the audit's own mode descriptions (the JSON) carry the same label
     as the text, ``J19 (0, -1500; layer GRID)`` for the demo canopy drawing's loose
