@@ -210,7 +210,10 @@ def view_direction(coords: np.ndarray, motion: np.ndarray | None = None, *,
     - ``tilt``: 1 at 20 degrees, 0.9 at 10 and 30, 0.6 at 45, 0.4 at 60,
       so that a roof is seen in elevation rather than as a plan grid.
 
-    Ties go to the first candidate, so the choice is deterministic.
+    Ties go to the first candidate, so the choice is deterministic, except that
+    of a view and its mirror in ``y = 0`` that score the same (to 1e-9: every
+    plane frame, which lies in that plane) the one from ``-y`` is taken, so
+    that x runs from left to right as on a drawn elevation (common practice).
 
     Parameters
     ----------
@@ -258,7 +261,12 @@ def view_direction(coords: np.ndarray, motion: np.ndarray | None = None, *,
     face = 0.25 + 0.75 * np.minimum(1.0, np.abs(cand @ normal) / 0.7) if normal is not None \
         else np.ones(len(cand))
     score = np.sqrt(seen * spread) * members ** 2 * face * tilt
-    return cand[int(np.argmax(score))]
+    best = int(np.argmax(score))
+    if cand[best, 1] > 0:       # its mirror in y = 0 as good (a plane frame): look from -y
+        mirror = int(np.argmin(np.linalg.norm(cand - cand[best] * [1, -1, 1], axis=1)))
+        if score[mirror] >= score[best] * (1 - 1e-9):
+            best = mirror
+    return cand[best]
 
 
 def embed(a: np.ndarray, dimension: int) -> np.ndarray:

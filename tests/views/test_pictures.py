@@ -129,3 +129,18 @@ def test_hall_is_seen_in_elevation_across_the_motion():
     for v in (s.view(i), s.view()):
         assert np.degrees(np.arcsin(v[2])) <= 30.0 + 1e-9
         assert 0.3 <= abs(v[1]) <= 0.9
+
+
+def test_plane_frames_are_seen_with_x_to_the_right():
+    """A plane frame scores the same from either side, so the camera stands on -y and the
+    model's x runs left to right, as on a drawn elevation (common practice): for the demo
+    Pratt truss at rest and the footbridge truss (a plane truss in space, y = 0) at rest
+    and in motion, the screen's right has a positive x."""
+    from spaceframe.views.render import screen_axes
+
+    for name in ("hall_truss.toml", "footbridge_truss.toml"):
+        r = spaceframe.audit(spaceframe.load(MODELS / name))
+        s = scene_of(r)
+        for i in [None, *range(min(2, len(s.modes)))]:
+            right, _ = screen_axes(s.view(i))
+            assert right[0] > 0.5, (name, i, right)
