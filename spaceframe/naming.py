@@ -16,7 +16,7 @@ import numpy as np
 from .tolerances import DISPLAY
 
 __all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "is_imported",
-           "placed_joints", "joint_label", "xyz", "direction_words"]
+           "placed_joints", "joint_label", "xyz", "measure", "direction_words"]
 
 _DIGITS = re.compile(r"(\d+)")
 
@@ -139,23 +139,38 @@ def joint_label(frame, j: int, size: float | None = None) -> str:
 
 
 def xyz(point, size: float = 1.0) -> str:
-    """Coordinates as ``2.5, 0, 1.5``: to ``Display.coordinate_figures`` significant
-    figures of ``size`` (one fixed point, trailing zeros dropped; values with
-    ``|x| <= Display.zero_coordinate * size`` written as 0).
+    """Coordinates as ``2.5, 0, 1.5``, each by :func:`measure`.
 
     Examples
     --------
     >>> xyz([2.5, 0.0, 1.5], 12.0), xyz([3000.0, -1e-12], 30000.0), xyz([0.12345], 1.0)
     ('2.5, 0, 1.5', '3000, 0', '0.123')
     """
-    size = float(size) or 1.0
-    k = int(np.clip(DISPLAY.coordinate_figures - 1 - np.floor(np.log10(abs(size))), 0, 6))
-    out = []
-    for c in point:
-        c = 0.0 if abs(c) <= DISPLAY.zero_coordinate * size else round(float(c), k)
-        text = f"{c:.{k}f}".rstrip("0").rstrip(".") if k else f"{c:.0f}"
-        out.append("0" if text in ("-0", "") else text)
-    return ", ".join(out)
+    return ", ".join(measure(c, size) for c in point)
+
+
+def measure(value: float, size: float = 1.0, *, up: bool = False) -> str:
+    """A coordinate or length of a frame of size ``size`` in figures: to
+    ``Display.coordinate_figures`` significant figures of ``size`` (one fixed point,
+    trailing zeros dropped, never an exponent; ``|x| <= Display.zero_coordinate * size``
+    written as 0).  With ``up`` the value is rounded up at that resolution, for a
+    threshold the value must pass (``--within 1921`` for a member 1920.9 long).
+
+    Examples
+    --------
+    >>> measure(1920.94, 10800.0), measure(1920.94, 10800.0, up=True), measure(2.4, 9.0)
+    ('1921', '1921', '2.4')
+    >>> measure(1920.04, 10800.0, up=True), measure(-0.001, 12.0)
+    ('1921', '0')
+    """
+    size = abs(float(size)) or 1.0
+    k = int(np.clip(DISPLAY.coordinate_figures - 1 - np.floor(np.log10(size)), 0, 6))
+    c = float(value)
+    if abs(c) <= DISPLAY.zero_coordinate * size:
+        c = 0.0
+    c = np.ceil(c * 10 ** k) / 10 ** k if up else round(c, k)
+    text = f"{c:.{k}f}".rstrip("0").rstrip(".") if k else f"{c:.0f}"
+    return "0" if text in ("-0", "") else text
 
 
 def direction_words(v, *, signed: bool = True) -> str:
