@@ -9,7 +9,9 @@ mode's one-line description as the caption.  A state of self-stress is a
 still: each member coloured by its force on a fixed scale from compression
 (blue, -1) through zero (light grey) to tension (orange, +1), with a legend
 in words.  Colours are from a colour-blind-safe set, and every colour is
-named in the picture's legend.
+named in the picture's legend.  A GIF or MP4 shows one picture at a time, each
+with its caption and legend; a PNG of poses is a sheet (:func:`write_sheets`)
+that words each mode once above its poses and gives the legend once.
 
 pyvista (VTK) renders; it is imported on first use.  With no X display the
 EGL path (Mesa's ``libEGL``) is chosen, which needs no window system.
