@@ -57,7 +57,7 @@ def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
               legend_entry("load", "arrow: load"),
               legend_entry("reaction", "arrow: reaction of a support")]
     cmap = force_colours()
-    stage = Stage(scene, size, title, caption, legend, cmap)
+    stage = Stage(scene, size, title, caption, legend, cmap, dimension=f.dimension)
     try:
         pv, p, e = stage.pv, stage.plotter, stage.e
         stage.forces(t / (top or 1.0), carrying, cmap)
