@@ -26,6 +26,7 @@ from ..errors import SpaceframeError
 from ..naming import count, join_words
 from ..results import AuditResult
 from ..tolerances import DISPLAY
+from .forces_text import fixed_decimals
 from .scene import (AMPLITUDE, ARROW, GLYPH, carrying_members, embed, frame_scene, moving_joints,
                     scene_of)
 from .text import verdict
@@ -195,12 +196,12 @@ def forces_document(forces) -> dict:
 
     cases = []
     for i, name in enumerate(forces.names):
-        loads = np.asarray(forces.loads[i], float)
+        applied = np.asarray(forces.loads[i], float)
         entry = {"name": name, "kind": forces.kinds[i], "carried": bool(forces.carried[i]),
                  "method": forces.methods[i], "scaled": None, "largest": 0.0,
                  "tension": None, "compression": None, "in_tension": 0, "in_compression": 0,
                  "reactions": [], "slack": list(forces.slack[i]),
-                 "arrows": {"loads": arrows(np.arange(f.n_joints), loads), "reactions": []},
+                 "arrows": {"loads": arrows(np.arange(f.n_joints), applied), "reactions": []},
                  "excited": [{"mode": e.mode, "description": e.description,
                               "fraction": round(e.fraction, DISPLAY.decimals)}
                              for e in forces.excited[i]]}
@@ -227,8 +228,6 @@ def _cases_html(loads: dict) -> str:
     """The load cases' section as plain HTML: a summary, one row per case (carried or not,
     the largest tension and compression, the reactions), the caution.  The script adds
     only the case selector of the 3D view."""
-    from .forces_text import fixed_decimals
-
     e = html.escape
     u = loads["force_units"]
     cases = loads["cases"]
@@ -249,16 +248,11 @@ def _cases_html(loads: dict) -> str:
             rows.append(f'<tr class="not-carried">{head}<td>no</td>'
                         f'<td colspan="3">{e(why)}</td></tr>')
             continue
-        def side(v, n, way):
-            return f"{v[0]} {v[1]:+.4g}, of {count(n, 'member')} in {way}" if v else \
-                f"none in {way}"
-
         rows.append(f"<tr>{head}<td>yes</td>"
-                    f'<td class="ids">{e(side(c["tension"], c["in_tension"], "tension"))}</td>'
-                    f'<td class="ids">'
-                    f'{e(side(c["compression"], c["in_compression"], "compression"))}</td>'
-                    f'<td class="ids">{e(_reactions_words(c["reactions"], fixed_decimals))}</td>'
-                    "</tr>")
+                    f'<td class="ids">{e(_largest(c["tension"], c["in_tension"], "tension"))}'
+                    f'</td><td class="ids">'
+                    f'{e(_largest(c["compression"], c["in_compression"], "compression"))}</td>'
+                    f'<td class="ids">{e(_reactions_words(c["reactions"]))}</td></tr>')
     return ('  <section id="cases-section">\n    <h2>Load cases and member forces</h2>\n'
             f'    <p id="cases-summary">{e(summary)}</p>\n'
             '    <table id="cases"><thead><tr><th>case</th><th>kind</th><th>carried</th>'
@@ -269,14 +263,21 @@ def _cases_html(loads: dict) -> str:
             "  </section>")
 
 
-def _reactions_words(reactions, decimals, most: int = 3) -> str:
+def _largest(entry, n: int, way: str) -> str:
+    """``BC1 +33.75, of 10 members in tension`` (``entry``: member id and force), or
+    ``none in tension``."""
+    return f"{entry[0]} {entry[1]:+.4g}, of {count(n, 'member')} in {way}" if entry else \
+        f"none in {way}"
+
+
+def _reactions_words(reactions, most: int = 3) -> str:
     """``A (+0.00, +12.50), B (...) and 2 more``: the largest reactions first, one fixed
-    point for all (four significant figures of the largest)."""
+    point for all (four significant figures of the largest, as the forces text)."""
     if not reactions:
         return "none"
     R = np.array([r for _, r in reactions], float)
     order = np.argsort(-np.linalg.norm(R, axis=1), kind="stable")
-    dp = decimals(R)
+    dp = fixed_decimals(R)
     words = [f"{reactions[k][0]} ({', '.join(f'{v:+.{dp}f}' for v in R[k])})"
              for k in order]
     return join_words(words, most=most)
