@@ -361,7 +361,8 @@
       ctx.strokeStyle = colour; ctx.fillStyle = colour; ctx.lineWidth = 2.5;
       for (const [j, v] of list) {
         const size = Math.hypot(v[0], v[1], v[2]);
-        const len = Math.max(loads.arrow * size / top, 0.02) * geo.extent * s;   // pixels
+        // pixels; the shortest 1/8 of the longest, as in the forces still (0.02 / 0.16)
+        const len = Math.max(size / top, 0.125) * loads.arrow * geo.extent * s;
         const dx = dot(v, b.right) / size, dy = -dot(v, b.up) / size;         // on screen
         const tip = now[j], flat = Math.hypot(dx, dy);
         if (flat < 0.15) {                                // along the line of sight: a ring
