@@ -16,7 +16,7 @@ import numpy as np
 from .tolerances import DISPLAY
 
 __all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "is_imported",
-           "placed_joints", "joint_label", "xyz", "measure", "direction_words"]
+           "placed_joints", "joint_label", "xyz", "measure", "direction_words", "fixed_decimals"]
 
 _DIGITS = re.compile(r"(\d+)")
 
@@ -150,9 +150,9 @@ def xyz(point, size: float = 1.0) -> str:
 
 
 def measure(value: float, size: float = 1.0, *, up: bool = False) -> str:
-    """A coordinate or length of a frame of size ``size`` in figures: to
-    ``Display.coordinate_figures`` significant figures of ``size`` (one fixed point,
-    trailing zeros dropped, never an exponent; ``|x| <= Display.zero_coordinate * size``
+    """A coordinate or length of a frame of size ``size`` in figures: to four
+    significant figures of ``size`` (:func:`fixed_decimals`: one fixed point for a
+    frame, trailing zeros dropped, never an exponent; ``|x| <= Display.zero_coordinate * size``
     written as 0).  With ``up`` the value is rounded up at that resolution, for a
     threshold the value must pass (``--within 1921`` for a member 1920.9 long).
 
@@ -164,7 +164,7 @@ def measure(value: float, size: float = 1.0, *, up: bool = False) -> str:
     ('1921', '0')
     """
     size = abs(float(size)) or 1.0
-    k = int(np.clip(DISPLAY.coordinate_figures - 1 - np.floor(np.log10(size)), 0, 6))
+    k = fixed_decimals([size])
     c = float(value)
     if abs(c) <= DISPLAY.zero_coordinate * size:
         c = 0.0
@@ -192,3 +192,16 @@ def direction_words(v, *, signed: bool = True) -> str:
         return f"along {('+' if v[a] > 0 else '-') if signed else ''}{'xyz'[a]}"
     # a component that rounds to zero is written +0.00, never -0.00
     return "along (" + ", ".join(f"{0.0 if abs(c) < 0.005 else c:+.2f}" for c in v) + ")"
+
+
+def fixed_decimals(values) -> int:
+    """Decimals that show four significant figures of the largest value in ``values``:
+    a table's numbers then share one fixed point (``27.00`` beside ``33.75``).
+
+    Examples
+    --------
+    >>> fixed_decimals([27.0, 33.75]), fixed_decimals([4000.0]), fixed_decimals([])
+    (2, 0, 0)
+    """
+    top = float(np.max(np.abs(values))) if np.size(values) else 0.0
+    return int(min(6, max(0, 3 - np.floor(np.log10(top))))) if top > 0 else 0

@@ -111,13 +111,6 @@ class Display:
         along the building when its unit direction ``u`` and the extrusion
         direction ``e`` have ``|u . e| >= along_axis``.  Default ``0.98``
         (within about 11 degrees of the axis).
-    coordinate_figures : int
-        A joint's coordinates in a label (``J5 (2.5, 0, 1.5)``) are rounded to
-        ``10**-k`` with ``k = clip(coordinate_figures - 1 - floor(log10 size), 0, 6)``,
-        ``size`` the frame's bounding-box diagonal: that many significant figures of
-        the frame's size, one fixed point for every joint, trailing zeros dropped
-        (a 12 m frame to 0.01 m, a 30,000 mm one to 1 mm): two coordinates with
-        ``|x - y| < 0.5 * 10**-k`` may print the same.  Default ``4``.
     """
 
     moving: float = 0.05
@@ -127,7 +120,6 @@ class Display:
     zero_coordinate: float = 1e-9
     axis_plane: float = 0.999
     along_axis: float = 0.98
-    coordinate_figures: int = 4
 
 
 @dataclass(frozen=True)
@@ -376,6 +368,26 @@ class Tolerances:
         singular value by more than ``sqrt(2) * 1e-9``, far below the rank
         threshold ``rank * s_max`` (``s_max >= 1`` for any frame with a member
         free at both ends), so the decision is the one the global engine makes.
+    chord_straight : float
+        Chords (:mod:`spaceframe.analysis.restraints`): two members meeting at
+        a joint continue one straight line when their unit directions ``a``,
+        ``b`` (each pointing away from the joint) have ``a . b <= -(1 -
+        chord_straight)``.  Default ``1e-4``: within about 0.8 degrees of
+        straight (``arccos(1 - 1e-4)``), so a chord drawn with rounded
+        coordinates stays one line while a kink of a few degrees (a pitched
+        top chord at its ridge) ends it.
+    restraint_motion : float
+        A joint is moved along a unit lateral direction ``e`` by mechanism
+        ``i`` (scaled so its largest joint movement is 1) when ``|e . u_ij| >
+        restraint_motion``; a joint no mechanism moves that way is a
+        restraint point.  A mechanism lies in the lateral motions a
+        continuous chord holds when, at every joint, what is left of ``u_ij``
+        after its projection onto those directions has ``||r_ij|| <=
+        restraint_motion``.  Default ``1e-6``: the canonical basis sets
+        entries below ``echelon_zero`` to 0, the sparse engine's basis is
+        accurate to about ``1e-8``.  A member with unit direction ``d`` at a
+        joint reaches along ``e`` (it ties the joint that way) when ``|d . e| >
+        restraint_motion``.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -423,6 +435,8 @@ class Tolerances:
     lp_feasibility: float = 1e-7
     prestress_balance: float = 1e-3
     local_mechanism: float = 1e-9
+    chord_straight: float = 1e-4
+    restraint_motion: float = 1e-6
     limits: Limits = Limits()
 
 

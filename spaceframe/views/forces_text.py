@@ -7,10 +7,10 @@ import io
 
 import numpy as np
 
-from ..naming import count as counted
+from ..naming import count as counted, fixed_decimals
 from ..force_results import FORCES_CAUTION, STIFFNESS_NOTE, ForcesResult
 
-__all__ = ["render_forces", "forces_csv", "bracing_members", "fixed_decimals"]
+__all__ = ["render_forces", "forces_csv", "bracing_members"]
 
 #: Member tags that mark bracing and ties (an extruded model's ``group``, or ``role``).
 _BRACING = {"brace", "tie", "purlin", "ridge", "bracing"}
@@ -101,13 +101,6 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         out += [""] + [f"Warning: {w}" for w in r.warnings]
     out += ["", _verdict(r), "", FORCES_CAUTION]
     return "\n".join(out) + "\n"
-
-
-def fixed_decimals(values) -> int:
-    """Decimals that show four significant figures of the largest value in ``values``:
-    a table's numbers then share one fixed point (``27.00`` beside ``33.75``)."""
-    top = float(np.max(np.abs(values))) if np.size(values) else 0.0
-    return int(min(6, max(0, 3 - np.floor(np.log10(top))))) if top > 0 else 0
 
 
 def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:

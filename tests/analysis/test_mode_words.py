@@ -141,7 +141,7 @@ def test_text_runs_give_numbered_joints_their_place():
 
 def test_one_rule_for_joint_labels():
     """One label for a joint wherever it is written: coordinates to four significant figures
-    of the frame's size at one fixed point (tolerances.Display.coordinate_figures), never in
+    of the frame's size at one fixed point (naming.fixed_decimals of the size), never in
     exponent form.  Python's format mini-language writes ``f"{3000.0:.3g}"`` as ``3e+03``
     (a fact of Python's ``g`` format), which is why a fixed point is used; 0.001 of a
     12 m frame rounds to 0 at 0.01 m (arithmetic by hand)."""
