@@ -259,9 +259,11 @@ def test_load_case_selector_colours_members_by_force(browser, tmp_path):
         assert page.locator("#cases tbody tr").count() == len(forces.names)
         assert "not carried" in page.inner_text("#cases-summary")
         assert page.is_disabled("#case-list button >> nth=1")
+        before = _canvas(page)
         # the compression colour at full strength
         assert _colours_after(page, lambda: page.click("#case-list button >> nth=0"),
                               [0x1d, 0x5f, 0xa6], within=40)
+        after = _canvas(page)
         assert "tension (kN)" in page.inner_text("#legend")
         assert "competent engineer" in page.inner_text("#forces-caution")
         # the arrows of the case, in the forces still's colours: pink loads, green reactions
