@@ -581,7 +581,7 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
         Panels, by their corner joints, where no brace goes.
     tension_only : bool, keyword-only
         Rods: keep only panel diagonals whose partner diagonal is a candidate
-        too.
+        too (candidates of no panel, such as a listed guy, are all kept).
 
     Returns
     -------
@@ -612,5 +612,5 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
                               f"can be braced")
     if tension_only:
         pairs = CandidateSet.from_records(frame, kept, [])
-        kept = [c for c, p in zip(kept, pairs.partner.tolist()) if p >= 0]
+        kept = [c for c, p in zip(kept, pairs.partner.tolist()) if p >= 0 or c.corners is None]
     return CandidateSet.from_records(frame, kept, restraint_rows)
