@@ -252,10 +252,10 @@ def _cases_html(loads: dict) -> str:
             rows.append(f'<tr class="not-carried">{head}<td>no</td>'
                         f'<td colspan="3">{e(why)}</td></tr>')
             continue
-        rows.append(f"<tr>{head}<td>yes</td>"
-                    f'<td class="ids">{e(_largest(c["tension"], c["in_tension"], "tension"))}'
-                    f'</td><td class="ids">'
-                    f'{e(_largest(c["compression"], c["in_compression"], "compression"))}</td>'
+        pull = _case_largest(c["tension"], c["in_tension"], "tension")
+        push = _case_largest(c["compression"], c["in_compression"], "compression")
+        rows.append(f'<tr>{head}<td>yes</td><td class="ids">{e(pull)}</td>'
+                    f'<td class="ids">{e(push)}</td>'
                     f'<td class="ids">{e(_reactions_words(c["reactions"]))}</td></tr>')
     return ('  <section id="cases-section">\n    <h2>Load cases and member forces</h2>\n'
             f'    <p id="cases-summary">{e(summary)}</p>\n'
@@ -267,7 +267,7 @@ def _cases_html(loads: dict) -> str:
             "  </section>")
 
 
-def _largest(entry, n: int, way: str) -> str:
+def _case_largest(entry, n: int, way: str) -> str:
     """``BC1 +33.75, of 10 members in tension`` (``entry``: member id and force), or
     ``none in tension``."""
     return f"{entry[0]} {entry[1]:+.4g}, of {count(n, 'member')} in {way}" if entry else \
