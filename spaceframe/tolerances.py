@@ -285,6 +285,13 @@ class Tolerances:
         Bracing: a candidate acts on a mode when the mode stretches it by
         ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
         (modes are scaled so that it is 1).  Default ``0.01``.
+    clear_space : float
+        Bracing, the rule against rakers: a point of a candidate is inside a
+        frame's clear space (between its outer joints, above its lowest
+        support and below its lowest member) when it is more than
+        ``clear_space * size`` inside each of those bounds, so that a brace
+        along a wall line, on the ground or in the plane of a chord is not
+        inside.  Default ``1e-6``.
     hint_stretch : float
         Bracing, for a mode no candidate acts on: a member from its most
         moving joint ``j`` to a nearby joint ``q`` would act on it when
@@ -403,6 +410,7 @@ class Tolerances:
     parallel_lines: float = 1e-12
     parallel_diagonals: float = 1e-6
     acts: float = 0.01
+    clear_space: float = 1e-6
     hint_stretch: float = 0.1
     held_stiffness: float = 1e10
     mechanism_load: float = 1e-6

@@ -17,7 +17,7 @@ from ...model import Frame
 from ...tolerances import DEFAULT
 
 __all__ = ["frame_labels", "planar_id", "frame_offset", "bay_between", "panel_bay",
-           "missing_ties", "tie_level"]
+           "missing_ties", "tie_level", "bay_labels", "bay_key", "candidate_bay"]
 
 
 def frame_labels(frame: Frame) -> list[tuple[str, np.ndarray]]:
@@ -134,3 +134,46 @@ def tie_level(frame: Frame, a: int) -> str:
     z = frame.coords[own, 2]
     size = float(np.max(np.ptp(frame.coords, axis=0))) or 1.0
     return "bottom chord" if frame.coords[a, 2] - z.min() <= DEFAULT.select * size else "upper"
+
+
+def bay_labels(frame: Frame) -> list[str]:
+    """Every bay of a frame of frames, in order along the building.
+
+    The bays between consecutive frames (:func:`frame_labels`,
+    :func:`bay_between`), then any other ``bay`` member tag in order of first
+    appearance.  Empty for a frame with neither.
+    """
+    frames = frame_labels(frame)
+    jf = frame.joint_tags.get("frame")
+    out = [bay_between(jf, int(A[0]), int(B[0])) for (_, A), (_, B) in zip(frames, frames[1:])]
+    tags = frame.member_tags.get("bay") or ()
+    return list(dict.fromkeys([b for b in out + list(tags) if b]))
+
+
+def bay_key(text: str) -> str:
+    """A bay as the user may write it, as its label: ``"B3"``, ``"bay 3"`` and ``"3"`` give ``"3"``.
+
+    Only a prefix followed by a digit is taken off, so a label such as
+    ``"Bx"`` stays as written.
+    """
+    t = str(text).strip()
+    for prefix in ("bay ", "bay", "b", "B"):
+        rest = t[len(prefix):].strip() if t.lower().startswith(prefix.lower()) else ""
+        if rest[:1].isdigit():
+            return rest
+    return t
+
+
+def candidate_bay(frame: Frame, cand, i: int, member_at=None) -> str:
+    """The bay of candidate ``i`` of a :class:`~.candidates.CandidateSet` ('' for none).
+
+    A panel's diagonal: the panel's bay (:func:`panel_bay`); any other member
+    (a tie, a listed pair, a pair within a distance): the bay between its
+    ends' frames (:func:`bay_between`); a restraint: none.
+    """
+    if cand.joint[i] >= 0:
+        return ""
+    if cand.panel[i] is not None:
+        return panel_bay(frame, cand.panel[i], member_at)
+    a, b = cand.ends[i]
+    return bay_between(frame.joint_tags.get("frame"), int(a), int(b))

@@ -124,6 +124,11 @@ class BracingResult:
         should find as many).
     lateral : LateralRestraint or None
         For a lone planar frame with modes out of its plane left.
+    layout : LayoutChoice or None
+        How the choice was made under layout rules that are no matroid
+        constraint (:func:`spaceframe.analysis.bracing.layout.select`); None
+        when the greedy pass alone made it.  What each filter removed is in
+        ``candidates.filters``.
     """
 
     frame: Frame
@@ -140,6 +145,7 @@ class BracingResult:
     restraints_used: bool = False
     expected_after: int = 0
     lateral: LateralRestraint | None = None
+    layout: object = None
 
     @property
     def members_added(self) -> list[int]:

@@ -60,6 +60,7 @@ from ...results import AuditResult
 from ...tolerances import DEFAULT, Tolerances
 from ..audit import audit
 from ..equilibrium import compatibility_matrix
+from . import layout as layout_rules
 from .candidates import CandidateSet, find_candidates
 from .result import BracingResult, LateralRestraint, Remedy, braced_frame
 
@@ -318,9 +319,10 @@ def remedies(frame: Frame, after: AuditResult, *,
 
 def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                       within: float | None = None,
-                      listed=None, restraints: str = "auto", attachable=(),
+                      listed=None, restraints: str = "auto", attachable=(), attach_directions=(),
                       exclude_boxes=(), exclude_bays=(), exclude_panels=(),
                       tension_only: bool = False, alternatives: int = 3,
+                      layout: "layout_rules.LayoutRules | None" = None,
                       audit_options: dict | None = None,
                       tol: Tolerances = DEFAULT) -> BracingResult:
     """The fewest, cheapest candidate members and restraints that remove every mechanism.
@@ -336,12 +338,17 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
     Parameters
     ----------
     frame : Frame
-    panels, ties, within, listed, attachable, exclude_boxes, exclude_bays, exclude_panels, \
-tension_only : keyword-only
+    panels, ties, within, listed, attachable, attach_directions, exclude_boxes, exclude_bays, \
+exclude_panels, tension_only : keyword-only
         As in :func:`find_candidates`.
     restraints : {"auto", "always", "never"}, keyword-only
         Restraint candidates: "auto" (default) only when the frame has
-        rigid-body modes or ``attachable`` joints are given.
+        rigid-body modes or ``attachable`` joints are given, and then only
+        for what no member removes; "always": always, competing with the
+        members on cost (:mod:`.layout`).
+    layout : LayoutRules, keyword-only
+        Layout rules (:mod:`.layout`); None: the defaults (no member through
+        the clear space at floor level, unit costs).
     alternatives : int, keyword-only
         At most this many alternative sets of the same size (default 3).
     audit_options : dict, keyword-only
@@ -385,12 +392,18 @@ tension_only : keyword-only
                               f"not {within!r}")
     opts = dict(audit_options or {})
     before = audit(frame, tol=tol, **opts)
+    attach_joints = list(dict.fromkeys([*attachable, *(j for j, _ in attach_directions)]))
     use_restraints = restraints == "always" or (
-        restraints == "auto" and (before.rigid_body_modes > 0 or len(attachable) > 0))
+        restraints == "auto" and (before.rigid_body_modes > 0 or len(attach_joints) > 0))
     cand = find_candidates(frame, panels=panels, ties=ties, within=within, listed=listed,
-                           restraints=use_restraints, attachable=attachable,
+                           restraints=use_restraints, attachable=attach_joints,
+                           attach_directions=attach_directions,
                            exclude_boxes=exclude_boxes, exclude_bays=exclude_bays,
                            exclude_panels=exclude_panels, tension_only=tension_only, tol=tol)
+    cand, plan = layout_rules.prepare(frame, cand, layout, restraints=restraints,
+                                      attachable=attach_joints, tension_only=tension_only,
+                                      tol=tol)
+    choice = None
     k = before.mechanisms
     n, d = frame.n_joints, frame.dimension
     U = before.mode_displacements.reshape(k, n * d).T if k else np.zeros((n * d, 0))
@@ -401,11 +414,15 @@ tension_only : keyword-only
         Q, _ = np.linalg.qr(U)
         reach = np.asarray(A @ Q)
         threshold = tol.rank * _s_max(frame, tol)
-        order, elements, cost = matroid_elements(cand, reach, tension_only)
-        basis = greedy_basis(elements, order, threshold)
-        chosen = expand_elements(basis, cand, tension_only)
-        alts = _alternatives(elements, order, cost, basis, threshold, alternatives, cand,
-                             tension_only)
+        if plan.search:   # a layout rule that is no matroid constraint
+            chosen, removed, choice = layout_rules.select(plan, cand, reach, threshold)
+            basis = range(removed)
+        else:
+            order, elements, cost = matroid_elements(cand, reach, tension_only)
+            basis = greedy_basis(elements, order, threshold)
+            chosen = expand_elements(basis, cand, tension_only)
+            alts = _alternatives(elements, order, cost, basis, threshold, alternatives, cand,
+                                 tension_only)
     braced = braced_frame(frame, cand, chosen)
     after = audit(braced, tol=tol, **opts)
     acts_on = tuple(tuple(int(m) + 1 for m in np.flatnonzero(acts_all[i] > tol.acts))
@@ -422,4 +439,4 @@ tension_only : keyword-only
                          remaining=remedies(braced, after, tol=tol),
                          tension_only=tension_only, restraints_used=use_restraints,
                          expected_after=k - len(basis),
-                         lateral=lateral_restraint(braced, after, tol=tol))
+                         lateral=lateral_restraint(braced, after, tol=tol), layout=choice)
