@@ -4,10 +4,10 @@ from __future__ import annotations
 
 from ..analysis.bracing import BRACING_CAUTION
 from ..results import CAUTION
-from .bracing_document import bracing_document
+from .bracing_document import bracing_document, filter_lines, layout_text
 from .text import is_imported, joint_label, verdict
 
-__all__ = ["render_bracing"]
+__all__ = ["render_bracing", "render_comparison"]
 
 
 def _modes(numbers) -> str:
@@ -33,6 +33,8 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
                  f"({b.internal_mechanisms} internal, {b.rigid_body_modes} rigid-body); "
                  f"candidates: {doc['candidates']['members']} members, "
                  f"{doc['candidates']['restraints']} restraint directions")
+    for line in filter_lines(r):
+        lines.append(f"  filter: {line}")
     if not b.mechanisms:
         lines += ["", "Nothing to brace: the frame has no mechanism.", "",
                   "Caution: " + CAUTION]
@@ -41,7 +43,9 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     added = doc["added"]
     if added:
         lines.append(f"Members to add ({len(added)}), the fewest and then the shortest that "
-                     f"remove what the candidates can:")
+                     f"remove what the candidates can:" if r.layout is None or r.layout.exact else
+                     f"Members to add ({len(added)}), chosen under the layout rules (see "
+                     f"Layout below):")
         rows = [("id", "from", "to", f"length {units}", "where", "modes acted on")]
         rows += [(a["id"], name(a["ends"][0]), name(a["ends"][1]), f"{a['length']:.3f}",
                   a["location"],
@@ -72,6 +76,9 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     for alt in doc["alternatives"]:
         lines.append(f"  alternative of the same size, cost {alt['total_cost']:.3f}: "
                      f"{names(alt['take'])} instead of {names(alt['instead_of'])}")
+    how = layout_text(r)
+    if how:
+        lines.append(f"Layout: {how}")
     for note in doc["notes"]:
         lines.append(f"Note: {note}")
     lines.append("")
@@ -86,6 +93,37 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
             lines.append(f"  ... and {len(remaining) - max_rows} more (see --json)")
     lines.append("")
     lines.append("Caution: " + CAUTION + " " + BRACING_CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def render_comparison(c) -> str:
+    """The proposal and the designer's scheme side by side (:func:`compare_schemes`)."""
+    units, fu = c.proposal.frame.units, c.force_units or "force units"
+
+    def force(f):
+        if f.largest is None:
+            return "-" if not f.added else "no loads given"
+        value, member, case = f.largest
+        return f"{value:.4g} {fu} ({member}, {case})"
+
+    rows = [("", "proposal", "designer's scheme")]
+    for label, get in (("members added", lambda f: str(len(f.added))),
+                       ("restraints added", lambda f: str(f.restraints_added)),
+                       (f"length added {units}", lambda f: f"{f.length:.3f}"),
+                       ("mechanisms left", lambda f: str(f.after.mechanisms)),
+                       ("states of self-stress", lambda f: str(f.after.self_stress_states)),
+                       ("key members among those added",
+                        lambda f: f"{len(f.key_added)} of {len(f.added)}"),
+                       ("largest force in an added member", force)):
+        rows.append((label, get(c.proposal), get(c.scheme)))
+    lines = [f"Compared with the designer's scheme [{c.source}]:"] + _table(rows)
+    if c.loads_from:
+        lines.append(f"  loads: the cases of the {c.loads_from} on both")
+    for who, f in (("proposal", c.proposal), ("designer's scheme", c.scheme)):
+        if f.not_carried:
+            lines.append(f"  the {who} does not carry: {', '.join(f.not_carried)} "
+                         f"(the load acts on a mechanism)")
+    lines.append("  A key member carries no state of self-stress: losing it leaves a mechanism.")
     return "\n".join(lines) + "\n"
 
 

@@ -49,9 +49,12 @@ Under those, :func:`select` searches: every subset of the groups that act
 on some mechanism when there are at most :data:`EXACT_GROUPS` (exact);
 otherwise the greedy pass over the groups, with, for each bay group left
 without a brace, the best of its :data:`TRIALS` cheapest groups forced first
-(not proven optimal).  The choice records which held, with two bounds that no
-set removing as many mechanisms can beat: the count (the rank removed) and
-the cost of the unconstrained matroid basis over the same candidates.
+(not proven optimal).  Mechanisms removed come first: a rule never leaves a
+mechanism that the candidates it allows can remove.  The choice records
+which search held, and the count and cost of the greedy pass over the same
+candidates without these rules: no set removing as many mechanisms has fewer
+items, nor (with one tier) costs less, so the difference bounds what the
+rules cost.
 
 References
 ----------
@@ -140,17 +143,21 @@ class LayoutChoice:
     ----------
     method : str
         ``"matroid"`` (the greedy pass met every rule: exact), ``"exhaustive"``
-        (every subset of the groups that act: exact) or ``"greedy"`` (the
-        greedy pass with bay groups seeded: not proven least).
+        (every subset of the groups that act: exact), ``"bound"`` (the greedy
+        search found a choice as few and as cheap as the one without the
+        rules, tier by tier: exact) or ``"greedy"`` (the greedy pass with bay
+        groups seeded: not proven least).
     exact : bool
     tried : int
         Sets evaluated.
     count, cost : int, float
         Members and restraints chosen, their total cost.
     least_count : int
-        No set removing as many mechanisms has fewer items (the rank removed).
+        Items the greedy pass over the same candidates takes without these
+        rules: no set removing as many mechanisms has fewer.
     least_cost : float
-        No such set costs less (the cheapest matroid basis of the candidates).
+        Their cost: with members and restraints in one tier (or only members),
+        no set removing as many mechanisms costs less.
     required : tuple of tuple of str
         The bay groups that must each hold a brace.
     unmet : tuple of tuple of str
@@ -636,6 +643,16 @@ def _rank(rows, threshold) -> int:
     return int(np.sum(s > threshold))
 
 
+def _reaches_bound(cand: CandidateSet, chosen, singles) -> bool:
+    """Is the choice as good as the greedy pass without the rules (same count, the same
+    items per tier, the same cost to 1e-9)?  Then no choice under the rules is better."""
+    tiers = lambda idx: sorted(cand.tier[list(idx)].tolist())   # noqa: E731
+    c1 = float(cand.cost[list(chosen)].sum()) if len(chosen) else 0.0
+    c0 = float(cand.cost[list(singles)].sum()) if len(singles) else 0.0
+    return (len(chosen) == len(singles) and tiers(chosen) == tiers(singles)
+            and c1 <= c0 + 1e-9 * max(1.0, abs(c0)))
+
+
 def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
            threshold: float) -> tuple[list[int], int, LayoutChoice]:
     """The choice under rules that are no matroid constraint (symmetry, bays to brace).
@@ -680,8 +697,7 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
     def key(taken, rank):
         return (-rank, len(met(taken)), int(size[taken].sum()), float(cost[taken].sum()))
 
-    singles = greedy_basis(reach, np.lexsort((cand.order().argsort(), np.round(cand.cost, 12))),
-                           threshold)
+    singles = greedy_basis(reach, cand.order(), threshold)
     least_cost = float(cand.cost[singles].sum())
     taken, rank = _run(reach, groups, order, threshold, k)
     tried, method, exact = 1, "greedy", False
@@ -724,6 +740,8 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
                 forced.append(best[0])
                 taken, rank = best[1], best[2]
     chosen = [i for g in taken for i in groups[g]]
+    if not exact and _reaches_bound(cand, chosen, singles):
+        method, exact = "bound", True
     name = lambda bays: tuple(sorted(bays, key=lambda b: (len(b), b)))  # noqa: E731
     choice = LayoutChoice(method=method, exact=exact, tried=tried, count=len(chosen),
                           cost=float(cand.cost[chosen].sum()) if chosen else 0.0,
