@@ -205,8 +205,9 @@ def layout_text(r) -> str | None:
         if c.unmet:
             parts.append(_groups_words(c.unmet, False)
                          + " (no candidate brace there removes a mechanism the others leave)")
-    parts.append(f"{c.count} members and restraints, cost {c.cost:.3f}; without these rules "
-                 f"{c.least_count}, cost {c.least_cost:.3f}, and none fewer")
+    parts.append(f"{count(c.count, 'member or restraint', 'members and restraints')}, cost "
+                 f"{c.cost:.3f}, against {c.least_count} at cost {c.least_cost:.3f} without "
+                 f"these rules (no set removing as much has fewer)")
     return "; ".join(parts)
 
 

@@ -343,7 +343,7 @@ def _inside(op: dict, P: np.ndarray, m: float) -> np.ndarray:
     covers = (s[:, None] >= lo - m) & (s[:, None] <= hi + m)
     with np.errstate(divide="ignore", invalid="ignore"):
         line = op["za"] + (s[:, None] - op["sa"]) / (op["sb"] - op["sa"]) * (op["zb"] - op["za"])
-    env = np.where(covers, line, -np.inf).min(axis=1, initial=np.inf)
+    env = np.where(covers, line, np.inf).min(axis=1, initial=np.inf)
     env[~covers.any(axis=1)] = -np.inf
     return (s > op["smin"] + m) & (s < op["smax"] - m) & (z > op["z0"] + m) & (z < env - m)
 
