@@ -17,7 +17,7 @@ from ...model import Frame
 from ...tolerances import DEFAULT
 
 __all__ = ["frame_labels", "planar_id", "frame_offset", "bay_between", "panel_bay",
-           "missing_ties", "tie_level", "bay_labels", "bay_key", "candidate_bay"]
+           "missing_ties", "tie_level", "bay_labels", "bay_key", "candidate_bay", "joint_bays"]
 
 
 def frame_labels(frame: Frame) -> list[tuple[str, np.ndarray]]:
@@ -140,14 +140,17 @@ def bay_labels(frame: Frame) -> list[str]:
     """Every bay of a frame of frames, in order along the building.
 
     The bays between consecutive frames (:func:`frame_labels`,
-    :func:`bay_between`), then any other ``bay`` member tag in order of first
-    appearance.  Empty for a frame with neither.
+    :func:`bay_between`), then any other ``bay`` member tag (numeric labels in
+    numeric order, others in order of first appearance).  Empty for a frame
+    with neither.
     """
     frames = frame_labels(frame)
     jf = frame.joint_tags.get("frame")
     out = [bay_between(jf, int(A[0]), int(B[0])) for (_, A), (_, B) in zip(frames, frames[1:])]
-    tags = frame.member_tags.get("bay") or ()
-    return list(dict.fromkeys([b for b in out + list(tags) if b]))
+    tags = list(dict.fromkeys(b for b in frame.member_tags.get("bay") or () if b and b not in out))
+    if all(b.isdigit() for b in tags):
+        tags.sort(key=int)
+    return [b for b in dict.fromkeys(out) if b] + tags
 
 
 def bay_key(text: str) -> str:
@@ -164,16 +167,35 @@ def bay_key(text: str) -> str:
     return t
 
 
-def candidate_bay(frame: Frame, cand, i: int, member_at=None) -> str:
+def candidate_bay(frame: Frame, cand, i: int, member_at=None, around=None) -> str:
     """The bay of candidate ``i`` of a :class:`~.candidates.CandidateSet` ('' for none).
 
     A panel's diagonal: the panel's bay (:func:`panel_bay`); any other member
     (a tie, a listed pair, a pair within a distance): the bay between its
-    ends' frames (:func:`bay_between`); a restraint: none.
+    ends' frames (:func:`bay_between`), or, in a frame with ``bay`` member
+    tags but no frames, the most common bay of the members at its ends; a
+    restraint: none.  ``member_at`` (:func:`panel_bay`) and ``around``
+    (:func:`joint_bays`) may be passed to save rebuilding them.
     """
     if cand.joint[i] >= 0:
         return ""
     if cand.panel[i] is not None:
         return panel_bay(frame, cand.panel[i], member_at)
-    a, b = cand.ends[i]
-    return bay_between(frame.joint_tags.get("frame"), int(a), int(b))
+    a, b = (int(j) for j in cand.ends[i])
+    jframe, tags = frame.joint_tags.get("frame"), frame.member_tags.get("bay")
+    if jframe is not None or tags is None:
+        return bay_between(jframe, a, b)
+    around = joint_bays(frame) if around is None else around
+    labels = around[a] + around[b]
+    return Counter(labels).most_common(1)[0][0] if labels else ""
+
+
+def joint_bays(frame: Frame) -> list[list[str]]:
+    """The non-empty ``bay`` tags of the members at each joint (for :func:`candidate_bay`)."""
+    tags = frame.member_tags.get("bay") or ("",) * frame.n_members
+    out = [[] for _ in range(frame.n_joints)]
+    for (a, b), t in zip(frame.ends.tolist(), tags):
+        if t:
+            out[a].append(t)
+            out[b].append(t)
+    return out

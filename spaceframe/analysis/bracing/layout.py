@@ -77,7 +77,7 @@ from ...model import Frame
 from ...suggest import did_you_mean
 from ...tolerances import DEFAULT, DISPLAY, Tolerances
 from .candidates import CandidateSet
-from .frames import bay_key, bay_labels, candidate_bay, frame_labels
+from .frames import bay_key, bay_labels, candidate_bay, frame_labels, joint_bays
 
 __all__ = ["LayoutRules", "LayoutChoice", "LayoutPlan", "KINDS", "PLANES", "EXACT_GROUPS",
            "TRIALS", "prepare", "select", "plane_kinds", "clear_space_hits", "mirrors",
@@ -553,7 +553,8 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
     if rules.braced_bays is not None:
         allowed, required = _bay_rule(frame, rules.braced_bays)
         member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
-        bays = [candidate_bay(frame, cand, i, member_at) if kinds[i] == "brace" else ""
+        around = joint_bays(frame)
+        bays = [candidate_bay(frame, cand, i, member_at, around) if kinds[i] == "brace" else ""
                 for i in range(len(cand))]
         out = np.array([bool(b) and b not in allowed for b in bays], dtype=bool)
         label = (rules.braced_bays if isinstance(rules.braced_bays, str)
@@ -605,7 +606,8 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
                                    int(min(rank_of[list(g)]))))
     member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
     nkinds = [candidate_kind(new, i) for i in range(len(new))]
-    group_bays = tuple(frozenset(candidate_bay(frame, new, i, member_at) for i in g
+    around = joint_bays(frame)
+    group_bays = tuple(frozenset(candidate_bay(frame, new, i, member_at, around) for i in g
                                  if nkinds[i] == "brace") - {""} for g in groups)
     plan = LayoutPlan(groups=tuple(groups), group_bays=group_bays, required=tuple(required),
                       mirrors=tuple(used), search=bool(rules.symmetric or required),
@@ -688,7 +690,9 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
     k = reach.shape[1]
     cost = np.array([float(cand.cost[list(g)].sum()) for g in groups])
     size = np.array([len(g) for g in groups])
-    order = list(range(len(groups)))
+    norms = np.linalg.norm(reach, axis=1) if len(reach) else np.zeros(0)
+    # only a group with some row above the threshold can add rank: the passes skip the rest
+    order = [g for g in range(len(groups)) if np.any(norms[list(groups[g])] > threshold)]
 
     def met(taken):
         have = set().union(*(gbays[g] for g in taken)) if taken else set()
@@ -704,7 +708,7 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
     if not plan.mirrors and not plan.tension_only and not met(taken):
         method, exact = "matroid", True
     else:
-        useful = [g for g in order if any(np.linalg.norm(reach[i]) > threshold for i in groups[g])]
+        useful = order
         if len(useful) <= EXACT_GROUPS:
             best = (taken, rank)
             for n in range(len(useful) + 1):
