@@ -14,7 +14,7 @@ import numpy as np
 
 from ..analysis.bracing import BRACING_CAUTION
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
-from ..analysis.bracing.layout import candidate_kind
+from ..analysis.bracing.layout import candidate_kind, plane_kind
 from ..naming import count, join_words
 from ..results import CAUTION
 from ..supports import AXES
@@ -93,6 +93,8 @@ def candidate_entry(r, i: int, modes=None) -> dict:
                  "length": round(float(c.length[i]), 6),
                  "cost": round(float(c.cost[i]), 6), "origin": c.origin[i],
                  "kind": candidate_kind(c, i), "location": location(f, c, i)}
+        if entry["kind"] == "brace":
+            entry["plane"] = plane_kind(f, c, i)
         if c.panel[i] is not None:
             entry["panel"] = [f.joint_ids[j] if j >= 0 else "ground" for j in c.panel[i]]
         if c.origin[i] == "tie panel":
@@ -191,7 +193,7 @@ def layout_text(r) -> str | None:
     how = {"matroid": "exact: the greedy pass of the matroid met every rule",
            "exhaustive": f"exact: all {c.tried} sets of the groups that act were compared",
            "bound": f"exact: the greedy search over the rules ({count(c.tried, 'pass', 'passes')}) "
-                    f"found a choice as few and as cheap as the one without them",
+                    f"found a choice as few and as cheap as the plain greedy pass",
            "greedy": f"greedy search over the rules ({count(c.tried, 'pass', 'passes')}; "
                      f"not proven least)"}
     parts = [how[c.method]]
@@ -206,8 +208,9 @@ def layout_text(r) -> str | None:
             parts.append(_groups_words(c.unmet, False)
                          + " (no candidate brace there removes a mechanism the others leave)")
     parts.append(f"{count(c.count, 'member or restraint', 'members and restraints')}, cost "
-                 f"{c.cost:.3f}, against {c.least_count} at cost {c.least_cost:.3f} without "
-                 f"these rules (no set removing as much has fewer)")
+                 f"{c.cost:.3f}; the plain greedy pass over the candidates the rules allow "
+                 f"takes {c.least_count}, cost {c.least_cost:.3f} (no set removing as much "
+                 f"has fewer)")
     return "; ".join(parts)
 
 

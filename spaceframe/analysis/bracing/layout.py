@@ -80,7 +80,7 @@ from .candidates import CandidateSet
 from .frames import bay_key, bay_labels, candidate_bay, frame_labels, joint_bays
 
 __all__ = ["LayoutRules", "LayoutChoice", "LayoutPlan", "KINDS", "PLANES", "EXACT_GROUPS",
-           "TRIALS", "prepare", "select", "plane_kinds", "clear_space_hits", "mirrors",
+           "TRIALS", "PLANE_WORDS", "prepare", "select", "plane_kinds", "plane_kind", "clear_space_hits", "mirrors",
            "candidate_kind", "parse_costs"]
 
 #: The kinds a cost factor is given for: ``tie`` (a tie between frames), ``brace`` (every
@@ -88,6 +88,9 @@ __all__ = ["LayoutRules", "LayoutChoice", "LayoutPlan", "KINDS", "PLANES", "EXAC
 KINDS = ("tie", "brace", "restraint")
 #: The planes a brace may be in (:func:`plane_kinds`).
 PLANES = ("roof", "walls", "plan")
+#: Other words for the planes, as the locations in the output write them.
+PLANE_WORDS = {"wall": "walls", "vertical": "walls", "horizontal": "plan", "level": "plan",
+               "pitched": "roof"}
 #: Exact search over every subset of the groups when at most this many act on a mechanism.
 EXACT_GROUPS = 12
 #: Groups tried as the first brace of a bay group the greedy pass leaves without one.
@@ -264,33 +267,28 @@ def plane_kinds(frame: Frame, cand: CandidateSet, *, tol: Tolerances = DEFAULT) 
     top), otherwise ``walls`` (the vertical plane through it).  In a plane
     frame every brace is in the frame's own plane, counted as ``walls``.
     """
+    return [plane_kind(frame, cand, i, tol=tol) for i in range(len(cand))]
+
+
+def plane_kind(frame: Frame, cand: CandidateSet, i: int, *, tol: Tolerances = DEFAULT):
+    """The plane of candidate ``i`` (:func:`plane_kinds`)."""
+    if candidate_kind(cand, i) != "brace":
+        return None
+    if frame.dimension != 3:
+        return "walls"
     X = frame.coords
-    up = X[:, -1]
-    top = float(up.max()) if len(up) else 0.0
-    size = frame.size()
     level, plumb = DISPLAY.axis_plane, 1 - DISPLAY.axis_plane
-    out = []
-    for i in range(len(cand)):
-        if candidate_kind(cand, i) != "brace":
-            out.append(None)
-            continue
-        if frame.dimension != 3:
-            out.append("walls")
-            continue
-        a, b = cand.ends[i]
-        at_top = min(up[a], up[b]) >= top - tol.select * size
-        corners = cand.panel[i]
-        if corners is not None:
-            P = X[[c for c in corners if c >= 0]]
-            n = np.linalg.svd(P - P.mean(axis=0))[2][-1]
-            nz = abs(n[2])
-            out.append("plan" if nz > level and not at_top else
-                       "roof" if nz > level or nz >= plumb else "walls")
-            continue
-        w = X[b] - X[a]
-        horizontal = abs(w[2]) <= plumb * np.linalg.norm(w)
-        out.append(("roof" if at_top else "plan") if horizontal else "walls")
-    return out
+    a, b = cand.ends[i]
+    at_top = min(X[a, 2], X[b, 2]) >= X[:, 2].max() - tol.select * frame.size()
+    corners = cand.panel[i]
+    if corners is not None:
+        P = X[[c for c in corners if c >= 0]]
+        nz = abs(np.linalg.svd(P - P.mean(axis=0))[2][-1][2])
+        return ("plan" if nz > level and not at_top else
+                "roof" if nz > level or nz >= plumb else "walls")
+    w = X[b] - X[a]
+    horizontal = abs(w[2]) <= plumb * np.linalg.norm(w)
+    return ("roof" if at_top else "plan") if horizontal else "walls"
 
 
 def _frame_openings(frame: Frame, tol: Tolerances):
@@ -533,7 +531,8 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
     keep = np.ones(len(cand), dtype=bool)
 
     if rules.planes is not None:
-        planes = [p.strip() for p in rules.planes if p.strip()]
+        planes = [PLANE_WORDS.get(p.strip().lower(), p.strip().lower())
+                  for p in rules.planes if p.strip()]
         for p in planes:
             if p not in PLANES:
                 raise SpaceframeError(f"plane {p!r} is not one of {', '.join(PLANES)}"
