@@ -48,8 +48,9 @@ Rules that constrain the chosen set are no matroid constraints:
 Under those, :func:`select` searches: every subset of the groups that act
 on some mechanism when there are at most :data:`EXACT_GROUPS` (exact);
 otherwise the greedy pass over the groups, with, for each bay group left
-without a brace, the best of its :data:`TRIALS` cheapest groups forced first
-(not proven optimal).  Mechanisms removed come first: a rule never leaves a
+without a brace, the best of its :data:`TRIALS` cheapest groups forced first,
+then a reverse delete (each group taken, dearest first, dropped when the
+others keep the rank and the bays) (not proven optimal).  Mechanisms removed come first: a rule never leaves a
 mechanism that the candidates it allows can remove.  The choice records
 which search held, and the count and cost of the greedy pass over the same
 candidates without these rules: no set removing as many mechanisms has fewer
@@ -742,6 +743,13 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
                     continue
                 forced.append(best[0])
                 taken, rank = best[1], best[2]
+    if not exact:   # reverse delete: drop a group the others make redundant, dearest first
+        for g in sorted(taken, key=lambda h: (-cost[h], -h)):
+            rest = [h for h in taken if h != g]
+            if (len(met(rest)) <= len(met(taken))
+                    and _rank(reach[[i for h in rest for i in groups[h]]], threshold) == rank):
+                taken = rest
+                tried += 1
     chosen = [i for g in taken for i in groups[g]]
     if not exact and _reaches_bound(cand, chosen, singles):
         method, exact = "bound", True
