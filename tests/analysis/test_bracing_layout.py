@@ -342,11 +342,26 @@ def test_exclude_bay_accepts_both_forms_and_reports_the_count():
     (("--attach", "F1.Q9"), ["'F1.Q9'", "did you mean"]),
     (("--attach", "F1.L0:z"), ["already hold", "F1.L0"]),
     (("--cost", "bracing=2"), ["'bracing'", "tie, brace, restraint"]),
+    (("--braced-bays", "every:0"), ["every:N", "at least 1"]),
+    (("--attach", "F1.L1:2,0"), ["3 numbers"]),
 ])
 def test_filter_that_matches_nothing_is_exit_2_with_the_valid_values(args, words):
     res = run("brace", HALL, *args)
     assert res.exit_code == 2, res.output
     assert "Traceback" not in res.output
+    for w in words:
+        assert w in res.output
+
+
+@pytest.mark.parametrize("args,words", [
+    (("--braced-bays", "ends"), ["has no bays"]),
+    (("--ties-first",), ["--attach"]),
+    (("--planes", ","), ["at least one of roof, walls, plan"]),
+])
+def test_rules_that_cannot_apply_are_exit_2(args, words):
+    # the canopy has no frame tag and no bay tag: no bays for a bay rule
+    res = run("brace", MODELS / "canopy_sway.toml", *args)
+    assert res.exit_code == 2 and "Traceback" not in res.output, res.output
     for w in words:
         assert w in res.output
 

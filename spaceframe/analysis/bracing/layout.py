@@ -534,6 +534,8 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
     if rules.planes is not None:
         planes = [PLANE_WORDS.get(p.strip().lower(), p.strip().lower())
                   for p in rules.planes if p.strip()]
+        if not planes:
+            raise SpaceframeError(f"planes: give at least one of {', '.join(PLANES)}")
         for p in planes:
             if p not in PLANES:
                 raise SpaceframeError(f"plane {p!r} is not one of {', '.join(PLANES)}"
