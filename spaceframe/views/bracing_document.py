@@ -237,7 +237,7 @@ def _layout_entry(c):
     if c is None:
         return None
     return {"method": c.method, "exact": c.exact, "tried": c.tried, "count": c.count,
-            "cost": round(c.cost, 6), "without_rules": {"count": c.least_count,
+            "cost": round(c.cost, 6), "plain_greedy": {"count": c.least_count,
                                                         "cost": round(c.least_cost, 6)},
             "required_bays": [list(map(bay_name, g)) for g in c.required],
             "unmet_bays": [list(map(bay_name, g)) for g in c.unmet],

@@ -517,63 +517,111 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
         not in the model, or a frame with no mirror symmetry.
     """
     rules = rules or LayoutRules()
-    factors = {k: 1.0 for k in KINDS} | dict(rules.costs or {})
-    kinds = [candidate_kind(cand, i) for i in range(len(cand))]
-    lengths = frame.lengths() if frame.n_members else np.ones(1)
-    typical = float(np.median(lengths)) if len(lengths) else 1.0
-    cost = np.array([factors[k] * (typical if k == "restraint" else c)
-                     for k, c in zip(kinds, cand.cost.tolist())], dtype=float)
-    attach = set(int(j) for j in attachable)
-    tier = np.where(cand.is_member, 1, 1 if restraints == "always" else 2)
-    if rules.ties_first:
-        tier = np.where((~cand.is_member) & np.isin(cand.joint, list(attach)), 0, tier)
-    cand = dataclasses.replace(cand, cost=cost, tier=tier.astype(np.int64))
+    cand = _costed(frame, cand, rules, restraints, attachable)
     filters = list(cand.filters)
     keep = np.ones(len(cand), dtype=bool)
-
-    if rules.planes is not None:
-        planes = [PLANE_WORDS.get(p.strip().lower(), p.strip().lower())
-                  for p in rules.planes if p.strip()]
-        if not planes:
-            raise SpaceframeError(f"planes: give at least one of {', '.join(PLANES)}")
-        for p in planes:
-            if p not in PLANES:
-                raise SpaceframeError(f"plane {p!r} is not one of {', '.join(PLANES)}"
-                                      f"{did_you_mean(p, PLANES)}")
-        where = plane_kinds(frame, cand, tol=tol)
-        held = {p: sum(w == p for w in where) for p in PLANES}
-        for p in planes:
-            if not held[p]:
-                have = ", ".join(f"{q} ({held[q]})" for q in PLANES if held[q]) or "none"
-                raise SpaceframeError(f"no candidate brace lies in the {p} plane(s); the "
-                                      f"planes holding candidates: {have}")
-        out = np.array([w is not None and w not in planes for w in where], dtype=bool)
-        filters.append(("planes", ",".join(planes), int(out.sum())))
-        keep &= ~out
-
     required = []
+    if rules.planes is not None:
+        out = _outside_planes(frame, cand, rules.planes, tol)
+        filters.append(("planes", ",".join(_plane_names(rules.planes)), int(out.sum())))
+        keep &= ~out
     if rules.braced_bays is not None:
-        allowed, required = _bay_rule(frame, rules.braced_bays)
-        member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
-        around = joint_bays(frame)
-        bays = [candidate_bay(frame, cand, i, member_at, around) if kinds[i] == "brace" else ""
-                for i in range(len(cand))]
-        out = np.array([bool(b) and b not in allowed for b in bays], dtype=bool)
+        out, required = _outside_bays(frame, cand, rules.braced_bays)
         label = (rules.braced_bays if isinstance(rules.braced_bays, str)
                  else ",".join(map(str, rules.braced_bays)))
         filters.append(("braced bays", label, int(out.sum())))
         keep &= ~out
-
     if not rules.allow_rakers:
         hits = clear_space_hits(frame, cand, tol=tol)
         if hits is not None:
             filters.append(("clear space", "floor level", int(hits.sum())))
             keep &= ~hits
+    find, used, lone = _together(frame, cand, keep, rules.symmetric, tension_only, tol)
+    if rules.symmetric:
+        filters.append(("symmetric", "no mirror image", int(lone.sum())))
+        keep &= ~lone
+    sub = np.flatnonzero(keep)
+    new = dataclasses.replace(cand.subset(sub), filters=tuple(filters))
+    members = {}
+    for i_new, i_old in enumerate(sub.tolist()):
+        members.setdefault(find(i_old), []).append(i_new)
+    rank_of = new.order().argsort() if len(new) else np.zeros(0, int)
+    groups = sorted((tuple(sorted(idx)) for idx in members.values()),
+                    key=lambda g: (int(new.tier[list(g)].min()),
+                                   round(float(new.cost[list(g)].sum()), 12),
+                                   int(min(rank_of[list(g)]))))
+    group_bays = (frozenset(),) * len(groups)
+    if required:
+        member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
+        around = joint_bays(frame)
+        group_bays = tuple(frozenset(candidate_bay(frame, new, i, member_at, around)
+                                     for i in g if candidate_kind(new, i) == "brace") - {""}
+                           for g in groups)
+    plan = LayoutPlan(groups=tuple(groups), group_bays=group_bays, required=tuple(required),
+                      mirrors=tuple(used), search=bool(rules.symmetric or required),
+                      tension_only=tension_only)
+    return new, plan
 
-    # groups chosen together: mirror images (their closure) and tension-only panel pairs
+
+def _costed(frame: Frame, cand: CandidateSet, rules: LayoutRules, restraints: str,
+            attachable) -> CandidateSet:
+    """The candidates with each kind's cost factor applied and their tiers set."""
+    factors = {k: 1.0 for k in KINDS} | dict(rules.costs or {})
+    kinds = [candidate_kind(cand, i) for i in range(len(cand))]
+    typical = float(np.median(frame.lengths())) if frame.n_members else 1.0
+    cost = np.array([factors[k] * (typical if k == "restraint" else c)
+                     for k, c in zip(kinds, cand.cost.tolist())], dtype=float)
+    tier = np.where(cand.is_member, 1, 1 if restraints == "always" else 2)
+    if rules.ties_first:
+        at = (~cand.is_member) & np.isin(cand.joint, [int(j) for j in attachable])
+        tier = np.where(at, 0, tier)
+    return dataclasses.replace(cand, cost=cost, tier=tier.astype(np.int64))
+
+
+def _plane_names(planes) -> list[str]:
+    return [PLANE_WORDS.get(p.strip().lower(), p.strip().lower()) for p in planes if p.strip()]
+
+
+def _outside_planes(frame: Frame, cand: CandidateSet, planes, tol: Tolerances) -> np.ndarray:
+    """The braces in none of ``planes``; a plane no candidate lies in is refused."""
+    planes = _plane_names(planes)
+    if not planes:
+        raise SpaceframeError(f"planes: give at least one of {', '.join(PLANES)}")
+    for p in planes:
+        if p not in PLANES:
+            raise SpaceframeError(f"plane {p!r} is not one of {', '.join(PLANES)}"
+                                  f"{did_you_mean(p, PLANES)}")
+    where = plane_kinds(frame, cand, tol=tol)
+    held = {p: sum(w == p for w in where) for p in PLANES}
+    for p in planes:
+        if not held[p]:
+            have = ", ".join(f"{q} ({held[q]})" for q in PLANES if held[q]) or "none"
+            raise SpaceframeError(f"no candidate brace lies in the {p} plane; the planes "
+                                  f"holding candidates: {have}")
+    return np.array([w is not None and w not in planes for w in where], dtype=bool)
+
+
+def _outside_bays(frame: Frame, cand: CandidateSet, rule) -> tuple[np.ndarray, list]:
+    """The braces in a bay the rule does not allow, and the bay groups it requires."""
+    allowed, required = _bay_rule(frame, rule)
+    member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
+    around = joint_bays(frame)
+    bays = [candidate_bay(frame, cand, i, member_at, around)
+            if candidate_kind(cand, i) == "brace" else "" for i in range(len(cand))]
+    return np.array([bool(b) and b not in allowed for b in bays], dtype=bool), required
+
+
+def _together(frame: Frame, cand: CandidateSet, keep, symmetric: bool, tension_only: bool,
+              tol: Tolerances):
+    """The groups chosen together: mirror images (their closure) and tension-only panel pairs.
+
+    Returns the group finder (candidate index to its group's root), the mirror planes used
+    and, with ``symmetric``, the kept candidates of groups with a member whose image is not
+    kept (those are no longer symmetric).
+    """
     find, union = _union_find(len(cand))
     used, images = [], []
-    if rules.symmetric:
+    if symmetric:
         found = mirrors(frame, tol=tol)
         if not found:
             axes = "x" if frame.dimension == 2 else "x or y"
@@ -590,31 +638,12 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
         for i, p in enumerate(cand.partner.tolist()):
             if p >= 0 and keep[i] and keep[p]:
                 union(i, p)
-    if rules.symmetric:   # a group with a member whose image is not kept is not symmetric
+    lone = np.zeros(len(cand), dtype=bool)
+    if symmetric:
         bad = {find(i) for im in images for i in np.flatnonzero(keep).tolist()
                if im[i] < 0 or not keep[im[i]]}
         lone = keep & np.array([find(i) in bad for i in range(len(cand))], dtype=bool)
-        filters.append(("symmetric", "no mirror image", int(lone.sum())))
-        keep &= ~lone
-    sub = np.flatnonzero(keep)
-    new = dataclasses.replace(cand.subset(sub), filters=tuple(filters))
-    members = {}
-    for i_new, i_old in enumerate(sub.tolist()):
-        members.setdefault(find(i_old), []).append(i_new)
-    rank_of = new.order().argsort() if len(new) else np.zeros(0, int)
-    groups = sorted((tuple(sorted(idx)) for idx in members.values()),
-                    key=lambda g: (int(new.tier[list(g)].min()),
-                                   round(float(new.cost[list(g)].sum()), 12),
-                                   int(min(rank_of[list(g)]))))
-    member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
-    nkinds = [candidate_kind(new, i) for i in range(len(new))]
-    around = joint_bays(frame)
-    group_bays = tuple(frozenset(candidate_bay(frame, new, i, member_at, around) for i in g
-                                 if nkinds[i] == "brace") - {""} for g in groups)
-    plan = LayoutPlan(groups=tuple(groups), group_bays=group_bays, required=tuple(required),
-                      mirrors=tuple(used), search=bool(rules.symmetric or required),
-                      tension_only=tension_only)
-    return new, plan
+    return find, used, lone
 
 
 # ------------------------------------------------------------------------------- select
