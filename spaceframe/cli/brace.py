@@ -143,18 +143,20 @@ def _csv_text(doc: dict) -> str:
 @click.option("--within", type=float, metavar="LENGTH",
               help="Also every pair of joints at most LENGTH apart that no member joins.")
 @click.option("--candidates", "candidates_path", type=click.Path(path_type=str), metavar="FILE",
-              help="A CSV list of candidate members: start,end[,weight] (weight replaces the "
-                   "length as cost).")
+              help="A CSV list of candidate members: start,end[,weight] (weight, or a column "
+                   "cost, replaces the length as cost).")
 @click.option("--exclude-box", multiple=True, metavar="X0,Y0,Z0,X1,Y1,Z1",
               help="No brace may pass through this box (repeatable).")
-@click.option("--exclude-bay", multiple=True, metavar="LABEL",
-              help="No brace in panels of this bay (the bay tag of their members; repeatable).")
+@click.option("--exclude-bay", multiple=True, metavar="BAY",
+              help="No brace in panels of this bay, as printed (B3) or as its label (3); "
+                   "repeatable.")
 @click.option("--exclude-panel", multiple=True, metavar="J1,J2,J3,J4",
               help="No brace in the panel with these corner joints (repeatable).")
 @click.option("--restraints", type=click.Choice(["auto", "always", "never"]), default="auto",
               show_default=True,
               help="Restraint candidates (axis directions at supported or attachable joints): "
-                   "auto = only when the frame has rigid-body modes or --attach is given.")
+                   "auto = only when the frame has rigid-body modes or --attach is given, and "
+                   "only for what no member removes; always = always, competing on cost.")
 @click.option("--attach", multiple=True, metavar="JOINT[:DIRECTION][,...]",
               help="Joints that may be tied to the ground or a braced structure, such as a "
                    "deck or a facade (comma-separated; repeatable); ':y' or ':0,1,0' limits a "
@@ -195,7 +197,13 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
     of every wall panel closed by the ground; in a frame of frames (extruded), ties
     between corresponding joints of adjacent frames and the diagonals of the panels they
     close; more with --within and --candidates.
-    The selection is exact (greedy over a linear matroid).
+    The selection is exact (greedy over a linear matroid); layout rules
+    (--braced-bays, --symmetric, --planes, the clear space at floor level,
+    --ties-first, --cost) keep it within what they allow, and the output says
+    how each filter matched and whether the choice under them is exact.
+
+    Caution: an idealised pin-jointed model; the bracing scheme is to be
+    checked by a competent engineer under the local codes.
 
     Exit status: 0 when the braced frame is held, 1 when mechanisms remain, 2 for bad
     input or usage.
