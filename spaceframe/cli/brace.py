@@ -234,6 +234,10 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
             from ..errors import SpaceframeError
             raise SpaceframeError("--ties-first puts restraints at the --attach joints first; "
                                   "give the tie points with --attach JOINT[:DIRECTION]")
+        if restraints == "never" and (attach_joints or attach_dirs):
+            from ..errors import SpaceframeError
+            raise SpaceframeError("--attach gives tie points, which are restraints, and "
+                                  "--restraints never leaves every restraint out; drop one")
         rules = LayoutRules(braced_bays=braced_bays, symmetric=symmetric,
                             planes=tuple(planes.split(",")) if planes is not None else None,
                             allow_rakers=allow_rakers, ties_first=ties_first,

@@ -168,6 +168,10 @@ def filter_lines(r) -> list[str]:
     for kind, value, n in r.candidates.filters:
         if kind == "clear space" and not n:
             continue
+        if kind == "attach":
+            out.append(f"tie points given: {count(n, 'restraint candidate')} at "
+                       f"{count(int(value), 'joint')}")
+            continue
         what = _FILTERS.get(kind, kind + " {}").format(value)
         out.append(f"{what}: {count(n, 'candidate')} removed")
     return out

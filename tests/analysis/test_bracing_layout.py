@@ -220,6 +220,21 @@ def test_cli_ties_first_and_attach_directions():
     doc = json.loads(res.stdout)
     assert sorted(x["joint"] for x in doc["restraints_added"]) == sorted(TIES)
     assert {x["axis"] for x in doc["restraints_added"]} == {"y"}
+    text = run("brace", SCAFFOLD, "--ties-first", "--alternatives", "0",
+               "--attach", ",".join(f"{j}:y" for j in TIES)).output
+    assert "tie points given: 8 restraint candidates at 8 joints" in text
+    assert "Restraints to add (8)" in text
+
+
+def test_text_says_which_search_held():
+    # derived: on the hall, braces in B1 and B5 can do all that braces in any bay do, so the
+    # search under the rule finds a choice as few and as cheap as the plain greedy pass
+    text = run("brace", HALL, "--braced-bays", "ends", "--alternatives", "0").output
+    assert "Layout: exact: the greedy search over the rules" in text
+    assert "B1 and B5 each hold a brace" in text
+    sym = run("brace", HALL, "--symmetric", "--alternatives", "0").output
+    assert "Layout: greedy search over the rules" in sym and "not proven least" in sym
+    assert "mirror-image groups about x = 6 and y = 12.5" in sym
 
 
 def test_restraints_always_compete_on_cost():
@@ -356,6 +371,7 @@ def test_filter_that_matches_nothing_is_exit_2_with_the_valid_values(args, words
 @pytest.mark.parametrize("args,words", [
     (("--braced-bays", "ends"), ["has no bays"]),
     (("--ties-first",), ["--attach"]),
+    (("--attach", "R3a", "--restraints", "never"), ["--restraints never"]),
     (("--planes", ","), ["at least one of roof, walls, plan"]),
 ])
 def test_rules_that_cannot_apply_are_exit_2(args, words):

@@ -15,6 +15,10 @@ The package has one module per step:
 - :mod:`.result`: :class:`BracingResult` and :func:`braced_frame` (the frame
   with the chosen members and restraints, through :mod:`spaceframe.edit`).
 - :mod:`.frames`: the frames of a frame of frames, planar ids and bays.
+- :mod:`.layout`: layout rules (planes, braced bays, mirror-image groups, the
+  clear space at floor level, per-kind costs, ties to a building first) and
+  the search under those that are no matroid constraint.
+- :mod:`.compare`: the designer's scheme audited beside the proposal.
 
 The analysis returns data (origins, joint indices, bay labels, remedies);
 the words (``"bottom-chord tie at L2, bay 3"``, hints, notes) and the JSON
@@ -24,6 +28,8 @@ document are made in :mod:`spaceframe.views.bracing_document`.
 from .candidates import (GENERATORS, ORIGINS, CandidateOptions, CandidateSet, MemberCandidate,
                          RestraintCandidate, Search, find_candidates, panel_diagonals,
                          tie_candidates)
+from .compare import Comparison, compare_schemes
+from .layout import LayoutChoice, LayoutRules
 from .result import ACTS, BRACING_CAUTION, BracingResult, LateralRestraint, Remedy, braced_frame
 from .selection import (PER_MODE, expand_elements, greedy_basis, lateral_restraint,
                         matroid_elements, planar_plane, reach_rows, recommend_bracing, remedies)
@@ -33,4 +39,4 @@ __all__ = ["recommend_bracing", "find_candidates", "panel_diagonals", "tie_candi
            "remedies", "lateral_restraint", "braced_frame", "BracingResult", "Remedy",
            "LateralRestraint", "CandidateSet", "CandidateOptions", "MemberCandidate",
            "RestraintCandidate", "Search", "GENERATORS", "ORIGINS", "ACTS", "PER_MODE",
-           "BRACING_CAUTION"]
+           "BRACING_CAUTION", "LayoutRules", "LayoutChoice", "compare_schemes", "Comparison"]

@@ -477,7 +477,9 @@ class CandidateSet:
         and for ties to a building that come first.
     filters : tuple of (str, str, int)
         What each filter matched: ``(filter, value, candidates removed)``, in
-        the order applied (exclusions here, layout rules in :mod:`.layout`).
+        the order applied (exclusions here, layout rules in :mod:`.layout`);
+        for ``"attach"`` the value is the number of joints given and the count
+        the restraint candidates made there.
     """
 
     ends: np.ndarray
@@ -713,6 +715,10 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
                               f"members; make a zone smaller or drop one, so that some panel "
                               f"can be braced")
     filters = tuple((kind, name, len(hit)) for kind, name, hit in zones)
+    given = set(int(j) for j in attachable) | {int(j) for j, _ in attach_directions}
+    if given and restraints:
+        filters += (("attach", str(len(given)),
+                     sum(c.joint in given for c in restraint_rows if c.origin == "attachable")),)
     if tension_only:
         pairs = CandidateSet.from_records(frame, kept, [])
         single = [c for c, p in zip(kept, pairs.partner.tolist()) if p < 0]
