@@ -432,3 +432,16 @@ def test_compare_with_a_csv_list(tmp_path):
     bad.write_text("start,end\nR1a,Q9\n")
     res = run("brace", MODELS / "canopy_sway.toml", "--compare", bad)
     assert res.exit_code == 2 and "'Q9'" in res.output
+
+
+def test_tension_only_symmetric_keeps_both_diagonals_and_the_mirror():
+    # source: common practice (a rod-braced panel takes both diagonals) and derived (mirror).
+    frame = _box(5)
+    r = recommend_bracing(frame, alternatives=0, tension_only=True,
+                          layout=LayoutRules(symmetric=True))
+    chosen = set(r.chosen)
+    assert chosen and all(r.candidates.partner[i] in chosen for i in r.members_added)
+    members, _ = _proposal_items(r)
+    for _, p in _mirror_permutations(frame):
+        assert {frozenset(p[j] for j in m) for m in members} == members
+    assert r.after.stable and _dense_mechanisms(r.braced) == 0
