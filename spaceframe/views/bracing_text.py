@@ -34,7 +34,7 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
                  f"candidates: {doc['candidates']['members']} members, "
                  f"{doc['candidates']['restraints']} restraint directions")
     for line in filter_lines(r):
-        lines.append(f"  filter: {line}")
+        lines.append(f"  {line}")
     if not b.mechanisms:
         lines += ["", "Nothing to brace: the frame has no mechanism.", "",
                   "Caution: " + CAUTION]
