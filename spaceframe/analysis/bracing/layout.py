@@ -678,7 +678,8 @@ def _rank(rows, threshold) -> int:
 
 def _reaches_bound(cand: CandidateSet, chosen, singles) -> bool:
     """Is the choice as good as the greedy pass without the rules (same count, the same
-    items per tier, the same cost to 1e-9)?  Then no choice under the rules is better."""
+    items per tier, the same cost to 1e-9)?  With the same rank, the greedy pass's value
+    bounds every choice under the rules from below, so no choice under them is better."""
     tiers = lambda idx: sorted(cand.tier[list(idx)].tolist())   # noqa: E731
     c1 = float(cand.cost[list(chosen)].sum()) if len(chosen) else 0.0
     c0 = float(cand.cost[list(singles)].sum()) if len(singles) else 0.0
@@ -782,7 +783,7 @@ def select(plan: LayoutPlan, cand: CandidateSet, reach: np.ndarray,
                 taken = rest
                 tried += 1
     chosen = [i for g in taken for i in groups[g]]
-    if not exact and _reaches_bound(cand, chosen, singles):
+    if not exact and rank == len(singles) and _reaches_bound(cand, chosen, singles):
         method, exact = "bound", True
     name = lambda bays: tuple(sorted(bays, key=lambda b: (len(b), b)))  # noqa: E731
     choice = LayoutChoice(method=method, exact=exact, tried=tried, count=len(chosen),
