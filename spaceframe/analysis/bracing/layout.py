@@ -268,11 +268,27 @@ def plane_kinds(frame: Frame, cand: CandidateSet, *, tol: Tolerances = DEFAULT) 
     top), otherwise ``walls`` (the vertical plane through it).  In a plane
     frame every brace is in the frame's own plane, counted as ``walls``.
     """
-    return [plane_kind(frame, cand, i, tol=tol) for i in range(len(cand))]
+    four = [i for i in range(len(cand)) if candidate_kind(cand, i) == "brace"
+            and frame.dimension == 3 and cand.panel[i] is not None
+            and len(cand.panel[i]) == 4 and min(cand.panel[i]) >= 0]
+    nz = {}
+    if four:   # one batched SVD for the panels (the usual case), as plane_kind does each
+        P = frame.coords[np.array([cand.panel[i] for i in four])]          # (p, 4, 3)
+        normals = np.linalg.svd(P - P.mean(axis=1, keepdims=True))[2][:, -1]
+        nz = dict(zip(four, np.abs(normals[:, 2]).tolist()))
+    top = _top_level(frame, tol)
+    return [plane_kind(frame, cand, i, tol=tol, nz=nz.get(i), top=top) for i in range(len(cand))]
 
 
-def plane_kind(frame: Frame, cand: CandidateSet, i: int, *, tol: Tolerances = DEFAULT):
-    """The plane of candidate ``i`` (:func:`plane_kinds`)."""
+def _top_level(frame: Frame, tol: Tolerances) -> float:
+    """A joint at or above this height is at the top of the frame (``tol.select * size``)."""
+    return float(frame.coords[:, -1].max()) - tol.select * frame.size() if frame.n_joints else 0.0
+
+
+def plane_kind(frame: Frame, cand: CandidateSet, i: int, *, tol: Tolerances = DEFAULT,
+               nz: float | None = None, top: float | None = None):
+    """The plane of candidate ``i`` (:func:`plane_kinds`); ``nz``, the vertical component
+    of its panel's unit normal, and ``top``, the top level, when already known."""
     if candidate_kind(cand, i) != "brace":
         return None
     if frame.dimension != 3:
@@ -280,11 +296,13 @@ def plane_kind(frame: Frame, cand: CandidateSet, i: int, *, tol: Tolerances = DE
     X = frame.coords
     level, plumb = DISPLAY.axis_plane, 1 - DISPLAY.axis_plane
     a, b = cand.ends[i]
-    at_top = min(X[a, 2], X[b, 2]) >= X[:, 2].max() - tol.select * frame.size()
+    top = _top_level(frame, tol) if top is None else top
+    at_top = min(X[a, 2], X[b, 2]) >= top
     corners = cand.panel[i]
     if corners is not None:
-        P = X[[c for c in corners if c >= 0]]
-        nz = abs(np.linalg.svd(P - P.mean(axis=0))[2][-1][2])
+        if nz is None:
+            P = X[[c for c in corners if c >= 0]]
+            nz = abs(np.linalg.svd(P - P.mean(axis=0))[2][-1][2])
         return ("plan" if nz > level and not at_top else
                 "roof" if nz > level or nz >= plumb else "walls")
     w = X[b] - X[a]
