@@ -486,21 +486,24 @@ def _union_find(n: int):
 def _images(frame: Frame, cand: CandidateSet, mirror) -> np.ndarray:
     """The index of each candidate's image under one mirror (-1: its image is none)."""
     ax, _, perm = mirror
-    pair = {(int(a), int(b)): i for i, (a, b) in enumerate(cand.ends.tolist()) if a >= 0}
+    perm = perm.tolist()
+    ends = cand.ends.tolist()
+    pair = {(a, b): i for i, (a, b) in enumerate(ends) if a >= 0}
     at = {}
     for i in np.flatnonzero(~cand.is_member).tolist():
         at.setdefault(int(cand.joint[i]), []).append(i)
     out = np.full(len(cand), -1)
-    for i in range(len(cand)):
-        if cand.joint[i] < 0:
-            a, b = (int(perm[j]) for j in cand.ends[i])
+    for i, (a, b) in enumerate(ends):
+        if a >= 0:
+            a, b = perm[a], perm[b]
             out[i] = pair.get((min(a, b), max(a, b)), -1)
-        else:
+    for j, rows in at.items():
+        for i in rows:
             e = cand.direction[i].copy()
             e[ax] = -e[ax]
-            for j in at.get(int(perm[cand.joint[i]]), []):
-                if abs(float(cand.direction[j] @ e)) > 1 - 1e-9:
-                    out[i] = j
+            for q in at.get(perm[j], []):
+                if abs(float(cand.direction[q] @ e)) > 1 - 1e-9:
+                    out[i] = q
     return out
 
 
@@ -538,13 +541,13 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
     cand = _costed(frame, cand, rules, restraints, attachable)
     filters = list(cand.filters)
     keep = np.ones(len(cand), dtype=bool)
-    required = []
+    required, bays = [], None
     if rules.planes is not None:
         out = _outside_planes(frame, cand, rules.planes, tol)
         filters.append(("planes", ",".join(_plane_names(rules.planes)), int(out.sum())))
         keep &= ~out
     if rules.braced_bays is not None:
-        out, required = _outside_bays(frame, cand, rules.braced_bays)
+        out, required, bays = _outside_bays(frame, cand, rules.braced_bays)
         label = (rules.braced_bays if isinstance(rules.braced_bays, str)
                  else ",".join(map(str, rules.braced_bays)))
         filters.append(("braced bays", label, int(out.sum())))
@@ -570,11 +573,7 @@ def prepare(frame: Frame, cand: CandidateSet, rules: LayoutRules | None, *,
                                    int(min(rank_of[list(g)]))))
     group_bays = (frozenset(),) * len(groups)
     if required:
-        member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
-        around = joint_bays(frame)
-        group_bays = tuple(frozenset(candidate_bay(frame, new, i, member_at, around)
-                                     for i in g if candidate_kind(new, i) == "brace") - {""}
-                           for g in groups)
+        group_bays = tuple(frozenset(bays[sub[i]] for i in g) - {""} for g in groups)
     plan = LayoutPlan(groups=tuple(groups), group_bays=group_bays, required=tuple(required),
                       mirrors=tuple(used), search=bool(rules.symmetric or required),
                       tension_only=tension_only)
@@ -619,14 +618,15 @@ def _outside_planes(frame: Frame, cand: CandidateSet, planes, tol: Tolerances) -
     return np.array([w is not None and w not in planes for w in where], dtype=bool)
 
 
-def _outside_bays(frame: Frame, cand: CandidateSet, rule) -> tuple[np.ndarray, list]:
-    """The braces in a bay the rule does not allow, and the bay groups it requires."""
+def _outside_bays(frame: Frame, cand: CandidateSet, rule) -> tuple[np.ndarray, list, list]:
+    """The braces in a bay the rule does not allow, the bay groups it requires, and each
+    candidate's bay ('' for ties, restraints and braces in no bay)."""
     allowed, required = _bay_rule(frame, rule)
     member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
     around = joint_bays(frame)
     bays = [candidate_bay(frame, cand, i, member_at, around)
             if candidate_kind(cand, i) == "brace" else "" for i in range(len(cand))]
-    return np.array([bool(b) and b not in allowed for b in bays], dtype=bool), required
+    return np.array([bool(b) and b not in allowed for b in bays], dtype=bool), required, bays
 
 
 def _together(frame: Frame, cand: CandidateSet, keep, symmetric: bool, tension_only: bool,
