@@ -115,15 +115,17 @@ def _mirror_permutations(frame):
 def _proposal_items(r):
     c = r.candidates
     members = {frozenset(c.ends[i].tolist()) for i in r.members_added}
-    restraints = {(int(c.joint[i]), tuple(np.abs(c.direction[i]).round(12))) for i in r.restraints_added}
+    restraints = {(int(c.joint[i]), tuple(np.abs(c.direction[i]).round(12)))
+                  for i in r.restraints_added}
     return members, restraints
 
 
 @pytest.mark.parametrize("model", [HALL, SCAFFOLD])
 def test_symmetric_proposal_maps_onto_itself(model):
-    # source: derived.  Under each mirror about the centre lines the hall's (and the
-    # scaffold's: x = 6.25, y = 0.8) joints and members map onto themselves; the proposal is chosen in mirror-image groups, so
-    # its members and restraints map onto themselves too.
+    # source: derived.  Under each mirror about the centre lines the hall's (x = 6,
+    # y = 12.5) and the scaffold's (x = 6.25, y = 0.8) joints and members map onto
+    # themselves; the proposal is chosen in mirror-image groups, so its members and
+    # restraints map onto themselves too.
     frame = spaceframe.load(model)
     perms = _mirror_permutations(frame)
     assert perms

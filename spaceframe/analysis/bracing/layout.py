@@ -50,12 +50,13 @@ on some mechanism when there are at most :data:`EXACT_GROUPS` (exact);
 otherwise the greedy pass over the groups, with, for each bay group left
 without a brace, the best of its :data:`TRIALS` cheapest groups forced first,
 then a reverse delete (each group taken, dearest first, dropped when the
-others keep the rank and the bays) (not proven optimal).  Mechanisms removed come first: a rule never leaves a
-mechanism that the candidates it allows can remove.  The choice records
-which search held, and the count and cost of the greedy pass over the same
-candidates without these rules: no set removing as many mechanisms has fewer
-items, nor (with one tier) costs less, so the difference bounds what the
-rules cost.
+others keep the rank and the bays); not proven least, unless it matches the
+bound below.  Mechanisms removed come first: a rule never leaves a mechanism
+that the candidates it allows can remove.  The choice records which search
+held, and the count and cost of the plain greedy pass over the candidates
+the rules allow: no set removing as many mechanisms has fewer items, nor
+(with one tier) costs less, so the difference bounds what the rules cost; a
+choice that matches it tier by tier is least (``method="bound"``).
 
 References
 ----------
@@ -81,7 +82,8 @@ from .candidates import CandidateSet
 from .frames import bay_key, bay_labels, candidate_bay, frame_labels, joint_bays
 
 __all__ = ["LayoutRules", "LayoutChoice", "LayoutPlan", "KINDS", "PLANES", "EXACT_GROUPS",
-           "TRIALS", "PLANE_WORDS", "prepare", "select", "plane_kinds", "plane_kind", "clear_space_hits", "mirrors",
+           "TRIALS", "PLANE_WORDS", "prepare", "select", "plane_kinds", "plane_kind",
+           "clear_space_hits", "mirrors",
            "candidate_kind", "parse_costs"]
 
 #: The kinds a cost factor is given for: ``tie`` (a tie between frames), ``brace`` (every
@@ -327,7 +329,8 @@ def _frame_openings(frame: Frame, tol: Tolerances):
         P = X[J]
         o = P.mean(axis=0)
         n = np.linalg.svd(P - o)[2][-1]
-        if abs(n[2]) > 1 - DISPLAY.axis_plane or np.max(np.abs((P - o) @ n)) > tol.panel_plane * size:
+        if (abs(n[2]) > 1 - DISPLAY.axis_plane
+                or np.max(np.abs((P - o) @ n)) > tol.panel_plane * size):
             return None
         out.append([o, n / np.linalg.norm(n), J])
     for f in range(len(out)):
