@@ -286,10 +286,11 @@ class Tolerances:
         ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
         (modes are scaled so that it is 1).  Default ``0.01``.
     clear_space : float
-        Bracing, the rule against rakers: a point of a candidate is inside a
-        frame's clear space (between its outer joints, above its lowest
-        support and below its lowest member) when it is more than
-        ``clear_space * size`` inside each of those bounds, so that a brace
+        Bracing, the rule against rakers: a point of a candidate at ``(s, z)``
+        in a frame's plane is inside its clear space when
+        ``s_min + m < s < s_max - m`` (between its outer joints),
+        ``z_0 + m < z`` (above its lowest support) and ``z < z_low(s) - m``
+        (below its lowest member there), ``m = clear_space * size``; so a brace
         along a wall line, on the ground or in the plane of a chord is not
         inside.  Default ``1e-6``.
     hint_stretch : float
