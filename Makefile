@@ -19,12 +19,15 @@ $(STAMP): $(CORE)
 	$(BIN)/python -m pip install --quiet -e '.[test]'
 	touch $(STAMP)
 
-## demo: audit the demo models (a held frame, then one with a sway mechanism), then forces
+## demo: audit the demo models (a held frame, then one with a sway mechanism), then forces,
+## then the hall roof's chords: restraint lengths, the chords compressed by uplift, restraint forces
 demo: $(CORE)
 	$(BIN)/spaceframe audit models/plant_platform.toml
 	$(BIN)/spaceframe audit models/canopy_sway.toml; test $$? -eq 1
 	$(BIN)/spaceframe forces models/hall_truss.toml
 	$(BIN)/spaceframe forces models/canopy_sway.toml; test $$? -eq 1
+	$(BIN)/spaceframe restraints models/hall_roof_braced.toml --chords role=chord --case uplift --fraction 0.025
+	$(BIN)/spaceframe restraints models/hall_roof_unbraced.toml --chords role=chord; test $$? -eq 1
 
 ## test: run the test suite
 test: $(STAMP)

@@ -14,7 +14,7 @@ from .tolerances import DEFAULT as DEFAULT_TOLERANCES, Tolerances
 
 __version__ = "0.1.0"
 
-__all__ = ["load", "audit", "forces", "Frame", "Tolerances", "DEFAULT_TOLERANCES", "SpaceframeError",
+__all__ = ["load", "audit", "forces", "restraints", "Frame", "Tolerances", "DEFAULT_TOLERANCES", "SpaceframeError",
            "ModelError", "SpaceframeWarning", "__version__"]
 
 
@@ -35,3 +35,10 @@ def forces(frame, cases=None, **kw):
     :func:`spaceframe.analysis.forces.forces`)."""
     from .analysis.forces import forces as _forces
     return _forces(frame, cases, **kw)
+
+
+def restraints(frame, **kw):
+    """Chords, restraint points, unrestrained lengths and restraint forces (see
+    :func:`spaceframe.analysis.restraints.restraints`)."""
+    from .analysis.restraints import restraints as _restraints
+    return _restraints(frame, **kw)

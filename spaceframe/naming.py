@@ -14,7 +14,8 @@ import numpy as np
 
 from .tolerances import DISPLAY
 
-__all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz"]
+__all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz",
+           "direction_words", "fixed_decimals"]
 
 _DIGITS = re.compile(r"(\d+)")
 
@@ -122,3 +123,16 @@ def direction_words(v, *, signed: bool = True) -> str:
         return f"along {('+' if v[a] > 0 else '-') if signed else ''}{'xyz'[a]}"
     # a component that rounds to zero is written +0.00, never -0.00
     return "along (" + ", ".join(f"{0.0 if abs(c) < 0.005 else c:+.2f}" for c in v) + ")"
+
+
+def fixed_decimals(values) -> int:
+    """Decimals that show four significant figures of the largest value in ``values``:
+    a table's numbers then share one fixed point (``27.00`` beside ``33.75``).
+
+    Examples
+    --------
+    >>> fixed_decimals([27.0, 33.75]), fixed_decimals([4000.0]), fixed_decimals([])
+    (2, 0, 0)
+    """
+    top = float(np.max(np.abs(values))) if np.size(values) else 0.0
+    return int(min(6, max(0, 3 - np.floor(np.log10(top))))) if top > 0 else 0

@@ -376,6 +376,26 @@ class Tolerances:
         singular value by more than ``sqrt(2) * 1e-9``, far below the rank
         threshold ``rank * s_max`` (``s_max >= 1`` for any frame with a member
         free at both ends), so the decision is the one the global engine makes.
+    chord_straight : float
+        Chords (:mod:`spaceframe.analysis.restraints`): two members meeting at
+        a joint continue one straight line when their unit directions ``a``,
+        ``b`` (each pointing away from the joint) have ``a . b <= -(1 -
+        chord_straight)``.  Default ``1e-4``: within about 0.8 degrees of
+        straight (``arccos(1 - 1e-4)``), so a chord drawn with rounded
+        coordinates stays one line while a kink of a few degrees (a pitched
+        top chord at its ridge) ends it.
+    restraint_motion : float
+        A joint is moved along a unit lateral direction ``e`` by mechanism
+        ``i`` (scaled so its largest joint movement is 1) when ``|e . u_ij| >
+        restraint_motion``; a joint no mechanism moves that way is a
+        restraint point.  A mechanism lies in the lateral motions a
+        continuous chord holds when, at every joint, what is left of ``u_ij``
+        after its projection onto those directions has ``||r_ij|| <=
+        restraint_motion``.  Default ``1e-6``: the canonical basis sets
+        entries below ``echelon_zero`` to 0, the sparse engine's basis is
+        accurate to about ``1e-8``.  A member with unit direction ``d`` at a
+        joint reaches along ``e`` (it ties the joint that way) when ``|d . e| >
+        restraint_motion``.
     limits : Limits
         The sizes that choose a method (each tested as ``size <= limit``).
     """
@@ -424,6 +444,8 @@ class Tolerances:
     lp_feasibility: float = 1e-7
     prestress_balance: float = 1e-3
     local_mechanism: float = 1e-9
+    chord_straight: float = 1e-4
+    restraint_motion: float = 1e-6
     limits: Limits = Limits()
 
 

@@ -31,6 +31,7 @@ from .convert import convert_command  # noqa: E402
 from .extrude import extrude_command  # noqa: E402
 from .forces import forces_command  # noqa: E402
 from .report import report_command  # noqa: E402
+from .restraints import restraints_command  # noqa: E402
 from .view import view_command  # noqa: E402
 
 main.add_command(audit_command)
@@ -42,3 +43,4 @@ main.add_command(view_command)
 main.add_command(brace_command)
 main.add_command(batch_command)
 main.add_command(forces_command)
+main.add_command(restraints_command)

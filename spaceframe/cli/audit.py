@@ -7,9 +7,8 @@ import sys
 
 import click
 
-from .common import (debug_option, json_option, model_argument, reading_options,
-                     run_guarded,
-                     supports_option)
+from .common import (chords_option, debug_option, json_option, model_argument,
+                     reading_options, run_guarded, supports_option)
 
 __all__ = ["audit_command"]
 
@@ -29,17 +28,22 @@ EXIT_MECHANISM = 1
 @click.option("--redundancy/--no-redundancy", default=None,
               help="Compute every member's redundancy share (default: where it is cheap, up "
                    "to 3,000 free coordinates).")
+@click.option("--continuous-chords", "continuous", is_flag=True,
+              help="Also say whether the frame is held once its chords (straight chains of "
+                   "members) are read as continuous through their joints, with the longest "
+                   "unrestrained lengths (see `spaceframe restraints`).")
+@chords_option
 @supports_option
 @reading_options
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, redundancy, supports, reading,
-                  debug):
+def audit_command(model, as_json, self_stress, method, show_all, redundancy, continuous, chords,
+                  supports, reading, debug):
     """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
     .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, .ifc, a ...joints.csv/...members.csv
     pair).
 
     Exit status: 0 when the frame is held (no mechanism), 1 when mechanisms are
-    found, 2 for bad input or usage.
+    found (also when continuous chords would hold them), 2 for bad input or usage.
     """
     def job():
         from .. import audit, load
@@ -58,13 +62,28 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sup
                                       f"not {self_stress!r}") from None
         from ..selection import supports_for
         frame = supports_for(load(model, **reading), model, supports)
+        if chords is not None and not continuous:
+            raise SpaceframeError("--chords chooses the chords of --continuous-chords; give "
+                                  "both, or leave --chords out")
         result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
+        held = None
+        if continuous:
+            from ..analysis.restraints import restraints
+            held = restraints(frame, chords=chords, audit=result, compression=False)
         if as_json:
-            click.echo(json.dumps(result.to_dict(), indent=1, allow_nan=False))
+            doc = result.to_dict()
+            if held is not None:
+                from ..views.restraints_text import continuous_verdict
+                doc["continuous_chords"] = dict(held.summary(), verdict=continuous_verdict(held))
+            click.echo(json.dumps(doc, indent=1, allow_nan=False))
         else:
             many = sys.maxsize if show_all else 8
-            click.echo(render_audit(result, max_modes=many,
-                                    max_entries=sys.maxsize if show_all else 6), nl=False)
+            text = render_audit(result, max_modes=many,
+                                max_entries=sys.maxsize if show_all else 6)
+            if held is not None:
+                from ..views.restraints_text import render_continuous
+                text += render_continuous(held, most=sys.maxsize if show_all else 6)
+            click.echo(text, nl=False)
         return result
 
     result = run_guarded(job, debug=debug)

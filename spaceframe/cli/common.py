@@ -25,7 +25,8 @@ import click
 from ..errors import InternalError, OutputExistsError, SpaceframeError, SpaceframeWarning
 
 __all__ = ["run_guarded", "MODEL_PATH", "model_argument", "json_option", "force_option",
-           "quiet_option", "debug_option", "supports_option", "reading_options", "REPLACE_HINT",
+           "quiet_option", "debug_option", "supports_option", "chords_option", "reading_options",
+           "REPLACE_HINT",
            "EXIT_BAD_INPUT", "EXIT_INTERNAL"]
 
 EXIT_BAD_INPUT = 2
@@ -57,6 +58,11 @@ supports_option = click.option(
     help="A support rule 'HELD at WHERE', e.g. 'pin at z = min' or 'y at x = 0 within 10' "
          "(repeatable; applied after the model's own supports and its sidecar "
          "<model>.supports.toml).")
+
+chords_option = click.option(
+    "--chords", "chords", default=None, metavar="TAG=VALUE",
+    help="Make chords only of the members with this tag label, e.g. 'role=chord' (labels "
+         "joined by commas: 'role=chord,tie'); default every member.")
 
 
 def reading_options(command):

@@ -7,7 +7,7 @@ import io
 
 import numpy as np
 
-from ..naming import count as counted
+from ..naming import count as counted, fixed_decimals
 from ..force_results import FORCES_CAUTION, STIFFNESS_NOTE, ForcesResult
 
 __all__ = ["render_forces", "forces_csv", "bracing_members"]
@@ -77,7 +77,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         if r.slack[i]:
             out.append(f"  slack (tension-only, left out): {', '.join(r.slack[i])}")
         out.append(f"  {'member':<{width}}  {'force ' + u:>12}  T/C" + ("  role" if role else ""))
-        dp = _decimals(t)
+        dp = fixed_decimals(t)
         for k in order[:max_rows]:
             out.append(f"  {f.member_ids[k]:<{width}}  {t[k]:>12.{dp}f}  {_state(t[k]):>3}"
                        + (f"  {role[k]}" if role else ""))
@@ -90,7 +90,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
             out.append(f"  reactions (force of each support on the frame, {u}):")
             out.append(f"  {'joint':<{jw}}  " + "  ".join(f"{'R' + a:>10}" for a in axes))
             big = np.argsort(-np.linalg.norm(R, axis=1), kind="stable")
-            rp = _decimals(R)
+            rp = fixed_decimals(R)
             for k in big[:max_rows]:
                 out.append(f"  {f.joint_ids[r.reaction_joints[k]]:<{jw}}  "
                            + "  ".join(f"{v:>10.{rp}f}" for v in R[k]))
@@ -101,13 +101,6 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
         out += [""] + [f"Warning: {w}" for w in r.warnings]
     out += ["", _verdict(r), "", FORCES_CAUTION]
     return "\n".join(out) + "\n"
-
-
-def _decimals(values) -> int:
-    """Decimals that show four significant figures of the largest value in ``values``:
-    a table's numbers then share one fixed point (``27.00`` beside ``33.75``)."""
-    top = float(np.max(np.abs(values))) if np.size(values) else 0.0
-    return int(min(6, max(0, 3 - np.floor(np.log10(top))))) if top > 0 else 0
 
 
 def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
@@ -126,7 +119,7 @@ def _envelope_lines(r: ForcesResult, width: int, max_rows: int) -> list[str]:
            f"  {'member':<{width}}  {'tension ' + u:>12}  {'case':<{cw}}  "
            f"{'compression ' + u:>14}  case"]
 
-    dp = _decimals(peak)
+    dp = fixed_decimals(peak)
 
     def row(k):
         tc = r.names[env.tension_case[k]] if env.tension_case[k] >= 0 else "-"

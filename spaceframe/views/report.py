@@ -23,7 +23,7 @@ import numpy as np
 
 from .. import __version__
 from ..errors import SpaceframeError
-from ..naming import count, join_words
+from ..naming import count, fixed_decimals, join_words
 from ..results import AuditResult
 from ..tolerances import DISPLAY
 from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of
@@ -195,10 +195,44 @@ def forces_document(forces) -> dict:
             "determinate": forces.statically_determinate, "caution": FORCES_CAUTION}
 
 
-def render_report(result: AuditResult, bracing=None, forces=None) -> str:
+def restraints_document(r) -> dict:
+    """What the page shows of the chords (a :class:`~spaceframe.restraint_results.RestraintResult`):
+    per chord its members (indices) with the unrestrained length each lies in, its restraint
+    points (joint indices), out of plane (in plane for a plane frame), the longest lengths,
+    and the verdict read with continuous chords."""
+    from .restraints_text import DIRECTION_WORDS, chord_span, continuous_verdict, why_lines
+    from ..restraint_results import RESTRAINT_CAUTION
+
+    r6 = DISPLAY.decimals
+    chords = []
+    for i in r.order_longest():
+        c = r.chords[i]
+        main = "out_of_plane" if "out_of_plane" in c.directions else "in_plane"
+        chords.append({
+            "id": r.chord_id(i), "span": chord_span(r, i), "joints": len(c.joints),
+            "length": round(c.length, r6), "direction": DIRECTION_WORDS[main],
+            "members": c.members.tolist(),
+            "segments": np.round(c.member_lengths(main), r6).tolist(),
+            "points": c.points(main).tolist(),
+            "longest": {DIRECTION_WORDS[d]: round(c.longest(d), r6) for d in c.directions},
+            "counts": {DIRECTION_WORDS[d]: int(c.restrained[d].sum()) for d in c.directions},
+            "compression": [None if not np.isfinite(v) else round(float(v), r6)
+                            for v in c.compression.tolist()]})
+    top = max((max(c["segments"]) for c in chords), default=0.0)
+    return {"verdict": continuous_verdict(r), "held": r.held_with_continuous_chords,
+            "rule": r.rule, "units": r.frame.units, "size": r.frame.size(), "chords": chords,
+            "longest": top,
+            "cases": list(r.case_names), "force_units": r.force_units, "why": why_lines(r),
+            "fraction": r.fraction, "caution": RESTRAINT_CAUTION}
+
+
+def render_report(result: AuditResult, bracing=None, forces=None, restraints=None) -> str:
     """The report of ``result`` as one HTML document (str), with ``bracing`` if given,
-    and the load cases' member forces when ``forces`` (a
-    :class:`~spaceframe.force_results.ForcesResult` of the same frame) is given.
+    the load cases' member forces when ``forces`` (a
+    :class:`~spaceframe.force_results.ForcesResult` of the same frame) is given, and the
+    chords, restraint points and unrestrained lengths when ``restraints`` (a
+    :class:`~spaceframe.restraint_results.RestraintResult` of the same frame) is given;
+    its restraint-force case, where computed, is one more case of the forces view.
 
     Cost: O(p n) for p mechanisms and n joints, plus one view search per mode.
     """
@@ -209,6 +243,16 @@ def render_report(result: AuditResult, bracing=None, forces=None) -> str:
                                   f"element early")
     doc = report_document(result, bracing)
     doc["loads"] = None if forces is None else forces_document(forces)
+    doc["restraints"] = None
+    if restraints is not None and restraints.chords:
+        doc["restraints"] = restraints_document(restraints)
+        solved = restraints.restraint_forces
+        if solved is not None and doc["loads"] is not None:
+            case = forces_document(solved)["cases"][0]
+            case["name"] = f"restraint forces ({100 * restraints.fraction:.4g} %)"
+            case["kind"] = "restraint"
+            doc["restraints"]["case"] = len(doc["loads"]["cases"])
+            doc["loads"]["cases"].append(case)
     parts = {"STYLE": style, "SCRIPT": script, "DATA": script_json(doc), **page_text(doc)}
     # one pass: text put in is never searched again for markers
     return _MARK.sub(lambda m: parts[m.group(1) or m.group(2)], asset("template.html"))
@@ -227,7 +271,7 @@ def page_text(doc: dict) -> dict:
     dict of str
         ``PAGE_TITLE``, ``TITLE``, ``SOURCE``, ``VERDICT``, ``CAUTION``,
         ``COUNTS``, ``MECH_SUMMARY``, ``MECHANISMS``, ``STRESS_SUMMARY``,
-        ``STATES``, ``BRACING``, ``KEY_SUMMARY``, ``KEY_MEMBERS``,
+        ``STATES``, ``BRACING``, ``RESTRAINTS``, ``KEY_SUMMARY``, ``KEY_MEMBERS``,
         ``CAUTIONS``, ``FOOTER``.
     """
     a = doc["audit"]
@@ -263,6 +307,8 @@ def page_text(doc: dict) -> dict:
                 "- compression (it pushes).")
     key = a["key_members"] or []
     cautions = [a["caution"], *doc["limits"], *(a["warnings"] or [])]
+    if doc.get("restraints"):
+        cautions.append(doc["restraints"]["caution"])
     if (a.get("rank_decision") or {}).get("narrow"):
         cautions.append("The rank decision was narrow: the result is sensitive to the "
                         "geometry's precision.")
@@ -294,6 +340,7 @@ def page_text(doc: dict) -> dict:
                   (_forces(st["compression"], st["more_compression"]), "ids")])
             for i, st in enumerate(doc["states"])),
         "BRACING": _bracing_html(doc["bracing"], a["units"]) if doc["bracing"] else "",
+        "RESTRAINTS": _restraints_html(doc.get("restraints")),
         "KEY_SUMMARY": e(
             "No key member: every member takes part in some state of self-stress, so losing "
             "any single one leaves no new mechanism." if not key else
@@ -342,3 +389,49 @@ def _bracing_html(b: dict, units: str) -> str:
             '<th>length</th><th>where</th><th>modes acted on</th></tr></thead><tbody>\n'
             + "\n".join(rows) + "\n</tbody></table>\n"
             f'    <p id="bracing-caution" class="caution">{e(b["caution"])}</p>\n  </section>')
+
+
+def _restraints_html(d: dict | None, most: int = 40) -> str:
+    """The chords' section: the verdict read with continuous chords, where restraint points
+    are missing, a table of chords (longest unrestrained length first), the caution."""
+    if not d:
+        return ""
+    e = html.escape
+    u = d["units"]
+    dirs = list(dict.fromkeys(k for c in d["chords"] for k in c["longest"]))
+    head = "".join(f"<th>longest {e(k)} ({e(u)})</th><th>points {e(k)}</th>" for k in dirs)
+    if d["cases"]:
+        head += f"<th>largest compression ({e(d['force_units'])})</th>"
+    rows = []
+    dp = fixed_decimals([d["size"]])
+    for c in d["chords"][:most]:
+        cells = [(c["span"], "ids"), (c["joints"], "num"), (f"{c['length']:.{dp}f}", "num")]
+        for k in dirs:
+            got = c["longest"].get(k)
+            cells += [(f"{got:.{dp}f}" if got is not None else "-", "num"),
+                      (c["counts"].get(k, "-"), "num")]
+        if d["cases"]:
+            pairs = [(v, n) for v, n in zip(c["compression"], d["cases"]) if v]
+            cells.append(f"{max(pairs)[0]:.4g} ({max(pairs)[1]})" if pairs else "none")
+        rows.append(_row(cells))
+    more = len(d["chords"]) - most
+    if more > 0:
+        rows.append(_row([f"... and {more} more chords (spaceframe restraints --all lists "
+                          f"them)"]))
+    why = "".join(f"<li>{e(w)}</li>" for w in d["why"])
+    case = ""
+    if d.get("case") is not None:
+        pct = f"{100 * d['fraction']:.4g} %"
+        case = ('    <p id="restraint-case">The restraint-force case (' + e(pct) + " of each "
+                "compressed chord's compression, applied sideways at its restraint points) is "
+                "among the load cases of the 3D view.</p>\n")
+    return ('  <section id="restraints-section">\n    <h2>Chords and restraint points</h2>\n'
+            f'    <p id="restraints-verdict" class="verdict{" held" if d["held"] else ""}">'
+            f'{e(d["verdict"])}</p>\n'
+            + (f'    <ul id="restraints-why">{why}</ul>\n' if why else "")
+            + case
+            + f'    <table id="chords"><thead><tr><th>chord</th><th>joints</th><th>length '
+              f'({e(u)})</th>{head}</tr></thead><tbody>\n' + "\n".join(rows)
+            + "\n</tbody></table>\n"
+              f'    <p id="restraints-caution" class="caution">{e(d["caution"])}</p>\n'
+              "  </section>")

@@ -77,6 +77,17 @@ def _canvas(page) -> np.ndarray:
     return np.asarray(Image.open(io.BytesIO(png)).convert("RGB"))
 
 
+def _colours_after(page, act, rgb, *, within: int) -> bool:
+    """After ``act()`` the canvas has changed and more than 30 of its pixels lie within
+    ``within`` of the colour ``rgb``."""
+    before = _canvas(page)
+    act()
+    page.wait_for_timeout(150)
+    after = _canvas(page)
+    near = np.abs(after.astype(int) - np.array(rgb)).max(axis=2) < within
+    return bool(near.sum() > 30 and np.abs(after.astype(int) - before.astype(int)).sum() > 0)
+
+
 def test_report_opens_clean_draws_and_animates(browser, tmp_path):
     result = spaceframe.audit(spaceframe.load(MODELS / "canopy_sway.toml"))
     page, errors, requests, path = _open(browser, render_report(result), tmp_path)
@@ -248,17 +259,54 @@ def test_load_case_selector_colours_members_by_force(browser, tmp_path):
         assert page.locator("#cases tbody tr").count() == len(forces.names)
         assert "not carried" in page.inner_text("#cases-summary")
         assert page.is_disabled("#case-list button >> nth=1")
-        before = _canvas(page)
-        page.click("#case-list button >> nth=0")
-        page.wait_for_timeout(150)
-        after = _canvas(page)
-        blue = np.array([0x1d, 0x5f, 0xa6])       # the compression colour at full strength
-        near = np.abs(after.astype(int) - blue).max(axis=2) < 40
-        assert near.sum() > 30 and np.abs(after.astype(int) - before.astype(int)).sum() > 0
+        # the compression colour at full strength
+        assert _colours_after(page, lambda: page.click("#case-list button >> nth=0"),
+                              [0x1d, 0x5f, 0xa6], within=40)
         assert "tension (kN)" in page.inner_text("#legend")
         assert "competent engineer" in page.inner_text("#forces-caution")
         ARTIFACTS.mkdir(exist_ok=True)
         page.screenshot(path=str(ARTIFACTS / "report_canopy_forces.png"), full_page=False)
+        assert errors == []
+    finally:
+        page.close()
+
+
+def test_chords_coloured_by_unrestrained_length_and_restraint_case(browser, tmp_path):
+    """The roof of flat trusses with bottom ties at L2 and L4 into braced end bays (the
+    restraint tests' roof): out of plane the bottom chords run 4000 mm between restraint
+    points, the top chords 2000 mm (derived there).  The chords view colours them by that
+    length and marks the restraint points; the restraint-force case is one more load case."""
+    from common.roofs import roof
+    from spaceframe.analysis.restraints import restraints
+    from spaceframe.loads import LoadCase, LoadSet
+
+    base = roof(["L2", "L4"])
+    tops = [j for j in base.joint_ids if ".U" in j]
+    loads = LoadSet(cases=(LoadCase("roof", tuple(tops), [[0.0, 0.0, -2.0]] * len(tops)),))
+    frame = Frame(**{**{k: getattr(base, k) for k in (
+        "joint_ids", "coords", "member_ids", "ends", "restraint_joint", "restraint_dir",
+        "units", "joint_tags", "member_tags", "name")}, "loads": loads})
+    result = spaceframe.audit(frame)
+    forces = spaceframe.forces(frame)
+    held = restraints(frame, chords="role=chord", fraction=0.02, audit=result, forces=forces)
+    page, errors, requests, path = _open(browser, render_report(result, None, forces, held),
+                                         tmp_path)
+    try:
+        assert requests == [path.as_uri()]
+        assert "HELD WITH CONTINUOUS CHORDS" in page.inner_text("#restraints-verdict")
+        assert page.locator("#chords tbody tr").count() == 10
+        assert page.locator("#case-list button").count() == 2
+        # the longest length's colour (4000 mm)
+        assert _colours_after(page, lambda: page.evaluate("window.spaceframeViewer.chooseChords()"),
+                              [0x7a, 0x1f, 0x5c], within=30)
+        assert "restraint points" in page.inner_text("#legend")
+        assert "4000 mm" in page.inner_text("#legend")
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.screenshot(path=str(ARTIFACTS / "report_roof_chords.png"), full_page=False)
+        page.evaluate("window.spaceframeViewer.chooseCase(1)")
+        page.wait_for_timeout(150)
+        assert "restraint forces (2 %)" in page.inner_text("#legend")
+        page.screenshot(path=str(ARTIFACTS / "report_roof_restraint_case.png"), full_page=False)
         assert errors == []
     finally:
         page.close()

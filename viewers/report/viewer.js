@@ -12,6 +12,7 @@
     member: "#5d6b75", movingMember: "#0072b2", movingJoint: "#d55e00", joint: "#3a3a3a",
     support: "#009e73", ghost: "#c4c4c4", pick: "#cc79a7", brace: "#e69f00",
     compression: [0x1d, 0x5f, 0xa6], zero: [0xe3, 0xe3, 0xe3], tension: [0xc2, 0x5a, 0x12],
+    short: [0xbf, 0xe3, 0xd0], long: [0x7a, 0x1f, 0x5c], point: "#1a1a1a",
   };
 
   // ---- small DOM helpers ------------------------------------------------------------
@@ -32,9 +33,16 @@
     return X.length ? (lo + hi) / 2 : 0;
   });
   const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
-  const show = { mode: -1, state: -1, loadcase: -1, t0: 0, picked: null, bracing: false };
+  const show = { mode: -1, state: -1, loadcase: -1, t0: 0, picked: null, bracing: false, chords: false };
   const bracing = doc.bracing;
   const loads = doc.loads;                        // null for a model without load cases
+  const chords = doc.restraints;                  // null without chords
+  // each chord member's unrestrained length, and the chords' restraint points
+  const segment = new Map(), points = new Set();
+  if (chords) for (const c of chords.chords) {
+    c.members.forEach((k, i) => segment.set(k, c.segments[i]));
+    for (const j of c.points) points.add(j);
+  }
   function fmt(v) { return (v > 0 ? "+" : "") + Number(v.toPrecision(4)) + " " + loads.force_units; }
   let animating = false;
 
@@ -71,6 +79,11 @@
         cy - s * (d[0] * b.up[0] + d[1] * b.up[1] + d[2] * b.up[2]),
         d[0] * b.back[0] + d[1] * b.back[1] + d[2] * b.back[2]];
     };
+  }
+
+  function lengthColour(f) {
+    const c = COLOUR.short.map((v, i) => Math.round(v + (COLOUR.long[i] - v) * Math.max(0, Math.min(1, f))));
+    return "rgb(" + c.join(",") + ")";
   }
 
   function forceColour(t) {
@@ -115,6 +128,13 @@
       const a = E[k][0], b = E[k][1];
       let key = 1, colour = COLOUR.member, width = 2.5;
       if (moving && (moving[a] || moving[b])) { key = 2; colour = COLOUR.movingMember; width = 3.5; }
+      if (show.chords) {
+        const len = segment.get(k);
+        if (len !== undefined) {
+          const q = Math.round(16 * len / (chords.longest || 1));
+          key = 200 + q; colour = lengthColour(q / 16); width = 4.5;
+        } else { key = 0; colour = COLOUR.ghost; width = 1.5; }
+      }
       if (forces) {
         const t = forces[k];
         if (Math.abs(t) > 1e-6) {
@@ -154,6 +174,12 @@
       ctx.stroke(); ctx.setLineDash([]);
     }
     drawSupports(P, now);
+    if (show.chords) {                                // restraint points: dark squares, white rim
+      ctx.fillStyle = COLOUR.point; ctx.strokeStyle = "#ffffff"; ctx.lineWidth = 1.5;
+      for (const j of points) {
+        ctx.beginPath(); ctx.rect(now[j][0] - 5, now[j][1] - 5, 10, 10); ctx.fill(); ctx.stroke();
+      }
+    }
     // joints: one path per colour on a large frame (only moving and picked joints stand out)
     const bigJ = now.length > 4000;
     const plain = [], moved = [];
@@ -227,7 +253,9 @@
     } else {
       const [a, b] = E[best.index];
       let text = "member " + geo.members[best.index] + ": " + geo.joints[a] + " to " + geo.joints[b];
-      if (show.state >= 0) {
+      if (show.chords && segment.has(best.index)) {
+        text += "; unrestrained length " + Number(segment.get(best.index).toPrecision(4)) + " " + chords.units;
+      } else if (show.state >= 0) {
         const t = geo.forces[show.state][best.index];
         text += "; force " + (t > 0 ? "+" : "") + t.toFixed(3) + (t > 1e-6 ? " tension" : t < -1e-6 ? " compression" : " (none)");
       } else if (show.loadcase >= 0) {
@@ -285,28 +313,35 @@
   const buttons = [];
   function press(active) { for (const b of buttons) b.setAttribute("aria-pressed", String(b === active)); }
   function chooseMode(i, button) {
-    show.mode = i; show.state = -1; show.loadcase = -1; show.t0 = performance.now();
+    show.chords = false; show.mode = i; show.state = -1; show.loadcase = -1; show.t0 = performance.now();
     fit(geo.views[i]);
     press(button);
     legend();
     if (!animating) { animating = true; requestAnimationFrame(draw); }
   }
   function chooseState(i, button) {
-    show.mode = -1; show.state = i; show.loadcase = -1; animating = false;
+    show.chords = false; show.mode = -1; show.state = i; show.loadcase = -1; animating = false;
     fit(geo.rest_view);
     press(button);
     legend();
     draw();
   }
   function chooseCase(i, button) {
-    show.mode = -1; show.state = -1; show.loadcase = i; animating = false;
+    show.chords = false; show.mode = -1; show.state = -1; show.loadcase = i; animating = false;
+    fit(geo.rest_view);
+    press(button);
+    legend();
+    draw();
+  }
+  function chooseChords(button) {
+    show.mode = -1; show.state = -1; show.loadcase = -1; show.chords = true; animating = false;
     fit(geo.rest_view);
     press(button);
     legend();
     draw();
   }
   function atRest() {
-    show.mode = -1; show.state = -1; show.loadcase = -1; animating = false; press(null); legend(); draw();
+    show.chords = false; show.mode = -1; show.state = -1; show.loadcase = -1; animating = false; press(null); legend(); draw();
   }
 
   function fillLists() {
@@ -327,6 +362,14 @@
       buttons.push(b); li.appendChild(b); sl.appendChild(li);
     });
     if (loads) fillCases();
+    if (chords) {
+      document.getElementById("chord-controls").hidden = false;
+      const b = document.getElementById("chords-toggle");
+      b.textContent = "Unrestrained lengths (" + chords.chords.length + " chords, " +
+        chords.chords[0].direction + ")";
+      b.addEventListener("click", () => chooseChords(b));
+      buttons.push(b);
+    }
     if (bracing) fillBracing();
     document.getElementById("rest").addEventListener("click", atRest);
     document.getElementById("fit").addEventListener("click", () => {
@@ -402,6 +445,15 @@
       d.appendChild(el("span", "+" + top + " tension (" + loads.force_units + ")"));
       box.appendChild(d);
       entries.push([COLOUR.ghost, "light grey, thin: carries nothing in case " + c.name]);
+    } else if (show.chords) {
+      const d = el("div"), ramp = el("span", null, "ramp");
+      ramp.style.background = "linear-gradient(to right, " + lengthColour(0) + ", " + lengthColour(1) + ")";
+      d.appendChild(el("span", "0")); d.appendChild(ramp);
+      d.appendChild(el("span", Number(chords.longest.toPrecision(4)) + " " + chords.units +
+        ": unrestrained length " + chords.chords[0].direction));
+      box.appendChild(d);
+      entries.push([COLOUR.point, "dark squares: restraint points"],
+        [COLOUR.ghost, "light grey, thin: members of no chord"]);
     } else if (show.mode >= 0) {
       entries.push([COLOUR.movingJoint, "vermillion: joints that move"],
         [COLOUR.movingMember, "blue: members at them"]);
@@ -432,6 +484,7 @@
     },
     chooseMode(i) { chooseMode(i, buttons[i]); },
     chooseCase(i) { chooseCase(i, buttons.find(b => b.dataset.loadcase === String(i))); },
+    chooseChords() { chooseChords(document.getElementById("chords-toggle")); },
     bracingShown() { return show.bracing; },
     atRest,
   };
