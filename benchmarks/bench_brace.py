@@ -10,9 +10,13 @@ candidates are the removed diagonals and the diagonals of the grid's planar pane
     python benchmarks/bench_brace.py [--quick]
 
 Prints a table: time to audit the frame as given, to gather the candidates, to select
-(reaches and the greedy pass), to re-audit the braced frame, with the target beside.  Then
-the layout rules (:mod:`spaceframe.analysis.bracing.layout`) on the same candidates, side
-by side with the default: for each, the rules' preparation (costs, filters, groups), the
+(reaches and the greedy pass), to re-audit the braced frame, with the target beside; then
+the robust proposal (no added member whose loss brings a mechanism back) beside the
+default one: its selection (the greedy pass, the exact search up to its limit, the greedy
+augmentation), the key-member check and the re-audit, with the ratio of each to the
+default's, and the robust set's size and cost against the least-cost basis.  Then the
+layout rules (:mod:`spaceframe.analysis.bracing.layout`) on the same candidates, side by
+side with the default: for each, the rules' preparation (costs, filters, groups), the
 reaches and the choice, its ratio to the default, the count chosen and what the re-audit
 leaves.  The grid's members are tagged with a bay (10 bays of 5 grid spacings along x) so
 that the braced-bay rules have bays to work on.
@@ -30,6 +34,8 @@ from spaceframe.analysis.bracing import (braced_frame, find_candidates, greedy_b
                                          reach_rows)
 from spaceframe.analysis.bracing import layout
 from spaceframe.analysis.bracing.layout import LayoutRules
+from spaceframe.analysis.bracing.robust import robust_elements
+from spaceframe.analysis.bracing.rules import coloops
 from spaceframe.analysis.bracing.selection import _s_max
 from spaceframe.families import double_layer_grid
 
@@ -108,8 +114,50 @@ def main():
     total = select + reaudit
     print(f"{'selection + re-audit':32s} {total:8.2f}   target <= {TARGET:.0f} s: "
           f"{'met' if total <= TARGET else 'NOT met'}")
+    robust_side_by_side(frame, cand, before, U, opts)
     print()
     layout_table(frame, cand, Q, k, opts)
+
+
+def robust_side_by_side(frame, cand, before, U, opts, repeats: int = 3):
+    """The default and the robust proposal on the same reaches, medians of ``repeats``."""
+    threshold = 1e-6 * _s_max(frame)
+    Q, _ = np.linalg.qr(U)
+    reach = np.asarray(reach_rows(frame, cand) @ Q)
+    order = cand.order()
+    times = {key: [] for key in ("default select", "robust select", "default key",
+                                 "robust key", "default re-audit", "robust re-audit")}
+    for _ in range(repeats):
+        t = time.perf_counter()
+        basis = greedy_basis(reach, order, threshold)
+        times["default select"].append(time.perf_counter() - t)
+        t = time.perf_counter()
+        basis_r = greedy_basis(reach, order, threshold)
+        rc = robust_elements(reach, order, cand.cost, cand.is_member, basis_r, threshold)
+        times["robust select"].append(time.perf_counter() - t)
+        for name, chosen in (("default", basis), ("robust", list(rc.elements))):
+            t = time.perf_counter()
+            _, key = coloops(reach[chosen], threshold)
+            times[f"{name} key"].append(time.perf_counter() - t)
+            t = time.perf_counter()
+            after = audit(braced_frame(frame, cand, chosen), **opts)
+            times[f"{name} re-audit"].append(time.perf_counter() - t)
+            if name == "robust":
+                assert after.mechanisms == 0 and not key.any()
+    med = {k: float(np.median(v)) for k, v in times.items()}
+    cost = lambda ids: float(cand.cost[list(ids)].sum())  # noqa: E731
+    print()
+    print(f"robust proposal ({rc.method}; exact search looked at {rc.searched} subsets): "
+          f"{len(rc.elements)} members against {len(basis)}, cost {cost(rc.elements):.1f} "
+          f"against {cost(basis):.1f} ({cost(rc.elements) / cost(basis):.2f} x); "
+          f"medians of {repeats}")
+    print(f"{'step':22s} {'default s':>10s} {'robust s':>10s} {'ratio':>7s}")
+    for step in ("select", "key", "re-audit"):
+        a, b = med[f"default {step}"], med[f"robust {step}"]
+        print(f"{step:22s} {a:10.3f} {b:10.3f} {b / a:7.1f}")
+    a = sum(med[f"default {s}"] for s in ("select", "key", "re-audit"))
+    b = sum(med[f"robust {s}"] for s in ("select", "key", "re-audit"))
+    print(f"{'total':22s} {a:10.3f} {b:10.3f} {b / a:7.1f}")
 
 
 def layout_table(frame, cand, Q, k, opts, repeats: int = 3):

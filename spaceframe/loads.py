@@ -21,10 +21,17 @@ import numpy as np
 from .errors import ModelError
 from .suggest import did_you_mean
 
-__all__ = ["LoadCase", "Combination", "LoadSet", "AppliedLoads", "FORCE_UNITS", "SELF_WEIGHT"]
+__all__ = ["LoadCase", "Combination", "LoadSet", "AppliedLoads", "FORCE_UNITS", "SELF_WEIGHT",
+           "NOTIONAL_FRACTION"]
 
 #: Units of force a model may declare (a label only: results scale with the loads).
 FORCE_UNITS = ("N", "kN", "MN", "lbf", "kip")
+
+#: The notional fraction used where the model gives none (a bracing proposal's forces):
+#: 1/200 of the vertical load at each joint, the order of the initial sway imperfection
+#: common practice uses for frames (recalled, not taken from any one code).  An
+#: assumption: the local code sets the value.
+NOTIONAL_FRACTION = 1 / 200
 
 #: The name of the self-weight case.
 SELF_WEIGHT = "self_weight"

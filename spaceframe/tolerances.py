@@ -57,6 +57,11 @@ class Limits:
         ``free_coordinates x mechanisms`` array) when ``free_coordinates *
         mechanisms > split_basis``, as one dense array otherwise.  The two give
         the same modes to rounding.  Default ``1_000_000``.
+    robust_search : int
+        A robust bracing proposal (no added item whose loss brings a
+        mechanism back) is searched for exactly, subsets in order of cost,
+        while ``subsets seen <= robust_search``; above, it is the greedy
+        augmentation of the least-cost basis.  Default ``20_000``.
     """
 
     dense_engine: int = 100_000
@@ -65,6 +70,7 @@ class Limits:
     dense_soft: int = 1_500
     common_prestress: int = 12
     split_basis: int = 1_000_000
+    robust_search: int = 20_000
 
 
 @dataclass(frozen=True)

@@ -116,15 +116,29 @@ def _compare(result, frame, path):
 def _csv_text(doc: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
+    units = (doc["forces"] or {}).get("force_units", "force")
     w.writerow(["item", "id", "start", "end", "joint", "direction",
-                f"length_{doc['units']}", "location", "modes"])
+                f"length_{doc['units']}", "location", "modes", "carries", "key",
+                f"tension_max_{units}", "tension_case", f"compression_max_{units}",
+                "compression_case", "slack_in"])
+
+    def forces(x):
+        f = x.get("forces")
+        if f is None:
+            return ["", "", "", "", ""]
+        t, c = f["tension"] or ["", ""], f["compression"] or ["", ""]
+        num = lambda v: f"{v:.6g}" if v != "" else ""  # noqa: E731
+        return [num(t[0]), t[1], num(c[0]), c[1], "; ".join(f.get("slack", []))]
+
     for a in doc["added"]:
         w.writerow(["member", a["id"], a["ends"][0], a["ends"][1], "", "",
-                    f"{a['length']:.6g}", a["location"], " ".join(map(str, a["modes"]))])
+                    f"{a['length']:.6g}", a["location"], " ".join(map(str, a["modes"])),
+                    a["carries"], "key" if a["key"] else "", *forces(a)])
     for x in doc["restraints_added"]:
         w.writerow(["restraint", "", "", "", x["joint"],
                     x["axis"] or " ".join(f"{v:.6g}" for v in x["direction"]), "", "",
-                    " ".join(map(str, x["modes"]))])
+                    " ".join(map(str, x["modes"])), "both", "key" if x["key"] else "",
+                    *forces(x)])
     return buf.getvalue()
 
 
@@ -179,7 +193,14 @@ def _csv_text(doc: dict) -> str:
               help="Audit the designer's scheme (a braced model, or a CSV of members "
                    "start,end) beside the proposal.")
 @click.option("--tension-only", is_flag=True,
-              help="Rods that carry tension only: a chosen panel gets both diagonals.")
+              help="The braces are rods that carry tension only (tagged carries = tension): "
+                   "a chosen panel gets both diagonals, and the proposal is re-audited with "
+                   "the rods acting one way.")
+@click.option("--robust", is_flag=True,
+              help="Propose a set that stays held after the loss of any one added member "
+                   "(exact search on small candidate sets, greedy augmentation above).")
+@click.option("--no-forces", is_flag=True,
+              help="Leave out the forces in the added members under the load cases.")
 @click.option("--alternatives", default=3, show_default=True, type=click.IntRange(0, 50),
               help="Alternative sets of the same size to look for.")
 @supports_option
@@ -189,7 +210,7 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
                   candidates_path,
                   exclude_box, exclude_bay, exclude_panel, restraints, attach, ties_first,
                   costs, braced_bays, symmetric, planes, allow_rakers, compare_path,
-                  tension_only, alternatives, supports, force, debug):
+                  tension_only, robust, no_forces, alternatives, supports, force, debug):
     """Recommend the fewest, then shortest, bracing members (and restraints) that remove
     every mechanism of the frame in MODEL, and re-audit the braced frame.
 
@@ -197,10 +218,15 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
     of every wall panel closed by the ground; in a frame of frames (extruded), ties
     between corresponding joints of adjacent frames and the diagonals of the panels they
     close; more with --within and --candidates.
-    The selection is exact (greedy over a linear matroid); layout rules
-    (--braced-bays, --symmetric, --planes, the clear space at floor level,
-    --ties-first, --cost) keep it within what they allow, and the output says
-    how each filter matched and whether the choice under them is exact.
+    The selection is exact (greedy over a linear matroid).  With one-way members
+    (--tension-only, or members tagged carries in the model) it is greedy + repair under
+    Roth & Whiteley's test; --robust says whether its search was exact or greedy.
+    The forces in what is added are given under the model's load cases (and notional
+    horizontal loads).
+    Layout rules (--braced-bays, --symmetric, --planes, the clear space at
+    floor level, --ties-first, --cost) keep the choice within what they allow,
+    and the output says how each filter matched and whether the choice under
+    them is exact.
 
     Caution: an idealised pin-jointed model; the bracing scheme is to be
     checked by a competent engineer under the local codes.
@@ -246,7 +272,8 @@ def brace_command(model, as_json, csv_path, write_path, no_panels, no_ties, with
             frame, panels=not no_panels, ties=not no_ties, within=within, listed=listed,
             restraints=restraints, attachable=attach_joints, attach_directions=attach_dirs,
             exclude_boxes=boxes, exclude_bays=exclude_bay, exclude_panels=panels,
-            tension_only=tension_only, alternatives=alternatives, layout=rules)
+            tension_only=tension_only, robust=robust, forces=not no_forces,
+            alternatives=alternatives, layout=rules)
         if write_path:
             save(result.braced, write_path, overwrite=force, inputs=inputs)
         comparison = _compare(result, frame, compare_path) if compare_path else None

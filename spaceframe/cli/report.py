@@ -16,7 +16,8 @@ __all__ = ["report_command"]
               help="The HTML file to write.")
 @click.option("--bracing/--no-bracing", default=True, show_default=True,
               help="For a frame with mechanisms, include the bracing proposal of "
-                   "`spaceframe brace` (default candidates) and the audit after it.")
+                   "`spaceframe brace` (default candidates) and the audit after it, with the "
+                   "robust proposal (`brace --robust`) beside it.")
 @chords_option
 @click.option("--restraint-fraction", "fraction", type=float, default=None, metavar="F",
               help="With load cases: add the restraint-force case (F x each compressed "
@@ -46,17 +47,19 @@ def report_command(model, out, bracing, chords, fraction, supports, force, debug
                             what="a report")
         frame = supports_for(load(model), model, supports)
         result = audit(frame)
-        proposal = None
+        proposal = robust = None
         if bracing and not result.stable:
             from ..analysis.bracing import recommend_bracing
             proposal = recommend_bracing(frame)
+            robust = recommend_bracing(frame, robust=True)
         loads = None
         if frame.loads is not None:
             from .. import forces
             loads = forces(frame)
         from ..analysis.restraints import restraints
         held = restraints(frame, chords=chords, fraction=fraction, audit=result, forces=loads)
-        write_text(path, render_report(result, proposal, loads, held), overwrite=force)
+        write_text(path, render_report(result, proposal, loads, held, robust=robust),
+                   overwrite=force)
         click.echo(f"spaceframe: wrote {path}", err=True)
 
     run_guarded(job, debug=debug)

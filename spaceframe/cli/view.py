@@ -39,7 +39,7 @@ def view_command(model, bracing, supports, debug):
         proposal = None
         if bracing and not result.stable:
             from ..analysis.bracing import recommend_bracing
-            proposal = recommend_bracing(frame)
+            proposal = recommend_bracing(frame, forces=False)
         DeskViewer(result, proposal).show()
 
     run_guarded(job, debug=debug)

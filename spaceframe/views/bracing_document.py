@@ -15,13 +15,15 @@ import numpy as np
 from ..analysis.bracing import BRACING_CAUTION
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
 from ..analysis.bracing.layout import candidate_kind, plane_kind
+from ..analysis.bracing.rules import rods_of
 from ..naming import count, join_words
 from ..results import CAUTION
 from ..supports import AXES
-from ..tolerances import DISPLAY
+from ..tolerances import DEFAULT, DISPLAY
 
 __all__ = ["bracing_document", "candidate_entry", "location", "remedy_text", "bracing_notes",
-           "filter_lines", "layout_text", "bay_name", "compare_document"]
+           "filter_lines", "layout_text", "bay_name", "compare_document", "forces_section",
+           "force_note"]
 
 #: A panel is horizontal (vertical) when the vertical component of its unit normal is above
 #: ``axis_plane`` (below ``1 - axis_plane``); otherwise its pitch is given.  A plane is named
@@ -224,8 +226,13 @@ def bracing_notes(r) -> list[str]:
     if r.restraints_used and not len(r.frame.restraint_joint):
         notes.append("the frame has no support: restraint candidates stand at every joint")
     if r.tension_only:
-        notes.append("tension-only bracing: each chosen panel gets both diagonals, one for each "
-                     "racking direction; a rod carries no compression")
+        paired = any(r.candidates.partner[i] in set(r.chosen) for i in r.members_added)
+        notes.append("tension-only bracing: the added braces are rods (tagged carries = "
+                     "tension in the braced model) that go slack in compression"
+                     + ("; each chosen panel gets both diagonals, one for each racking "
+                        "direction" if paired else "")
+                     + "; ties and restraints carry both ways")
+    notes += _rule_notes(r)
     if r.after.mechanisms > r.expected_after:
         notes.append(f"the re-audit finds {r.after.mechanisms} mechanisms where the selection "
                      f"expected {r.expected_after}: the rank decision is close; check the braced "
@@ -248,6 +255,165 @@ def _layout_entry(c):
             "mirrors": [{"axis": ax, "at": v} for ax, v in c.mirrors]}
 
 
+def _ids(r, items) -> list[str]:
+    """Names of chosen candidates: a member's id in the braced frame, a restraint's joint."""
+    mid = dict(zip(r.members_added, r.added_ids))
+    return [mid[i] if i in mid else f"{r.frame.joint_ids[r.candidates.joint[i]]} restraint"
+            for i in items]
+
+
+def _rule_notes(r) -> list[str]:
+    """What the member rules did: needed ties, the one-way rule, key items, robustness."""
+    notes, rules = [], r.rules
+    if rules.ties:
+        notes.append(f"a chosen diagonal needs the ties that close its panel: "
+                     f"{count(len(rules.ties), 'tie')} added with it "
+                     f"({join_words(_ids(r, rules.ties), most=8)})")
+    if rules.one_way:
+        text = ("one-way members: the proposal is chosen and re-audited with them acting one "
+                "way only (Roth & Whiteley's test). Method: greedy + repair: the least-cost "
+                "basis that holds the frame with every member two-way, then, while the test "
+                "finds a motion that slackens one-way members, the cheapest candidate that "
+                "resists it; held whenever the candidates together can hold it, not proven the "
+                "cheapest")
+        if rules.repaired:
+            text += (f"; the repair added {count(len(rules.repaired), 'item')} "
+                     f"({join_words(_ids(r, rules.repaired), most=8)})")
+        if not rules.held:
+            text += ("; the candidates cannot "
+                     + ("keep it held after the loss of every single added member"
+                        if r.robust is not None and r.after.stable else
+                        "hold it with its one-way members acting one way")
+                     + ": allow more (--within, --candidates)")
+        notes.append(text)
+    key = [i for i, k in zip(r.chosen, rules.key) if k]
+    if r.robust is None and key and len(key) == len(r.chosen) and r.after.stable:
+        back = ("a mechanism back, or a motion that slackens one-way members"
+                if rules.one_way else "a mechanism back")
+        notes.append(f"every added member is key: losing any one brings {back} (--robust "
+                     f"proposes a set that stays held after the loss of any one)"
+                     if len(key) > 1 else
+                     f"the added member is key: losing it brings {back} (--robust proposes "
+                     f"a set that stays held after the loss of any one)")
+    elif r.robust is None and key:
+        notes.append(f"{count(len(key), 'added item is', 'added items are')} key (losing one "
+                     f"brings a mechanism back): {join_words(_ids(r, key), most=8)}")
+    if r.robust is not None:
+        notes.append(_robust_note(r, key))
+    return notes
+
+
+def _robust_note(r, key) -> str:
+    b = r.robust
+    parts = (f", in {b.parts} independent parts" if b.parts > 1 else "")
+    how = (f"exact: the cheapest such set ({count(b.searched, 'subset')} of the candidates "
+           f"searched in order of cost{parts})" if b.method == "exact" else
+           "greedy + repair: a set robust with every member two-way, then what the one-way "
+           "repair adds while the loss of one member leaves a motion that slackens one-way "
+           "members; not proven the cheapest" if b.method == "repair" else
+           f"greedy augmentation of the least-cost basis (the exact search stopped after "
+           f"{count(b.searched, 'subset')}"
+           + (f"; exact in {b.exact_parts} of its {b.parts} independent parts"
+              if b.parts > 1 and b.exact_parts else "")
+           + "): not proven the cheapest")
+    ratio = (f"; cost {r.cost:.3f} against {b.least_cost:.3f} for the least-cost basis "
+             f"({r.cost / b.least_cost:.2f} x)" if b.least_cost > 0 else "")
+    text = (f"robust: the braced frame stays held after the loss of any one added item; "
+            f"method {how}{ratio}")
+    if key:
+        text = (f"robust as far as the candidates allow: {join_words(_ids(r, key), most=8)} "
+                f"stay key (no candidate allowed makes good the loss of "
+                f"{'it' if len(key) == 1 else 'any of them'}: allow more with --within or "
+                f"--candidates); method {how}{ratio}")
+    return text
+
+
+def force_note(r, i: int, k: int, pf) -> str:
+    """The note beside added member ``k`` (candidate ``i``) in the forces table."""
+    t = pf.members[:, k]
+    slack = [n for n, s in zip(pf.names, pf.slack[:, k]) if s]
+    if slack:
+        c = r.candidates
+        p = int(c.partner[i])
+        mid = dict(zip(r.members_added, r.added_ids))
+        instead = (f"{mid[p]}, the other diagonal of its panel, carries the load then"
+                   if p in mid and not all(pf.slack[:, r.members_added.index(p)][
+                       [n in slack for n in pf.names]]) else
+                   "the rest of the frame carries the load then (forces shown with it slack)")
+        when = ("in every case" if len(slack) == len(pf.names) else
+                f"under {join_words(slack, most=4)}")
+        return f"rod: would be in compression, so goes slack, {when}; {instead}"
+    ok = pf.carried & np.isfinite(t)
+    comp = [n for n, v, c in zip(pf.names, t, ok) if c and v < -_zero(pf)]
+    if comp and len(comp) == int(ok.sum()):
+        return "compression in every case: check it for buckling"
+    if comp:
+        return f"compression under {join_words(comp, most=4)}: check it for buckling"
+    return ""
+
+
+def _zero(pf) -> float:
+    """What counts as no force: ``Tolerances.zero_force`` of the largest added force."""
+    finite = np.abs(pf.members[np.isfinite(pf.members)])
+    finite = np.r_[finite, np.abs(pf.restraints[np.isfinite(pf.restraints)])]
+    return DEFAULT.zero_force * (float(finite.max()) if finite.size else 0.0)
+
+
+def _extreme(values, names, sign):
+    """``[value, case]`` of the largest value of this sign, or None."""
+    best = None
+    for v, n in zip(values, names):
+        if np.isfinite(v) and sign * v > 0 and (best is None or sign * v > sign * best[0]):
+            best = [float(v), n]
+    return best
+
+
+def forces_section(r) -> dict | None:
+    """The forces part of the document: the cases and, per added item, its forces."""
+    pf = r.proposal_forces
+    if pf is None:
+        return None
+    z = _zero(pf)
+
+    def clean(v):
+        return None if not np.isfinite(v) else round(0.0 if abs(v) <= z else float(v), 6)
+
+    def entry(values, slack=None):
+        vals = [clean(v) for v in values]
+        out = {"cases": dict(zip(pf.names, vals)),
+               "tension": _extreme([v if v is not None else np.nan for v in vals], pf.names, 1),
+               "compression": _extreme([v if v is not None else np.nan for v in vals],
+                                       pf.names, -1)}
+        if slack is not None:
+            out["slack"] = [n for n, s in zip(pf.names, slack) if s]
+        return out
+
+    if pf.source == "unit":
+        basis = (f"no load case in the model: a vertical load of 1 {pf.force_units} at every "
+                 f"joint not held in every direction, with a notional horizontal load of "
+                 f"{pf.notional:.4g} of it at each joint in each direction; forces per unit "
+                 f"of vertical load, to scale")
+    elif pf.notional is not None:
+        basis = (f"the model's load cases, and a notional horizontal load of "
+                 f"{pf.notional:.4g} of each case's vertical load at each joint, in each "
+                 f"direction (the model declares no [notional] rule)")
+    else:
+        basis = "the model's load cases"
+    if pf.notional is not None:
+        basis += ("; the notional fraction is an assumption (1/200 of the vertical load, the "
+                  "order of the initial sway imperfection common practice uses): local codes "
+                  "set it")
+    return {"force_units": pf.force_units, "basis": basis, "source": pf.source,
+            "notional": pf.notional, "cases": list(pf.names),
+            "not_carried": [n for n, c in zip(pf.names, pf.carried) if not c],
+            "members": [dict(entry(pf.members[:, k], pf.slack[:, k]), id=mid,
+                             note=force_note(r, i, k, pf))
+                        for k, (mid, i) in enumerate(zip(r.added_ids, r.members_added))],
+            "restraints": [dict(entry(pf.restraints[:, k]),
+                                joint=r.frame.joint_ids[r.candidates.joint[i]])
+                           for k, i in enumerate(r.restraints_added)]}
+
+
 def bracing_document(r) -> dict:
     """The JSON document of ``spaceframe brace --json`` (plain Python types).
 
@@ -256,9 +422,24 @@ def bracing_document(r) -> dict:
     r : BracingResult
     """
     acts = dict(zip(r.chosen, r.acts_on))
-    added = [{"id": mid, **candidate_entry(r, i, acts[i])}
+    key = dict(zip(r.chosen, r.rules.key))
+    rods = set(rods_of(r.candidates, r.chosen, r.tension_only))
+    why = {**{i: "needed tie" for i in r.rules.ties},
+           **{i: "one-way repair" for i in r.rules.repaired}}
+    added = [{"id": mid, **candidate_entry(r, i, acts[i]),
+              "carries": "tension" if i in rods else "both", "key": bool(key.get(i, False)),
+              "added_for": why.get(i, "mechanisms")}
              for mid, i in zip(r.added_ids, r.members_added)]
+    restraints = [dict(candidate_entry(r, i, acts[i]), key=bool(key.get(i, False)))
+                  for i in r.restraints_added]
+    forces = forces_section(r)
+    if forces is not None:
+        for a, f in zip(added, forces["members"]):
+            a["forces"] = {k: v for k, v in f.items() if k != "id"}
+        for a, f in zip(restraints, forces["restraints"]):
+            a["forces"] = {k: v for k, v in f.items() if k != "joint"}
     b = r.before
+    rb = r.robust
     return {
         "name": r.frame.name, "source": r.frame.source, "units": r.frame.units,
         "before": {"mechanisms": b.mechanisms, "internal_mechanisms": b.internal_mechanisms,
@@ -271,8 +452,19 @@ def bracing_document(r) -> dict:
                     for kind, value, n in r.candidates.filters],
         "layout": _layout_entry(r.layout),
         "tension_only": r.tension_only,
+        "one_way": r.rules.one_way,
+        "one_way_held": None if r.after.one_way is None else bool(r.after.one_way.held),
+        "robust": None if rb is None else {
+            "method": rb.method, "searched": rb.searched, "parts": rb.parts,
+            "exact_parts": rb.exact_parts, "cost": round(r.cost, 6),
+            "least_cost": round(rb.least_cost, 6),
+            "ratio": round(r.cost / rb.least_cost, 6) if rb.least_cost > 0 else None,
+            "uncoverable": _ids(r, [i for i in rb.uncoverable if i in set(r.chosen)])},
         "added": added,
-        "restraints_added": [candidate_entry(r, i, acts[i]) for i in r.restraints_added],
+        "restraints_added": restraints,
+        "key": _ids(r, [i for i, k in zip(r.chosen, r.rules.key) if k]),
+        "forces": None if forces is None else {k: v for k, v in forces.items()
+                                               if k not in ("members", "restraints")},
         "members_added": len(added),
         "total_length": round(r.total_length, 6),
         "stable_after": r.after.stable,

@@ -35,21 +35,30 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
                  f"{doc['candidates']['restraints']} restraint directions")
     for line in filter_lines(r):
         lines.append(f"  {line}")
-    if not b.mechanisms:
+    if b.stable and not b.mechanisms:
         lines += ["", "Nothing to brace: the frame has no mechanism.", "",
                   "Caution: " + CAUTION]
         return "\n".join(lines) + "\n"
+    if not b.mechanisms:
+        lines.append("before: no mechanism with every member two-way, but not held with its "
+                     "one-way members acting one way")
     lines.append("")
     added = doc["added"]
     if added:
-        lines.append(f"Members to add ({len(added)}), the fewest and then the shortest that "
-                     f"remove what the candidates can:" if r.layout is None or r.layout.exact else
-                     f"Members to add ({len(added)}), chosen under the layout rules (see "
-                     f"Layout below):")
-        rows = [("id", "from", "to", f"length {units}", "where", "modes acted on")]
+        under_rules = r.layout is not None and not r.layout.exact
+        lines.append(f"Members to add ({len(added)}), "
+                     + ("that stay held after the loss of any one:" if r.robust is not None
+                        else "chosen under the layout rules (see Layout below):" if under_rules
+                        else "the fewest and then the shortest that remove what the "
+                             "candidates can" + (", with what the notes below add:"
+                                                 if r.rules.ties or r.rules.repaired else ":")))
+        rows = [("id", "from", "to", f"length {units}", "carries", "where", "modes acted on",
+                 "key")]
         rows += [(a["id"], name(a["ends"][0]), name(a["ends"][1]), f"{a['length']:.3f}",
-                  a["location"],
-                  _modes(a["modes"])) for a in added[:max_rows]]
+                  "tension only" if a["carries"] == "tension" else "both ways",
+                  a["location"] + ("" if a["added_for"] == "mechanisms" else
+                                   f" ({a['added_for']})"),
+                  _modes(a["modes"]), "key" if a["key"] else "-") for a in added[:max_rows]]
         lines += _table(rows)
         if len(added) > max_rows:
             lines.append(f"  ... and {len(added) - max_rows} more (see --json or --csv)")
@@ -58,8 +67,9 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     if doc["restraints_added"]:
         lines.append("")
         lines.append(f"Restraints to add ({len(doc['restraints_added'])}):")
-        rows = [("joint", "held direction", "modes acted on")]
-        rows += [(name(x["joint"]), x["axis"] or str(x["direction"]), _modes(x["modes"]))
+        rows = [("joint", "held direction", "modes acted on", "key")]
+        rows += [(name(x["joint"]), x["axis"] or str(x["direction"]), _modes(x["modes"]),
+                  "key" if x["key"] else "-")
                  for x in doc["restraints_added"][:max_rows]]
         lines += _table(rows)
     lines.append("")
@@ -81,8 +91,11 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
         lines.append(f"Layout: {how}")
     for note in doc["notes"]:
         lines.append(f"Note: {note}")
+    lines += _forces_lines(doc, max_rows)
     lines.append("")
-    lines.append("After re-audit of the braced frame: " + verdict(r.after))
+    lines.append("After re-audit of the braced frame"
+                 + (" (one-way members acting one way)" if r.after.one_way is not None else "")
+                 + ": " + verdict(r.after))
     remaining = doc["remaining"]
     if remaining:
         lines.append("")
@@ -125,6 +138,30 @@ def render_comparison(c) -> str:
                          f"(the load acts on a mechanism)")
     lines.append("  A key member carries no state of self-stress: losing it leaves a mechanism.")
     return "\n".join(lines) + "\n"
+
+
+def _forces_lines(doc, max_rows: int) -> list[str]:
+    """The forces in what is added: largest tension and compression over the cases."""
+    fs = doc["forces"]
+    if fs is None:
+        return []
+    u = fs["force_units"]
+    lines = ["", f"Forces in what is added ({u}; + tension, - compression), over "
+                 f"{len(fs['cases'])} cases: {fs['basis']}."]
+
+    def big(x):
+        return f"{x[0]:+.3f} ({x[1]})" if x else "-"
+
+    rows = [("item", "largest tension", "largest compression", "note")]
+    rows += [(a["id"], big(a["forces"]["tension"]), big(a["forces"]["compression"]),
+              a["forces"]["note"]) for a in doc["added"][:max_rows]]
+    rows += [(f"{x['joint']} {x['axis'] or 'restraint'}", big(x["forces"]["tension"]),
+              big(x["forces"]["compression"]), "reaction along the held direction")
+             for x in doc["restraints_added"][:max_rows]]
+    lines += _table(rows)
+    if fs["not_carried"]:
+        lines.append(f"  not carried by the braced frame: {', '.join(fs['not_carried'])}")
+    return lines
 
 
 def _table(rows) -> list[str]:

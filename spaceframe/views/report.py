@@ -58,13 +58,14 @@ def asset(name: str) -> str:
                               f"package: reinstall spaceframe") from None
 
 
-def report_document(result: AuditResult, bracing=None) -> dict:
+def report_document(result: AuditResult, bracing=None, robust=None) -> dict:
     """The JSON document the page reads: the audit, its verdict, and the geometry to draw.
 
     With ``bracing`` (a :class:`spaceframe.analysis.bracing.BracingResult` of the
     same frame) the document also holds the proposed members (their ends as
     joint indices, so the view can draw them), the restraints, and the verdict
-    and counts of the braced frame's audit.
+    and counts of the braced frame's audit; ``robust`` (the robust proposal of
+    the same frame) the same under ``bracing_robust``.
 
     ``geometry`` holds the frame in 3D (a plane frame's y becomes z), the
     mechanisms as ``(p, n, 3)`` arrays, the joints each one moves, the
@@ -118,6 +119,7 @@ def report_document(result: AuditResult, bracing=None) -> dict:
             "rest_view": r6(s.view()),
         },
         "bracing": None if bracing is None else _bracing_document(bracing),
+        "bracing_robust": None if robust is None else _bracing_document(robust),
     }
 
 
@@ -153,6 +155,9 @@ def _bracing_document(b) -> dict:
                                                  "rigid_body_modes", "self_stress_states")},
         "after_stable": bool(after.stable),
         "remaining": doc["remaining"],
+        "notes": doc["notes"],
+        "robust": doc["robust"],
+        "forces": doc["forces"],
         "caution": doc["caution"],
     }
 
@@ -226,8 +231,10 @@ def restraints_document(r) -> dict:
             "fraction": r.fraction, "caution": RESTRAINT_CAUTION}
 
 
-def render_report(result: AuditResult, bracing=None, forces=None, restraints=None) -> str:
-    """The report of ``result`` as one HTML document (str), with ``bracing`` if given,
+def render_report(result: AuditResult, bracing=None, forces=None, restraints=None,
+                  robust=None) -> str:
+    """The report of ``result`` as one HTML document (str), with ``bracing`` if given
+    (and ``robust``, the robust proposal, beside it: the page switches between them),
     the load cases' member forces when ``forces`` (a
     :class:`~spaceframe.force_results.ForcesResult` of the same frame) is given, and the
     chords, restraint points and unrestrained lengths when ``restraints`` (a
@@ -241,7 +248,7 @@ def render_report(result: AuditResult, bracing=None, forces=None, restraints=Non
         if end in text.lower():
             raise SpaceframeError(f"the report's {name} contains {end}>, which would end its "
                                   f"element early")
-    doc = report_document(result, bracing)
+    doc = report_document(result, bracing, robust)
     doc["loads"] = None if forces is None else forces_document(forces)
     doc["restraints"] = None
     if restraints is not None and restraints.chords:
@@ -339,7 +346,8 @@ def page_text(doc: dict) -> dict:
                   (_forces(st["tension"], st["more_tension"]), "ids"),
                   (_forces(st["compression"], st["more_compression"]), "ids")])
             for i, st in enumerate(doc["states"])),
-        "BRACING": _bracing_html(doc["bracing"], a["units"]) if doc["bracing"] else "",
+        "BRACING": _bracing_html(doc["bracing"], a["units"], doc.get("bracing_robust"))
+        if doc["bracing"] else "",
         "RESTRAINTS": _restraints_html(doc.get("restraints")),
         "KEY_SUMMARY": e(
             "No key member: every member takes part in some state of self-stress, so losing "
@@ -367,28 +375,75 @@ def _forces(entries, more: int) -> str:
     return (text + (f" and {more} more" if more > 0 else "")) or "none"
 
 
-def _bracing_html(b: dict, units: str) -> str:
-    """The proposal's section: summary, table of members and restraints, caution."""
+def _largest(f) -> str:
+    """A member's largest tension and compression over the cases, for the table."""
+    if not f:
+        return ""
+    parts = [f"{v[0]:+.3f} ({v[1]})" for v in (f["tension"], f["compression"]) if v]
+    return (" / ".join(parts) or "0") + (f"; {f['note']}" if f.get("note") else "")
+
+
+def _proposal_block(b: dict, units: str, suffix: str, title: str) -> str:
+    """One proposal: its summary, its table (members, restraints, what is left), its notes."""
     e = html.escape
     n, r = len(b["added"]), len(b["restraints_added"])
+    what = ("that stay held after the loss of any one" if b.get("robust") else
+            "the fewest, then the shortest, that remove what the candidates can")
     summary = (f"{count(n, 'member')} ({b['total_length']:.3f} {units} in all)"
                + (f" and {count(r, 'added restraint direction')}" if r else "")
-               + ": the fewest, then the shortest, that remove what the candidates can. "
-                 f"After them: {b['after_verdict']}")
-    rows = [_row([m["id"], m["ends"][0], m["ends"][1], (f"{m['length']:.3f}", "num"),
-                  m.get("location") or "", ", ".join(str(k) for k in m.get("modes") or [])])
-            for m in b["added"]]
-    rows += [_row(["restraint", q["joint"], "", "",
-                   "hold along (" + ", ".join(f"{v:.2f}" for v in q["direction"]) + ")",
-                   ", ".join(str(k) for k in q.get("modes") or [])])
-             for q in b["restraints_added"]]
-    rows += [_row(["left", "", "", "", t, ""]) for t in b["remaining"]]
-    return ('  <section id="bracing-section">\n    <h2>Proposed bracing</h2>\n'
-            f'    <p id="bracing-summary">{e(summary)}</p>\n'
-            '    <table id="bracing"><thead><tr><th>id</th><th>from</th><th>to</th>'
-            '<th>length</th><th>where</th><th>modes acted on</th></tr></thead><tbody>\n'
+               + f": {what}. After them: {b['after_verdict']}")
+    force_head = ("<th>largest force, " + e((b.get("forces") or {}).get("force_units", ""))
+                  + "</th>") if b.get("forces") else ""
+    rows = []
+    for m in b["added"]:
+        cells = [m["id"], m["ends"][0], m["ends"][1], (f"{m['length']:.3f}", "num"),
+                 "tension only" if m.get("carries") == "tension" else "both ways",
+                 m.get("location") or "", ", ".join(str(k) for k in m.get("modes") or []),
+                 "key" if m.get("key") else "-"]
+        if b.get("forces"):
+            cells.append(_largest(m.get("forces")))
+        rows.append(_row(cells))
+    for q in b["restraints_added"]:
+        cells = ["restraint", q["joint"], "", "", "both ways",
+                 "hold along (" + ", ".join(f"{v:.2f}" for v in q["direction"]) + ")",
+                 ", ".join(str(k) for k in q.get("modes") or []), "key" if q.get("key") else "-"]
+        if b.get("forces"):
+            cells.append(_largest(q.get("forces")))
+        rows.append(_row(cells))
+    width = 9 if b.get("forces") else 8
+    rows += [_row(["left", "", "", "", "", t, "", ""] + [""] * (width - 8))
+             for t in b["remaining"]]
+    notes = "".join(f"<li>{e(t)}</li>" for t in b.get("notes") or [])
+    basis = (f'<p class="muted">Forces: {e(b["forces"]["basis"])}.</p>'
+             if b.get("forces") else "")
+    table_id = "bracing" + suffix
+    return (f'    <div id="bracing-block{suffix}" class="proposal">\n'
+            f'    <h3>{e(title)}</h3>\n'
+            f'    <p id="bracing-summary{suffix}">{e(summary)}</p>\n'
+            f'    <table id="{table_id}"><thead><tr><th>id</th><th>from</th><th>to</th>'
+            '<th>length</th><th>carries</th><th>where</th><th>modes acted on</th><th>key</th>'
+            + force_head + '</tr></thead><tbody>\n'
             + "\n".join(rows) + "\n</tbody></table>\n"
-            f'    <p id="bracing-caution" class="caution">{e(b["caution"])}</p>\n  </section>')
+            + basis + (f'    <ul class="notes">{notes}</ul>\n' if notes else "")
+            + "    </div>\n")
+
+
+def _bracing_html(b: dict, units: str, robust: dict | None = None) -> str:
+    """The proposal's section: the least-cost proposal and, if given, the robust one (both
+    plain HTML; the script puts a switch between them on top), and the caution."""
+    e = html.escape
+    switch = ('    <div id="bracing-switch" class="switch" role="group" '
+              'aria-label="Which proposal" hidden>'
+              '<button type="button" data-proposal="default" aria-pressed="true">Least cost'
+              '</button><button type="button" data-proposal="robust" aria-pressed="false">'
+              'Robust to the loss of any one member</button></div>\n' if robust else "")
+    blocks = _proposal_block(b, units, "", "Least cost")
+    if robust:
+        blocks += _proposal_block(robust, units, "-robust",
+                                  "Robust: held after the loss of any one added member")
+    return ('  <section id="bracing-section">\n    <h2>Proposed bracing</h2>\n'
+            + switch + blocks
+            + f'    <p id="bracing-caution" class="caution">{e(b["caution"])}</p>\n  </section>')
 
 
 def _restraints_html(d: dict | None, most: int = 40) -> str:

@@ -25,6 +25,9 @@ from spaceframe.analysis.bracing import panel_diagonals, recommend_bracing
 from spaceframe.views.bracing_document import bracing_document, bracing_notes, location, remedy_text
 
 from common.frames import assert_same_frame
+from common.bracing_frames import box_frame as _box_frame
+from common.bracing_frames import plane_grid as _plane_grid
+from common.bracing_frames import small_extruded as _small_extruded
 from common.matrices import dense_compatibility
 
 MODELS = Path(__file__).resolve().parents[2] / "models"
@@ -55,31 +58,6 @@ def _brute_force(frame, cand_ends, held):
 def _held(frame):
     return [(int(j), int(np.argmax(np.abs(e)))) for j, e in
             zip(frame.restraint_joint, frame.restraint_dir)]
-
-
-def _jitter(coords, seed, amount):
-    rng = np.random.default_rng(seed)
-    return np.asarray(coords, float) + amount * rng.uniform(-1, 1, np.shape(coords))
-
-
-def _plane_grid(seed):
-    """2 x 2 panels in the plane, pinned at the three feet, no diagonals; corners jittered."""
-    coords = [[x, y] for y in (0, 1, 2) for x in (0, 1, 2)]
-    coords = _jitter(coords, seed, 0.15)
-    ends = [[0, 3], [1, 4], [2, 5], [3, 6], [4, 7], [5, 8],
-            [3, 4], [4, 5], [6, 7], [7, 8]]
-    return Frame.from_arrays(coords, ends, supports={0: "pin", 1: "pin", 2: "pin"})
-
-
-def _box_frame(seed):
-    """Four pinned columns and a roof ring, no bracing: a 3D box; the roof jittered in z only
-    would warp panels, so the whole box is stretched, keeping faces planar."""
-    rng = np.random.default_rng(seed)
-    a, b, h = 3 + rng.uniform(0, 2), 2 + rng.uniform(0, 2), 2.5 + rng.uniform(0, 1)
-    coords = [[0, 0, 0], [a, 0, 0], [a, b, 0], [0, b, 0],
-              [0, 0, h], [a, 0, h], [a, b, h], [0, b, h]]
-    ends = [[0, 4], [1, 5], [2, 6], [3, 7], [4, 5], [5, 6], [6, 7], [7, 4]]
-    return Frame.from_arrays(coords, ends, supports={i: "pin" for i in range(4)})
 
 
 @pytest.mark.parametrize("make,seed", [(_plane_grid, s) for s in range(1, 7)]
@@ -148,23 +126,6 @@ def test_hall_roof_without_ties_keeps_to_existing_panels():
     assert {h.kind for h in r.remaining} == {"member"}
     assert all("--within" in remedy_text(r, h) for h in r.remaining)
     assert r.braced.member_tags["role"][frame.n_members:] == ("brace",) * 6
-
-
-def _small_extruded(seed):
-    """Two frames of a king-post truss, tied at the eaves and the ridge only;
-    the first frame's left bearing held along the building so there is no rigid-body mode.
-    Height and spacing vary with the seed, so the cost order does."""
-    from spaceframe.extrude import extrude
-
-    rng = np.random.default_rng(seed)
-    h, spacing = 0.8 + rng.uniform(0, 0.8), 2.5 + rng.uniform(0, 1.5)
-    planar = Frame.from_arrays([[0, 0], [2, 0], [4, 0], [2, h]],
-                               [[0, 1], [1, 2], [0, 3], [3, 2], [1, 3]],
-                               supports={0: "pin", 2: "y"}, joint_ids=["L0", "L1", "L2", "U1"])
-    spec = {"frames": 2, "spacing": spacing, "out_of_plane": "free",
-            "ties": {"eaves": ["L0", "L2"], "ridge": ["U1"]},
-            "support": [{"at": "L0", "frames": [1], "out_of_plane": "held"}]}
-    return extrude(planar, spec)
 
 
 @pytest.mark.parametrize("seed", [1, 2, 3, 4])

@@ -83,6 +83,11 @@ PINNED = {
     # base ring plays the part of the missing, rigid base face: 0 mechanisms, so 21 states
     # of self-stress; numpy's dense SVD agrees (rank 111 = 147 - 36).
     "dome_canopy.obj": (49, 132, 36, 0, 0, 0, 21, True),
+    # A mast pinned at its foot, no guy yet, six pinned anchors.  Maxwell: 1 + 21 - 24 = -2;
+    # one member cannot be over-braced, so no self-stress and 2 mechanisms (its head turns
+    # about the foot in two directions); every joint but the head is pinned, so no rigid
+    # body motion: both internal.
+    "stage_mast.toml": (8, 1, 21, 2, 0, 2, 0, False),
 }
 
 

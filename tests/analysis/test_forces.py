@@ -296,6 +296,28 @@ def test_tripod_in_space_and_against_lstsq():
         check_equilibrium(r, i)
 
 
+def test_slack_rod_chosen_by_going_back_when_the_first_choice_fails():
+    """A portal with columns 3.2 and 2.8 high (A(0,0) B(0,3.2) C(4,2.8) D(4,0), pinned at A
+    and D) and crossed rods AC, BD, under 10 down at B and C and H = -0.05 at B.  Both rods
+    come out compressed with every member two-way (the columns shorten), BD the more; left
+    out first, it leaves AC compressed too, and without both the portal sways.  The load is
+    carried with AC slack instead (derived by the method of joints on the frame without AC:
+    joint C gives N_BC = 0 and N_CD = -10; joint B gives N_BD = -H L_BD / 4 = 0.05 x
+    5.1225 / 4 = 0.06403, L_BD = sqrt(4^2 + 3.2^2), and N_AB = -10 - N_BD x 3.2 / L_BD)."""
+    f = Frame.from_arrays([[0, 0], [0, 3.2], [4, 2.8], [4, 0]],
+                          [[0, 1], [1, 2], [2, 3], [0, 2], [1, 3]],
+                          joint_ids=list("ABCD"), member_ids=["AB", "BC", "CD", "AC", "BD"],
+                          supports={0: "pin", 3: "pin"},
+                          member_tags={"carries": ("", "", "", "tension", "tension")})
+    r = spaceframe.forces(f, loads=cases(("sway", {"B": [-0.05, -10.0], "C": [0.0, -10.0]})))
+    L = np.hypot(4.0, 3.2)
+    n_bd = 0.05 * L / 4
+    assert r.all_carried and r.slack[0] == ("AC",)
+    assert r.shown_forces(0) == pytest.approx([-10 - n_bd * 3.2 / L, 0.0, -10.0, 0.0, n_bd],
+                                              abs=1e-9)
+    check_equilibrium(r, 0)
+
+
 def test_tension_only_diagonals_go_slack():
     """An X-braced portal with rod diagonals (tag carries = tension), w = 4, h = 3: under a
     horizontal H = 6 at B the diagonal BD shortens and goes slack; the rest is then

@@ -196,6 +196,45 @@ def test_bracing_toggle_draws_the_braces_and_gives_the_audit_after(browser, tmp_
         page.close()
 
 
+def test_bracing_switch_between_least_cost_and_robust(browser, tmp_path):
+    """Both proposals of the canopy are plain tables; the script's switch shows one at a
+    time and draws that one: the robust proposal (two braces, each able to stand in for the
+    other) draws more orange than the least-cost one (one brace, which is key)."""
+    from spaceframe.analysis.bracing import recommend_bracing
+
+    frame = spaceframe.load(MODELS / "canopy_sway.toml")
+    result = spaceframe.audit(frame)
+    least = recommend_bracing(frame)
+    robust = recommend_bracing(frame, robust=True)
+    assert len(robust.members_added) == 2 and len(least.members_added) == 1
+    page, errors, requests, path = _open(
+        browser, render_report(result, least, robust=robust), tmp_path)
+    try:
+        assert page.is_visible("#bracing-switch")
+        assert page.is_visible("#bracing") and not page.is_visible("#bracing-robust")
+        assert page.locator("#bracing-robust tbody tr").count() == 2
+        assert "key" in page.inner_text("#bracing tbody")
+        page.click("#bracing-toggle")
+        orange = lambda img: np.all(np.abs(img.astype(int) - [0xE6, 0x9F, 0x00]) < 24,  # noqa
+                                    axis=2).sum()
+        one = orange(_canvas(page))
+        assert page.evaluate("window.spaceframeViewer.bracingShownCount()") == 1
+        page.click("#bracing-switch button[data-proposal=robust]")
+        assert page.is_visible("#bracing-robust") and not page.is_visible("#bracing")
+        assert page.evaluate("window.spaceframeViewer.bracingShownCount()") == 2
+        two = orange(_canvas(page))
+        assert two > one + 20
+        assert "HELD" in page.inner_text("#bracing-after")
+        assert "Robust" in page.inner_text("#bracing-section")
+        ARTIFACTS.mkdir(exist_ok=True)
+        page.screenshot(path=str(ARTIFACTS / "report_canopy_robust.png"), full_page=True)
+        page.click("#bracing-switch button[data-proposal=default]")
+        assert page.is_visible("#bracing") and not page.is_visible("#bracing-robust")
+        assert errors == []
+    finally:
+        page.close()
+
+
 def test_held_frame_has_no_bracing_section(browser, tmp_path):
     result = spaceframe.audit(spaceframe.load(MODELS / "plant_platform.toml"))
     page, errors, _, _ = _open(browser, render_report(result), tmp_path)
@@ -216,8 +255,9 @@ def test_report_reads_with_scripts_off(browser, tmp_path):
     frame = spaceframe.load(MODELS / "canopy_sway.toml")
     result = spaceframe.audit(frame)
     proposal = recommend_bracing(frame)
+    robust = recommend_bracing(frame, robust=True)
     path = tmp_path / "noscript.html"
-    path.write_text(render_report(result, proposal), encoding="utf-8")
+    path.write_text(render_report(result, proposal, robust=robust), encoding="utf-8")
     context = browser.new_context(java_script_enabled=False, viewport={"width": 1300,
                                                                         "height": 1000})
     page = context.new_page()
@@ -236,6 +276,9 @@ def test_report_reads_with_scripts_off(browser, tmp_path):
         assert result.mode_info[0].description in mech.nth(0).inner_text()
         assert page.locator("#states tbody tr").count() == result.self_stress_forces.shape[0]
         assert page.locator("#bracing tbody tr").count() == len(proposal.members_added)
+        # both proposals read as plain tables; the switch is the script's
+        assert page.locator("#bracing-robust tbody tr").count() == len(robust.members_added)
+        assert not page.is_visible("#bracing-switch")
         assert "competent engineer" in page.inner_text("#cautions")
         assert not page.is_visible("#viewer-section")
         assert "needs JavaScript" in page.inner_text("main")

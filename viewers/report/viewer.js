@@ -34,7 +34,7 @@
   });
   const view = { az: 0, el: 0.5, zoom: 1, panX: 0, panY: 0 };
   const show = { mode: -1, state: -1, loadcase: -1, t0: 0, picked: null, bracing: false, chords: false };
-  const bracing = doc.bracing;
+  let bracing = doc.bracing;              // the proposal drawn: least cost, or robust
   const loads = doc.loads;                        // null for a model without load cases
   const chords = doc.restraints;                  // null without chords
   // each chord member's unrestrained length, and the chords' restraint points
@@ -412,19 +412,43 @@
     document.getElementById("bracing-controls").hidden = false;
     const toggle = document.getElementById("bracing-toggle");
     const after = document.getElementById("bracing-after");
+    const afterText = () => {
+      const a = bracing.after;
+      const which = doc.bracing_robust && bracing === doc.bracing_robust ? "the robust " : "";
+      after.textContent = "Audit after " + which + "bracing: " + plural(a.mechanisms, "mechanism") + ", " +
+        plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
+    };
     toggle.addEventListener("click", () => {
       show.bracing = !show.bracing;
       toggle.setAttribute("aria-pressed", String(show.bracing));
       toggle.textContent = show.bracing ? "Hide the proposed bracing" : "Show the proposed bracing";
       after.hidden = !show.bracing;
-      const a = bracing.after;
-      after.textContent = "Audit after bracing: " + plural(a.mechanisms, "mechanism") + ", " +
-        plural(a.self_stress_states, "state") + " of self-stress. " + bracing.after_verdict;
+      afterText();
       if (show.bracing) {               // at rest, seen as for the first mode: across its motion
         atRest();
         if (geo.views.length) { fit(geo.views[0]); draw(); }
       } else { legend(); if (!animating) draw(); }
     });
+    // two proposals (least cost, robust): a switch on top of the two plain tables
+    const sw = document.getElementById("bracing-switch");
+    if (!sw || !doc.bracing_robust) return;
+    const blocks = { default: document.getElementById("bracing-block"),
+      robust: document.getElementById("bracing-block-robust") };
+    const choose = which => {
+      bracing = which === "robust" ? doc.bracing_robust : doc.bracing;
+      for (const b of sw.querySelectorAll("button")) {
+        b.setAttribute("aria-pressed", String(b.dataset.proposal === which));
+      }
+      blocks.default.hidden = which !== "default";
+      blocks.robust.hidden = which !== "robust";
+      afterText();
+      if (!animating) draw();
+    };
+    for (const b of sw.querySelectorAll("button")) {
+      b.addEventListener("click", () => choose(b.dataset.proposal));
+    }
+    sw.hidden = false;
+    choose("default");
   }
 
   function legend() {
@@ -486,6 +510,7 @@
     chooseCase(i) { chooseCase(i, buttons.find(b => b.dataset.loadcase === String(i))); },
     chooseChords() { chooseChords(document.getElementById("chords-toggle")); },
     bracingShown() { return show.bracing; },
+    bracingShownCount() { return show.bracing && bracing ? bracing.added.length : 0; },
     atRest,
   };
 

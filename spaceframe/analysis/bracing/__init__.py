@@ -14,6 +14,13 @@ The package has one module per step:
   frame; :func:`recommend_bracing` runs it all.
 - :mod:`.result`: :class:`BracingResult` and :func:`braced_frame` (the frame
   with the chosen members and restraints, through :mod:`spaceframe.edit`).
+- :mod:`.rules`: the member rules on the greedy choice: the ties a diagonal
+  needs, rods that act one way (greedy + repair under Roth & Whiteley's
+  test), key items, single losses.
+- :mod:`.robust`: a proposal that stays held after the loss of any one
+  added item (exact search, or greedy augmentation of the least-cost basis).
+- :mod:`.forces`: the forces in what is added, under the model's cases and
+  notional horizontal loads.
 - :mod:`.frames`: the frames of a frame of frames, planar ids and bays.
 - :mod:`.layout`: layout rules (planes, braced bays, mirror-image groups, the
   clear space at floor level, per-kind costs, ties to a building first) and
@@ -29,8 +36,12 @@ from .candidates import (GENERATORS, ORIGINS, CandidateOptions, CandidateSet, Me
                          RestraintCandidate, Search, find_candidates, panel_diagonals,
                          tie_candidates)
 from .compare import Comparison, compare_schemes
+from .forces import ProposalForces, proposal_forces
 from .layout import LayoutChoice, LayoutRules
-from .result import ACTS, BRACING_CAUTION, BracingResult, LateralRestraint, Remedy, braced_frame
+from .result import (ACTS, BRACING_CAUTION, BracingResult, LateralRestraint, MemberRules, Remedy,
+                     RobustInfo, braced_frame)
+from .robust import RobustChoice, robust_elements
+from .rules import coloops, hold_one_way, hold_single_losses, key_items, with_needed_ties
 from .selection import (PER_MODE, expand_elements, greedy_basis, lateral_restraint,
                         matroid_elements, planar_plane, reach_rows, recommend_bracing, remedies)
 
@@ -39,4 +50,7 @@ __all__ = ["recommend_bracing", "find_candidates", "panel_diagonals", "tie_candi
            "remedies", "lateral_restraint", "braced_frame", "BracingResult", "Remedy",
            "LateralRestraint", "CandidateSet", "CandidateOptions", "MemberCandidate",
            "RestraintCandidate", "Search", "GENERATORS", "ORIGINS", "ACTS", "PER_MODE",
-           "BRACING_CAUTION", "LayoutRules", "LayoutChoice", "compare_schemes", "Comparison"]
+           "BRACING_CAUTION", "MemberRules", "RobustInfo", "ProposalForces", "proposal_forces",
+           "RobustChoice", "robust_elements", "coloops", "hold_one_way", "hold_single_losses",
+           "key_items", "with_needed_ties", "LayoutRules", "LayoutChoice", "compare_schemes",
+           "Comparison"]

@@ -678,7 +678,7 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
         Panels, by their corner joints, where no brace goes.
     tension_only : bool, keyword-only
         Rods: keep only panel diagonals whose partner diagonal is a candidate
-        too.
+        too (candidates of no panel, such as a listed guy, are all kept).
 
     Returns
     -------
@@ -721,8 +721,9 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
                      sum(c.joint in given for c in restraint_rows if c.origin == "attachable")),)
     if tension_only:
         pairs = CandidateSet.from_records(frame, kept, [])
-        single = [c for c, p in zip(kept, pairs.partner.tolist()) if p < 0]
-        kept = [c for c, p in zip(kept, pairs.partner.tolist()) if p >= 0]
+        single = [c for c, p in zip(kept, pairs.partner.tolist())
+                  if p < 0 and c.corners is not None]
+        kept = [c for c, p in zip(kept, pairs.partner.tolist()) if p >= 0 or c.corners is None]
         filters += (("tension only", "one diagonal", len(single)),)
     cand = CandidateSet.from_records(frame, kept, restraint_rows)
     return dataclasses.replace(cand, filters=filters)

@@ -12,14 +12,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from ... import edit
-from ...model import Frame
+from ...model import CARRIES_TAG, Frame
 from ...results import AuditResult
 from ...tolerances import DEFAULT
 from .candidates import CandidateSet
 from .frames import bay_between, panel_bay, planar_id
 
-__all__ = ["BracingResult", "Remedy", "LateralRestraint", "braced_frame", "ACTS",
-           "BRACING_CAUTION"]
+__all__ = ["BracingResult", "Remedy", "LateralRestraint", "MemberRules", "RobustInfo",
+           "braced_frame", "ACTS", "BRACING_CAUTION"]
 
 #: A candidate "acts on" a mode when the mode stretches it by more than this fraction of
 #: the mode's largest joint movement (modes are scaled so that it is 1): ``Tolerances.acts``.
@@ -86,6 +86,68 @@ class LateralRestraint:
     centre: np.ndarray
 
 
+@dataclass(frozen=True)
+class MemberRules:
+    """What the member rules (:mod:`.rules`) did to the greedy choice.
+
+    Attributes
+    ----------
+    one_way : bool
+        The one-way test chose and re-audited the proposal (``tension_only``,
+        or the frame has one-way members of its own).
+    ties : tuple of int
+        Tie candidates added because a chosen tie-panel diagonal needs them.
+    repaired : tuple of int
+        Candidates the one-way repair added (a motion that slackens one-way
+        members was found without them), in the order added.
+    held : bool
+        The repair ended with the frame held under the one-way test (True
+        when it did not run).
+    key : tuple of bool
+        For each chosen item (``BracingResult.chosen`` order): losing it
+        brings a mechanism back, or a motion that slackens one-way members.
+    """
+
+    one_way: bool = False
+    ties: tuple[int, ...] = ()
+    repaired: tuple[int, ...] = ()
+    held: bool = True
+    key: tuple[bool, ...] = ()
+
+
+@dataclass(frozen=True)
+class RobustInfo:
+    """How a robust proposal was found (:mod:`.robust`).
+
+    Attributes
+    ----------
+    method : str
+        ``"exact"`` (proven the cheapest such set), ``"greedy"``
+        (augmentation of the least-cost basis) or ``"repair"`` (with one-way
+        members: either of those, then candidates added by the one-way
+        repair, :mod:`.rules`).
+    searched : int
+        Subsets the exact search looked at.
+    least_cost : float
+        The members' cost of the least-cost basis (the default proposal
+        before its member rules), for the ratio.
+    uncoverable : tuple of int
+        Candidates of that basis no other candidate can stand in for: key in
+        every proposal.
+    parts : int
+        Independent parts (connected components of the matroid) searched.
+    exact_parts : int
+        Those the exact search solved.
+    """
+
+    method: str
+    searched: int
+    least_cost: float
+    uncoverable: tuple[int, ...] = ()
+    parts: int = 1
+    exact_parts: int = 0
+
+
 @dataclass(frozen=True, eq=False)
 class BracingResult:
     """A bracing recommendation and the audit of the braced frame.
@@ -129,6 +191,12 @@ class BracingResult:
         constraint (:func:`spaceframe.analysis.bracing.layout.select`); None
         when the greedy pass alone made it.  What each filter removed is in
         ``candidates.filters``.
+    rules : MemberRules
+        Needed ties, the one-way repair, which added items are key.
+    robust : RobustInfo or None
+        For a robust proposal: how it was found.
+    proposal_forces : ProposalForces or None
+        The forces in the added members and restraints (:mod:`.forces`).
     """
 
     frame: Frame
@@ -145,7 +213,15 @@ class BracingResult:
     restraints_used: bool = False
     expected_after: int = 0
     lateral: LateralRestraint | None = None
+    rules: MemberRules = MemberRules()
+    robust: RobustInfo | None = None
+    proposal_forces: object = None
     layout: object = None
+
+    @property
+    def cost(self) -> float:
+        """The added members' total cost (length, or the user's weights)."""
+        return float(sum(self.candidates.cost[i] for i in self.members_added))
 
     @property
     def members_added(self) -> list[int]:
@@ -165,7 +241,7 @@ class BracingResult:
         return float(sum(self.candidates.length[i] for i in self.members_added))
 
 
-def braced_frame(frame: Frame, cand: CandidateSet, chosen) -> Frame:
+def braced_frame(frame: Frame, cand: CandidateSet, chosen, *, rods=()) -> Frame:
     """The frame with the chosen candidate members and restraints (through :mod:`spaceframe.edit`).
 
     New braces are named ``BR1``, ``BR2``... (skipping ids in use), and
@@ -177,9 +253,12 @@ def braced_frame(frame: Frame, cand: CandidateSet, chosen) -> Frame:
     property (EA) is kept; the new members get the median of the frame's
     values (:func:`spaceframe.edit.add_members`).  Joint tags, supports and
     source lines are kept; restraint candidates become restraint rows after
-    the frame's own.
+    the frame's own.  The candidates in ``rods`` are tagged ``carries =
+    tension`` (:data:`spaceframe.model.CARRIES_TAG`): rods, cables or guys
+    that act one way only; the frame's own ``carries`` labels are kept.
     """
     chosen = list(chosen)
+    rods = set(rods)
     mem = [i for i in chosen if cand.joint[i] < 0]
     res = [i for i in chosen if cand.joint[i] >= 0]
     used = set(frame.member_ids)
@@ -199,11 +278,14 @@ def braced_frame(frame: Frame, cand: CandidateSet, chosen) -> Frame:
         used.add(f"BR{k}")
     member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
     tags = {}
-    for key in dict.fromkeys([*frame.member_tags, "role"]):
+    keys = [*frame.member_tags, "role"] + ([CARRIES_TAG] if rods else [])
+    for key in dict.fromkeys(keys):
         labels = []
         for i in mem:
             a, b = cand.ends[i]
-            if key in ("role", "group"):
+            if key == CARRIES_TAG:
+                labels.append("tension" if i in rods else "")
+            elif key in ("role", "group"):
                 labels.append("tie" if cand.origin[i] == "tie" else "brace")
             elif key == "frame":
                 labels.append(jframe[a] if jframe is not None and jframe[a] == jframe[b] else "")
