@@ -86,7 +86,7 @@ def _child(path: str | None) -> None:
         spaceframe.audit(frame)  # with soft modes as well: the whole readable account
         t3 = time.perf_counter()
         out = {"load_s": t1 - t0, "audit_s": t2 - t1, "full_audit_s": t3 - t2,
-               "modes_shape": list(np.shape(result.mode_displacements)),
+               "modes_shape": list(result.modes.shape),
                **{k: int(getattr(result, k)) for k in COUNT_FIELDS}}
     out["peak_rss_bytes"] = _peak_rss_bytes()
     print(json.dumps(out))
@@ -264,7 +264,7 @@ def part_reference(members: int, supports: str, repeat: int, rows: list, problem
         problems.append("the reference's two null spaces disagree on the rank")
 
     # The spaces, not just their dimensions.
-    modes = np.asarray(result.mode_displacements).reshape(len(result.mode_displacements), -1)
+    modes = result.modes.dense().reshape(len(result.modes), -1)   # one mechanism here: small
     angle = "-"
     if ref["mechanisms"] and len(modes) == ref["mechanisms"]:
         angle = f"{np.max(subspace_angles(modes[:, keep].T, mech_basis)):.1e} rad"

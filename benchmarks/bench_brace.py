@@ -84,7 +84,7 @@ def main():
     rows.append(("candidates (panels found)", time.perf_counter() - t))
 
     t = time.perf_counter()
-    U = before.mode_displacements.reshape(k, -1).T
+    U = before.modes.dense().reshape(k, -1).T        # 100 modes: small enough to expand
     Q, _ = np.linalg.qr(U)
     reach = np.asarray(reach_rows(frame, cand) @ Q)
     kept = greedy_basis(reach, cand.order(), 1e-6 * _s_max(frame))

@@ -6,6 +6,7 @@ Run from the repository root::
     python benchmarks/bench_engine.py --prev /tmp/engine_prev  # and the previous engine
     python benchmarks/bench_engine.py --million              # add the 1,002,528-member grid
     python benchmarks/bench_engine.py --quick                # small sizes, a minute
+    python benchmarks/bench_engine.py --only "roof,roof 5k"  # some rows, no reference row
 
 ``--prev`` names a checkout of the previous engine, made for instance with::
 
@@ -28,7 +29,8 @@ in a fresh process per engine so that ``ru_maxrss`` is that audit's peak):
 ``grid 5k ref``  a 25 x 25 grid (5,000 members) against ``scipy.linalg.null_space`` of
                  C and of C.T in the same run (the counts must agree).
 
-Each child's address space is capped (``--memory``, default 6 GiB) so that an engine
+Each child reports its wall time and its CPU time (``time.process_time``, every thread),
+which a loaded machine disturbs far less.  Each child's address space is capped (``--memory``, default 6 GiB) so that an engine
 that cannot hold a frame fails instead of swapping the shared machine; such a row
 says so.  The path column says which engine ran (dense or sparse with SuperLU, and
 how many mechanisms were found joint by joint).  Timings are single runs unless
@@ -66,10 +68,10 @@ def _child(path: str, soft: bool) -> None:
 
     t0 = time.perf_counter()
     frame = spaceframe.load(path)
-    t1 = time.perf_counter()
+    t1, c1 = time.perf_counter(), time.process_time()
     result = spaceframe.audit(frame) if soft else spaceframe.audit(frame, soft=False)
-    t2 = time.perf_counter()
-    out = {"load_s": t1 - t0, "audit_s": t2 - t1, "peak": _peak_rss_bytes(),
+    t2, c2 = time.perf_counter(), time.process_time()
+    out = {"load_s": t1 - t0, "audit_s": t2 - t1, "cpu_s": c2 - c1, "peak": _peak_rss_bytes(),
            **{k: int(getattr(result, k)) for k in COUNTS}, "method": result.gap.method}
     try:
         from spaceframe.analysis.equilibrium import compatibility_matrix, free_dofs
@@ -167,6 +169,8 @@ def main(argv=None) -> int:
     ap.add_argument("--memory", type=float, default=6.0, help="GiB cap per child (default 6)")
     ap.add_argument("--timeout", type=float, default=900.0, help="seconds per child")
     ap.add_argument("--repeat", type=int, default=1, help="runs of the reference row")
+    ap.add_argument("--only", help="comma-separated row labels to run (the reference row "
+                                   "is 'grid 5k ref'); default all")
     args = ap.parse_args(argv)
     if args.child:  # runs the engine on PYTHONPATH: this checkout or --prev
         _child(args.child, not args.no_soft)
@@ -177,7 +181,10 @@ def main(argv=None) -> int:
     memory = int(args.memory * 1024 ** 3)
     tmp = Path(tempfile.mkdtemp(prefix="bench_engine_"))
     rows, bad = [], False
+    only = None if args.only is None else {x.strip() for x in args.only.split(",")}
     for label, frame, soft, expect in _frames(args.quick, args.million):
+        if only is not None and label not in only:
+            continue
         path = tmp / f"{label.replace(' ', '_')}.npz"
         save(frame, path)
         new = _run(REPO, path, soft, memory, args.timeout)
@@ -189,32 +196,36 @@ def main(argv=None) -> int:
 
     print(f"\ncores: {os.cpu_count()}, load average {os.getloadavg()[0]:.1f} at the start "
           f"of the last row; {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}")
-    head = ("| frame | members | call | audit s | load s | peak MiB | mechanisms | "
-            "self-stress | path | previous s | previous MiB | ratio |")
+    head = ("| frame | members | call | audit s | cpu s | load s | peak MiB | mechanisms | "
+            "self-stress | path | previous s | previous cpu s | previous MiB | ratio |")
     print(head)
     print("|" + "---|" * (head.count("|") - 1))
     for label, frame, soft, new, old, ok in rows:
         call = "audit(load(path))" if soft else "audit(load(path), soft=False)"
         if "error" in new:
-            print(f"| {label} | {frame.n_members:,} | {call} | {new['error']} | | | | | | "
-                  f"{_fmt(old)} | | |")
+            print(f"| {label} | {frame.n_members:,} | {call} | {new['error']} | | | | | | | "
+                  f"{_fmt(old)} | | | |")
             continue
         path = f"{new['method']}, SuperLU" if new["method"] == "sparse" else new["method"]
         if new.get("local") is not None:
             path += f"; {new['local']:,} local"
-        prev_s, prev_m, ratio = _fmt(old), "", ""
+        prev_s, prev_c, prev_m, ratio = _fmt(old), "", "", ""
         if old and "error" not in old:
             prev_m = f"{old['peak'] / 2 ** 20:,.0f}"
+            prev_c = f"{old['cpu_s']:.2f}" if "cpu_s" in old else ""
             ratio = f"{old['audit_s'] / new['audit_s']:.1f}x"
         print(f"| {label} | {frame.n_members:,} | {call} | {new['audit_s']:.2f} | "
-              f"{new['load_s']:.2f} | {new['peak'] / 2 ** 20:,.0f} | {new['mechanisms']:,} | "
-              f"{new['self_stress_states']:,} | {path} | {prev_s} | {prev_m} | {ratio} |"
+              f"{new['cpu_s']:.2f} | {new['load_s']:.2f} | {new['peak'] / 2 ** 20:,.0f} | "
+              f"{new['mechanisms']:,} | {new['self_stress_states']:,} | {path} | {prev_s} | "
+              f"{prev_c} | {prev_m} | {ratio} |"
               + ("" if ok else " **counts differ from the derived ones**"))
+    if only is not None and "grid 5k ref" not in only:
+        return 1 if bad else 0
     grid, ref_s, ours_s, same, r = _reference(args.quick, args.repeat)
     bad |= not same
-    print(f"| grid 5k ref | {grid.n_members:,} | audit(frame), same process | {ours_s:.3f} | | | "
-          f"{r.mechanisms} | {r.self_stress_states:,} | {r.gap.method} | "
-          f"null_space(C), null_space(C.T): {ref_s:.1f} s | | {ref_s / ours_s:.0f}x "
+    print(f"| grid 5k ref | {grid.n_members:,} | audit(frame), same process | {ours_s:.3f} | | "
+          f"| | {r.mechanisms} | {r.self_stress_states:,} | {r.gap.method} | "
+          f"null_space(C), null_space(C.T): {ref_s:.1f} s | | | {ref_s / ours_s:.0f}x "
           f"{'(counts agree)' if same else '**counts differ**'} |")
     return 1 if bad else 0
 

@@ -9,7 +9,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .jsonstream import Lazy, chunks, materialise
 from .model import Frame
+from .modeset import ModeSet
 from .tolerances import DISPLAY
 
 __all__ = ["AuditResult", "RankGap", "CAUTION"]
@@ -77,9 +79,13 @@ class AuditResult:
         ``mechanisms - rigid_body_modes``.
     self_stress_states : int
         ``members - rank``, always counted exactly.
-    mode_displacements : (mechanisms, joints, dimension) float
+    modes : ModeSet of (joints, dimension) float
         A basis of the mechanisms: internal mechanisms first, then the
         rigid-body modes; each mode scaled so its largest joint movement is 1.
+        Held sparse when large (``Limits.dense_modes``): read one mode with
+        ``modes[i]``, its moving joints with ``modes.support(i)``, all of them
+        with ``modes.matrix()``; :attr:`mode_displacements` is the dense
+        ``(mechanisms, joints, dimension)`` array.
     mode_kinds : tuple of str
         The kind of each mode (:data:`spaceframe.analysis.modes.KINDS`).
     mode_info : tuple of ModeInfo
@@ -88,9 +94,10 @@ class AuditResult:
     mode_orders : tuple of str or None
         For each internal mechanism, whether prestress stiffens it
         (:mod:`spaceframe.analysis.prestress`); None for rigid-body modes.
-    mode_prestress : (internal_mechanisms, members) float
+    stiffening : ModeSet of (members,) float, or None
         A stiffening state of self-stress for each internal mechanism (zeros
-        where none exists).
+        where none exists), held as the modes are; :attr:`mode_prestress` is
+        the dense ``(internal_mechanisms, members)`` array.
     prestress_stable : bool or None
         One state of self-stress stiffens every internal mechanism at once
         (True), provably none can (False), or not determined (None; also with
@@ -137,14 +144,14 @@ class AuditResult:
     rigid_body_modes: int
     internal_mechanisms: int
     self_stress_states: int
-    mode_displacements: np.ndarray
+    modes: ModeSet
     mode_kinds: tuple[str, ...]
     self_stress_forces: np.ndarray
     self_stress_complete: bool
     gap: RankGap
     mode_info: tuple = ()
     mode_orders: tuple = ()
-    mode_prestress: np.ndarray | None = None
+    stiffening: ModeSet | None = None
     prestress_stable: bool | None = None
     prestress_certificate: np.ndarray | None = None
     key_members: tuple[str, ...] = ()
@@ -176,12 +183,27 @@ class AuditResult:
         """No internal mechanism: the frame holds its shape (it may still move as one body)."""
         return self.internal_mechanisms == 0
 
+    @property
+    def mode_displacements(self) -> np.ndarray:
+        """The mechanisms as one dense ``(mechanisms, joints, dimension)`` array.
+
+        Held dense for a small result, this is the array itself; held sparse it
+        is expanded on each call (``mechanisms * joints * dimension`` floats),
+        so a caller that may meet a large result reads :attr:`modes` instead.
+        """
+        return self.modes.dense()
+
+    @property
+    def mode_prestress(self) -> np.ndarray | None:
+        """The stiffening states as one dense ``(internal_mechanisms, members)`` array."""
+        return None if self.stiffening is None else self.stiffening.dense()
+
     def mode_joints(self, i: int, *, floor: float = DISPLAY.floor) -> list[tuple[str, np.ndarray]]:
         """Joints that move in mode ``i``, largest movement first, with their vectors."""
-        u = self.mode_displacements[i]
+        index, u = self.modes.support(i)
         size = np.linalg.norm(u, axis=1)
         order = np.argsort(-size, kind="stable")
-        return [(self.frame.joint_ids[j], u[j]) for j in order if size[j] > floor]
+        return [(self.frame.joint_ids[index[j]], u[j]) for j in order if size[j] > floor]
 
     def state_members(self, i: int, *, floor: float = DISPLAY.floor) -> list[tuple[str, float]]:
         """Members that carry state ``i``, largest force first, with their forces."""
@@ -191,20 +213,38 @@ class AuditResult:
 
     def to_dict(self) -> dict:
         """The JSON document of the audit (plain Python types, deterministic)."""
+        return materialise(self.document())
+
+    def json_chunks(self, *, indent: int = 1):
+        """The text of ``json.dumps(self.to_dict(), indent=indent)``, a piece at a time.
+
+        The mechanisms are written one at a time, so a frame with many of them
+        is never held as a whole document (:mod:`spaceframe.jsonstream`).
+        """
+        return chunks(self.document(), indent=indent, allow_nan=False)
+
+    def _mode_entry(self, i: int) -> dict:
+        """Mechanism ``i`` as its ``mechanism_modes`` entry."""
         f = self.frame
-        modes = []
-        for i, kind in enumerate(self.mode_kinds):
-            entry = _motion_entry(f, kind, self.mode_info[i] if i < len(self.mode_info)
-                                  else None, self.mode_displacements[i])
-            order = self.mode_orders[i] if i < len(self.mode_orders) else None
-            entry["order"] = order
-            if order is not None and self.mode_prestress is not None and \
-                    np.any(self.mode_prestress[i]):
-                t = self.mode_prestress[i]
-                entry["prestress"] = {f.member_ids[k]: _num(t[k])
-                                      for k in np.flatnonzero(np.abs(t) > DISPLAY.floor)}
-            entry["displacements"] = entry.pop("displacements")
-            modes.append(entry)
+        entry = _motion_entry(f, self.mode_kinds[i], self.mode_info[i] if i < len(self.mode_info)
+                              else None, *self.modes.support(i))
+        order = self.mode_orders[i] if i < len(self.mode_orders) else None
+        entry["order"] = order
+        if order is not None and self.stiffening is not None and self.stiffening.any(i):
+            index, t = self.stiffening.support(i)
+            entry["prestress"] = {f.member_ids[k]: _num(v)
+                                  for k, v in zip(index, t) if abs(v) > DISPLAY.floor}
+        entry["displacements"] = entry.pop("displacements")
+        return entry
+
+    def document(self) -> dict:
+        """The JSON document with its mechanisms as a :class:`~spaceframe.jsonstream.Lazy` list.
+
+        :meth:`to_dict` is this made plain, :meth:`json_chunks` its text.
+        """
+        f = self.frame
+        modes = Lazy(len(self.mode_kinds),
+                     lambda: (self._mode_entry(i) for i in range(len(self.mode_kinds))))
         states = []
         for t in self.self_stress_forces:
             carrying = np.flatnonzero(np.abs(t) > DISPLAY.floor)
@@ -264,14 +304,14 @@ class AuditResult:
             "caution": CAUTION,
         }
 
-
     def _one_way_dict(self) -> dict | None:
         """The ``one_way`` record: None without one-way members."""
         w = self.one_way
         if w is None:
             return None
         motion = None if w.motion is None else \
-            _motion_entry(self.frame, w.info.kind if w.info else "other", w.info, w.motion)
+            _motion_entry(self.frame, w.info.kind if w.info else "other", w.info,
+                          np.arange(len(w.motion)), w.motion)
         return {"members": {"tension": list(w.tension), "compression": list(w.compression)},
                 "held": w.held,
                 "margin": None if w.margin is None else float(f"{w.margin:.6g}"),
@@ -279,8 +319,11 @@ class AuditResult:
                 "motion": motion}
 
 
-def _motion_entry(f: Frame, kind: str, info, u: np.ndarray) -> dict:
-    """A joint movement ``u`` (n, d) and its ModeInfo as a ``mechanism_modes`` entry."""
+def _motion_entry(f: Frame, kind: str, info, index: np.ndarray, u: np.ndarray) -> dict:
+    """A joint movement and its ModeInfo as a ``mechanism_modes`` entry.
+
+    ``u`` (s, d) is the movement of joints ``index`` (ascending); the others do not move.
+    """
     entry = {"kind": kind}
     if info is not None:
         entry.update({
@@ -295,7 +338,7 @@ def _motion_entry(f: Frame, kind: str, info, u: np.ndarray) -> dict:
         if info.pivots:
             entry["pivots"] = list(info.pivots)
     moving = np.flatnonzero(np.linalg.norm(u, axis=1) > DISPLAY.floor)
-    entry["displacements"] = {f.joint_ids[j]: [_num(x) for x in u[j]] for j in moving}
+    entry["displacements"] = {f.joint_ids[index[j]]: [_num(x) for x in u[j]] for j in moving}
     return entry
 
 

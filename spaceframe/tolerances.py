@@ -57,6 +57,22 @@ class Limits:
         ``free_coordinates x mechanisms`` array) when ``free_coordinates *
         mechanisms > split_basis``, as one dense array otherwise.  The two give
         the same modes to rounding.  Default ``1_000_000``.
+    dense_modes : int
+        The audit holds its mechanisms and their stiffening states dense
+        (``(k, n, d)`` and ``(k, m)`` arrays) when ``mechanisms * joints *
+        dimension <= dense_modes``, and as sparse rows otherwise
+        (:class:`spaceframe.modeset.ModeSet`).  The two
+        give the same modes, orders and states to rounding.  Default
+        ``20_000_000`` (160 MB of modes).
+    block_prestress : int
+        The product forces of the internal mechanisms are projected onto the
+        states of self-stress block by block (:mod:`spaceframe.analysis.blocks`,
+        a small SVD per block of ``C``) and their stiffening states held sparse
+        when ``internal_mechanisms > block_prestress``; up to it, in the solves
+        of the whole frame that also serve the key members.  The two give the
+        same orders and states to the solves' rounding (about ``1e-9``).
+        Default ``64`` (four block solves; above ``common_prestress``, so the
+        search for one state for all is made the same way either side).
     robust_search : int
         A robust bracing proposal (no added item whose loss brings a
         mechanism back) is searched for exactly, subsets in order of cost,
@@ -70,6 +86,8 @@ class Limits:
     dense_soft: int = 1_500
     common_prestress: int = 12
     split_basis: int = 1_000_000
+    dense_modes: int = 20_000_000
+    block_prestress: int = 64
     robust_search: int = 20_000
 
 
@@ -258,6 +276,11 @@ class Tolerances:
         projection onto the states of self-stress); one state ``t`` stiffens
         all modes when the smallest eigenvalue of their geometric stiffness
         matrix exceeds ``stiffening`` times its largest entry.  Default ``1e-8``.
+    sparse_drop : float
+        A stiffening state held sparse (many modes, ``Limits.dense_modes``) and
+        projected with the whole frame's factorisation keeps member ``e`` when
+        ``|t_e| > sparse_drop * max |t|``; the rest is the rounding of the
+        solve, far below what is shown (``Display.floor``).  Default ``1e-12``.
     soft : float
         A held mode is reported as soft when its stiffness ``lambda`` (an
         eigenvalue of ``K = C.T diag(EA / L) C``) has ``lambda < soft * k``,
@@ -430,6 +453,7 @@ class Tolerances:
     axis_restraint: float = 1e-15
     key: float = 1e-8
     stiffening: float = 1e-8
+    sparse_drop: float = 1e-12
     soft: float = 1e-3
     soft_shift: float = 1e-10
     in_plane_direction: float = 1e-3

@@ -3,17 +3,22 @@
 from __future__ import annotations
 
 import numpy as np
+import scipy.sparse as sp
 
 from ..errors import InternalError
 from ..model import Frame
+from ..modeset import ModeSet
 from ..naming import natural_key
 from ..results import AuditResult, RankGap
 from ..tolerances import DEFAULT, Tolerances
-from .equilibrium import compatibility_matrix, free_dofs, rigid_body_motions, to_joint_displacements
-from .modes import KINDS, describe_modes, local_basis, order_rigid
+from .blocks import project_sparse
+from .equilibrium import (compatibility_matrix, free_dofs, joint_displacement_map,
+                          rigid_body_motions, to_joint_displacements)
+from .modes import KINDS, describe_modes, local_basis, mode_context, order_rigid
 from .nullspace import canonical_basis, canonical_split, decide_rank
 from .oneway import one_way_test
-from .prestress import declared_prestress_test, prestress_test, product_forces
+from .prestress import (declared_prestress_test, prestress_test, prestress_test_sparse,
+                        product_forces, product_forces_sparse)
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes, typical_stiffness
 
@@ -120,6 +125,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     known.update(rank=decision.rank, mechanisms=k,
                  self_stress_states=decision.self_stress_count, engine=decision.method)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
+    # many modes: held as sparse rows, never as a dense (k, n, d) array (Limits.dense_modes)
+    held_sparse = k * frame.n_joints * d > tol.limits.dense_modes
     # many local mechanisms: their canonical basis block by block, never dense N x k
     split = decision.local and C.shape[1] * k > tol.limits.split_basis
     if split:
@@ -127,31 +134,43 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
                                  tol=tol)
         _check_rigid_inside(decision.mechanisms, rigid, tol, known, local=decision.local_modes)
         internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv, tol=tol)
-        internal = internal.toarray()
+        if not held_sparse:
+            internal = internal.toarray()
     else:
         whole = decision.all_mechanisms()
         _check_rigid_inside(whole, rigid, tol, known)
         internal, rigid = local_basis(whole, rigid, dofs.joint_of(), tol=tol)
     rigid = order_rigid(rigid, dofs, frame.coords, tol=tol)
-
-    mech = np.hstack([internal, rigid])
-    modes = to_joint_displacements(mech, dofs) if k else np.zeros((0, frame.n_joints, d))
-    if k:
-        modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
-    hints = ("internal",) * internal.shape[1] + ("rigid-body",) * rigid.shape[1]
-    info = describe_modes(frame, modes, hints, tol=tol)
-    # group the internal modes by kind (local kinds first), fewest joints first within a kind
     ni = internal.shape[1]
+    modes = _sparse_modes(internal, rigid, dofs, frame) if held_sparse else \
+        _dense_modes(internal, rigid, dofs, frame)
+    hints = ("internal",) * ni + ("rigid-body",) * rigid.shape[1]
+    words = mode_context(frame, tol=tol)      # shared with the soft modes' descriptions
+    info = describe_modes(frame, modes, hints, tol=tol, context=words)
+    # group the internal modes by kind (local kinds first), fewest joints first within a kind
     order = sorted(range(ni), key=lambda i: (KINDS.index(info[i].kind), len(info[i].joints),
                                              natural_key(info[i].joints[0]), i))
     order += list(range(ni, k))
-    modes, info = modes[order], tuple(info[i] for i in order)
-    # one projection serves the key-member probes and the product-force test
-    force = product_forces(frame, modes[:ni])
-    both = decision.project(np.hstack([probes(frame.n_members), force]))
-    pre = prestress_test(frame, modes[:ni], decision.project, projected=both[:, 2:], tol=tol,
-                         forces=force)
-    declared = declared_prestress_test(frame, C, dofs, modes[:ni],
+    modes, info = modes.take(order), tuple(info[i] for i in order)
+    inner = modes.take(np.arange(ni))
+    if ni > tol.limits.block_prestress:
+        # product forces sparse, projected block by block (a one-joint mode's reach only
+        # its joint's members, and the block they lie in), not one solve each
+        force = product_forces_sparse(frame, inner if inner.sparse else
+                                      ModeSet(inner.matrix(), inner.item))
+        pre = prestress_test_sparse(force, project_sparse(C, force, decision.project,
+                                                          decision.threshold, tol=tol), tol=tol)
+        both = decision.project(probes(frame.n_members))
+    else:
+        # one projection serves the key-member probes and the product-force test
+        dense_inner = inner.dense()
+        force = product_forces(frame, dense_inner)
+        both = decision.project(np.hstack([probes(frame.n_members), force]))
+        pre = prestress_test(frame, dense_inner, decision.project, projected=both[:, 2:],
+                             tol=tol, forces=force)
+        pre = type(pre)(pre.orders, ModeSet(pre.prestress, (frame.n_members,)), pre.stable,
+                        pre.certificate)
+    declared = declared_prestress_test(frame, C, dofs, inner,
                                        rigid_body_modes=rigid.shape[1], tol=tol)
     one_way = one_way_test(frame, C, dofs, mechanisms=k, tol=tol,
                            prestress=declared.forces if declared and declared.holds else None)
@@ -178,7 +197,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         np.zeros((0, frame.n_joints, d))
     if len(soft_u):
         soft_u /= np.linalg.norm(soft_u, axis=2).max(axis=1)[:, None, None]
-    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol)
+    soft_info = describe_modes(frame, soft_u, ("soft",) * len(soft_u), tol=tol, context=words)
     # a soft mode worth a designer's attention is a local weakness, not the frame's
     # global flexibility: keep those moving at most a quarter of the joints
     local = [i for i, inf in enumerate(soft_info) if len(inf.joints) <= max(3, frame.n_joints // 4)]
@@ -203,16 +222,41 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     return AuditResult(
         frame=frame, dimension=d, joints=joints, members=members, restraints=restraints,
         maxwell=members + restraints - d * joints, rank=decision.rank, mechanisms=mechanisms,
-        rigid_body_modes=rigid.shape[1], internal_mechanisms=internal.shape[1],
-        self_stress_states=s, mode_displacements=modes,
+        rigid_body_modes=rigid.shape[1], internal_mechanisms=ni,
+        self_stress_states=s, modes=modes,
         mode_kinds=tuple(i.kind for i in info), mode_info=info,
-        mode_orders=pre.orders + (None,) * rigid.shape[1], mode_prestress=pre.prestress,
+        mode_orders=pre.orders + (None,) * rigid.shape[1], stiffening=pre.prestress,
         prestress_stable=pre.stable, prestress_certificate=pre.certificate,
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         soft_ratios=soft_ratio, soft_displacements=soft_u,
         soft_info=soft_info, one_way=one_way, declared_prestress=declared,
         warnings=tuple(warnings))
+
+
+def _dense_modes(internal: np.ndarray, rigid: np.ndarray, dofs, frame: Frame) -> ModeSet:
+    """The modes as one dense ``(k, n, d)`` array, each scaled to a largest joint movement of 1."""
+    mech = np.hstack([internal, rigid])
+    if not mech.shape[1]:
+        return ModeSet.empty((frame.n_joints, frame.dimension))
+    modes = to_joint_displacements(mech, dofs)
+    modes /= np.linalg.norm(modes, axis=2).max(axis=1)[:, None, None]
+    return ModeSet(modes, modes.shape[1:])
+
+
+def _sparse_modes(internal, rigid: np.ndarray, dofs, frame: Frame) -> ModeSet:
+    """:func:`_dense_modes` held as sparse rows: cost O(d nnz), no dense ``(k, n, d)`` array."""
+    n, d = frame.n_joints, frame.dimension
+    mech = sp.hstack([sp.csc_matrix(internal), sp.csc_matrix(rigid)]).tocsc()
+    U = sp.csr_matrix((joint_displacement_map(dofs) @ mech).T)
+    U.eliminate_zeros()
+    # each mode's largest joint movement, from its squared entries summed by joint
+    sq = U.multiply(U).tocsr()
+    group = sp.csr_matrix((np.ones(n * d), (np.arange(n * d), np.arange(n * d) // d)),
+                          shape=(n * d, n))
+    top = np.sqrt(np.asarray((sq @ group).max(axis=1).toarray()).ravel())
+    U = sp.csr_matrix(sp.diags(1.0 / np.where(top > 0, top, 1.0)) @ U)
+    return ModeSet(U, (n, d))
 
 
 def _check_rigid_inside(mech: np.ndarray, rigid: np.ndarray, tol: Tolerances,

@@ -197,6 +197,26 @@ def to_joint_displacements(vectors: np.ndarray, dofs: FreeDofs) -> np.ndarray:
     return np.einsum("nda,nak->knd", dofs.basis, padded)
 
 
+def joint_displacement_map(dofs: FreeDofs) -> sp.csr_matrix:
+    """The sparse matrix taking free-coordinate vectors to joint displacements.
+
+    Returns
+    -------
+    (n d, total) scipy.sparse.csr_matrix
+        ``M @ v`` is :func:`to_joint_displacements` of one column ``v``,
+        flattened joint by joint (joint ``j``'s movement is rows ``j d ..
+        j d + d - 1``).  Cost O(total d); applying it to ``k`` sparse columns
+        costs O(d nnz).
+    """
+    n, d = len(dofs.count), dofs.basis.shape[1]
+    joint = dofs.joint_of()
+    slot = np.arange(dofs.total) - dofs.offset[joint]
+    rows = (joint[:, None] * d + np.arange(d)[None, :]).ravel()
+    cols = np.repeat(np.arange(dofs.total), d)
+    vals = dofs.basis[joint, :, slot].ravel()        # (total, d): each coordinate's direction
+    return sp.csr_matrix((vals, (rows, cols)), shape=(n * d, dofs.total))
+
+
 def rigid_body_motions(frame: Frame, dofs: FreeDofs, *, tol: Tolerances = DEFAULT) -> np.ndarray:
     """Rigid-body motions of the whole frame that its supports permit.
 
@@ -235,7 +255,8 @@ def rigid_body_motions(frame: Frame, dofs: FreeDofs, *, tol: Tolerances = DEFAUL
     if len(frame.restraint_joint):
         Gj = G.reshape(n, d, -1)
         held = np.einsum("kd,kdr->kr", frame.restraint_dir, Gj[frame.restraint_joint])
-        _, s, vt = np.linalg.svd(held, full_matrices=True)
+        # only V is needed: the full U of thousands of restraints would cost O(k^2)
+        _, s, vt = np.linalg.svd(held, full_matrices=held.shape[0] < held.shape[1])
         rank = int(np.sum(s > tol.rank * max(s[0], 1.0))) if s.size else 0
         G = G @ vt[rank:].T
     # Express in free coordinates: restrained components are zero, so projecting

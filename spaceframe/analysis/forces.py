@@ -54,7 +54,7 @@ from ..loads import LoadSet
 from ..model import Frame, one_way_members
 from ..tolerances import DEFAULT, Tolerances
 from .equilibrium import (FreeDofs, axial_stiffness, compatibility_matrix, free_dofs,
-                          stiffness_matrix)
+                          joint_displacement_map, stiffness_matrix)
 
 __all__ = ["forces"]
 
@@ -200,8 +200,16 @@ def _solve(frame: Frame, F: np.ndarray, method: str, tol: Tolerances) -> _Solved
 
     norms = np.linalg.norm(F.reshape(q, -1), axis=1)
     safe = np.where(norms > 0, norms, 1.0)
-    modes = found.mode_displacements.reshape(k, n * d)           # zero where held
-    if k:
+    if k and found.modes.sparse:
+        # many sparse modes: the share on their span from the Gram matrix, never dense
+        modes = found.modes.matrix()                              # (k, n d), zero where held
+        a = np.asarray(modes @ F.reshape(q, -1).T)               # (k, q)
+        gram = spla.splu((modes @ modes.T).tocsc())
+        fraction = np.sqrt(np.maximum(np.sum(a * gram.solve(a), axis=0), 0.0)) / safe
+        rows = np.sqrt(np.asarray(modes.multiply(modes).sum(axis=1)).ravel())
+        each = np.abs(a / rows[:, None]) / safe
+    elif k:
+        modes = found.mode_displacements.reshape(k, n * d)       # zero where held
         basis, _ = np.linalg.qr(modes.T)
         fraction = np.linalg.norm(basis.T @ F.reshape(q, -1).T, axis=0) / safe
         each = np.abs((modes / np.linalg.norm(modes, axis=1)[:, None]) @ F.reshape(q, -1).T) / safe
@@ -220,7 +228,11 @@ def _solve(frame: Frame, F: np.ndarray, method: str, tol: Tolerances) -> _Solved
         if s == 0:
             t = _equilibrium_solve(C, rhs)
         else:
-            mech = _to_free(found.mode_displacements, dofs) if k else np.zeros((C.shape[1], 0))
+            if k and found.modes.sparse:
+                mech = sp.csc_matrix(joint_displacement_map(dofs).T @ found.modes.matrix().T)
+            else:
+                mech = _to_free(found.mode_displacements, dofs) if k else \
+                    np.zeros((C.shape[1], 0))
             t = _stiffness_solve(C, rhs, frame.lengths(), frame.member_properties.get("EA"),
                                  mech, dofs, tol)
         T[use] = t.T
@@ -372,10 +384,16 @@ def _stiffness_solve(C, f, lengths, ea, mech, dofs: FreeDofs, tol: Tolerances) -
     K = stiffness_matrix(C, lengths, ea)
     diag = K.diagonal()
     typical = float(np.median(diag[diag > 0]))
-    M, _ = np.linalg.qr(mech) if mech.shape[1] else (mech, None)
+    if sp.issparse(mech):       # many sparse mechanisms: the projector from their Gram matrix
+        M, gram = mech, spla.splu((mech.T @ mech).tocsc())
 
-    def project(X):
-        return X - M @ (M.T @ X) if M.shape[1] else X
+        def project(X):
+            return X - M @ gram.solve(np.asarray(M.T @ X))
+    else:
+        M, _ = np.linalg.qr(mech) if mech.shape[1] else (mech, None)
+
+        def project(X):
+            return X - M @ (M.T @ X) if M.shape[1] else X
 
     perm = _ordering(K, dofs.joint_of())
     inv = np.empty_like(perm)

@@ -33,12 +33,13 @@ import numpy as np
 import scipy.sparse as sp
 
 from ..model import Frame
+from ..modeset import ModeSet
 from ..naming import (count, direction_words, join_words, natural_key, numbered_only, placed,
                       xyz)
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
-__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "KINDS"]
+__all__ = ["ModeInfo", "local_basis", "order_rigid", "describe_modes", "mode_context", "KINDS"]
 
 #: A mode moving at most this many joints is "local".
 LOCAL_JOINTS = 3
@@ -257,26 +258,101 @@ def _joint_count(v, joint_of):
 
 
 def describe_modes(frame: Frame, displacements: np.ndarray, kinds_hint: tuple[str, ...], *,
-                   tol: Tolerances = DEFAULT):
+                   tol: Tolerances = DEFAULT, context: "_Context | None" = None):
     """Classify and describe each mode.
 
     Parameters
     ----------
     frame : Frame
-    displacements : (k, n, d) float
-        Joint movements of each mode.
+    displacements : (k, n, d) float, or ModeSet
+        Joint movements of each mode.  A sparse ModeSet is read one mode at a
+        time at the joints it moves, O(moving joints) each instead of O(n).
     kinds_hint : tuple of str
         ``"internal"`` or ``"rigid-body"`` for each mode.
     tol : Tolerances, keyword-only
         ``tol.direction_rank``, ``tol.pure_translation`` and ``tol.on_axis``
         (see :class:`~spaceframe.tolerances.Tolerances`).
 
+    context : optional, keyword-only
+        What the descriptions need of the frame (:func:`mode_context`), when the
+        caller describes several sets of modes of one frame; made here otherwise.
+
     Returns
     -------
     tuple of ModeInfo
     """
-    ctx = _Context(frame, tol)
+    ctx = _Context(frame, tol) if context is None else context
+    if isinstance(displacements, ModeSet) and displacements.sparse:
+        return _describe_sparse(ctx, displacements, kinds_hint)
+    if isinstance(displacements, ModeSet):
+        displacements = displacements.dense()
     return tuple(ctx.describe(u, hint) for u, hint in zip(displacements, kinds_hint))
+
+
+def mode_context(frame: Frame, *, tol: Tolerances = DEFAULT) -> "_Context":
+    """What :func:`describe_modes` needs of ``frame`` (lines of joints, member planes, the
+    natural order of ids), made once for several calls.  Cost O(n + m)."""
+    return _Context(frame, tol)
+
+
+def _describe_sparse(ctx: "_Context", modes: ModeSet, kinds_hint) -> tuple:
+    """:func:`describe_modes` of modes held sparse, in batches.
+
+    Each internal mode is read at the joints it moves only; the singular value
+    decompositions of the modes' joint movements (one per mode) and of the
+    member directions at the joints of one-joint modes (their plane's normal)
+    are each made in one batched call per shape, so that thousands of
+    one-joint modes cost little more than their sentences.
+    """
+    prepared, groups = {}, {}
+    for i, (hint, (index, values)) in enumerate(zip(kinds_hint, modes.supports())):
+        if hint == "rigid-body":
+            continue
+        u = _AtJoints(index, values)
+        moving, peak = ctx.moving(values, index)
+        U = values if len(moving) == len(index) == 1 else u[moving]
+        prepared[i] = (u, index, moving, peak, U)
+        groups.setdefault(U.shape, []).append(i)
+    svd = {}
+    for shape, idx in groups.items():
+        if 0 in shape:
+            continue
+        _, sv, vt = np.linalg.svd(np.stack([prepared[i][4] for i in idx]), full_matrices=False)
+        svd.update({i: (sv[t], vt[t]) for t, i in enumerate(idx)})
+    ctx.prime_normals([int(p[2][0]) for p in prepared.values() if len(p[2]) == 1])
+    out = []
+    for i, hint in enumerate(kinds_hint):
+        if i not in prepared:
+            out.append(ctx.describe(modes[i], hint))
+            continue
+        u, index, moving, peak, U = prepared[i]
+        info = None
+        if hint == "internal" and len(moving) == 1 and i in svd:
+            vt = svd[i][1]
+            direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
+            info = ctx.describe_one(int(moving[0]), U[0], direction)
+        out.append(info if info is not None else
+                   ctx.describe(u, hint, index=index, pre=(moving, peak, svd.get(i))))
+    return tuple(out)
+
+
+class _AtJoints:
+    """A mode's movement at some joints only (the others do not move): ``u[j]``, ``u[joints]``.
+
+    Reads only the joints given (those a sparse mode moves); any other joint is
+    an error, not a zero, so that a description cannot silently read one.
+    """
+
+    __slots__ = ("index", "values")
+
+    def __init__(self, index: np.ndarray, values: np.ndarray):
+        self.index, self.values = index, values
+
+    def __getitem__(self, j):
+        pos = np.searchsorted(self.index, j)
+        if not np.all(self.index[np.minimum(pos, len(self.index) - 1)] == j):
+            raise IndexError("joint not moved by this mode")
+        return self.values[pos]
 
 
 class _Context:
@@ -296,10 +372,15 @@ class _Context:
         order = np.argsort(inc_j, kind="stable")
         self.inc_m = inc_m[order]
         self.inc_ptr = np.searchsorted(inc_j[order], np.arange(n + 1))
+        self._rank = None
+        self._normals: dict = {}
+        self._words: dict = {}
+        self._frame_size = None
         self.up = d - 1  # z up in space, y up in a plane frame
         self.frames = frame.tag("joint", "frame")
         self.frame_order = tuple(fr for fr in dict.fromkeys(self.frames) if fr) \
             if self.frames else ()
+        self.frame_rank = {fr: i for i, fr in enumerate(self.frame_order)}
         self.extrusion = self._extrusion_direction()
         self.size = frame.size() or 1.0
         self.held = set(frame.restraint_joint.tolist())
@@ -325,8 +406,8 @@ class _Context:
         X = self.frame.coords
         across = X - np.outer(X @ e, e)
         grain = self.tol.on_axis * self.size       # one place: the same within on_axis
-        keys = [tuple(np.round(a / grain).astype(int)) if self.frames[j] else None
-                for j, a in enumerate(across)]
+        cells = np.round(across / grain).astype(int).tolist()
+        keys = [tuple(c) if self.frames[j] else None for j, c in enumerate(cells)]
         ids = self.frame.joint_ids
         members: dict = {}
         for j, k in enumerate(keys):
@@ -361,8 +442,55 @@ class _Context:
 
     def labels(self, joints) -> list[str]:
         """Labels of ``joints`` in natural order of their ids."""
-        ids = self.frame.joint_ids
-        return [self.label(j) for j in sorted(joints, key=lambda j: natural_key(ids[j]))]
+        return [self.label(j) for j in self.natural(joints)]
+
+    def natural(self, joints) -> np.ndarray:
+        """``joints`` in natural order of their ids (ties in the order given).
+
+        The same as ``sorted(joints, key=natural_key of the id)``, by one
+        ranking of all the frame's ids made on first use.
+        """
+        joints = np.asarray(joints, dtype=int).reshape(-1)
+        if len(joints) <= 1:
+            return joints
+        if self._rank is None:
+            ids = self.frame.joint_ids
+            order = sorted(range(len(ids)), key=lambda j: natural_key(ids[j]))
+            self._rank = np.empty(len(ids), dtype=int)
+            self._rank[order] = np.arange(len(ids))
+        return joints[np.argsort(self._rank[joints], kind="stable")]
+
+    def moving(self, values: np.ndarray, index: np.ndarray | None = None):
+        """The joints a mode moves (natural order) and the one it moves most.
+
+        ``values`` (s, d) are its movements at joints ``index`` (all joints when
+        None); a joint moves when ``|u_j| > Display.moving * max |u|``.
+        """
+        if index is not None and len(index) == 1:     # one joint: it moves, unless by nothing
+            return (index if np.any(values) else index[:0]), int(index[0])
+        size = np.linalg.norm(values, axis=1)
+        top = size.max() if size.size else 0.0
+        moving = np.flatnonzero(size > DISPLAY.moving * top)
+        peak = int(moving[np.argmax(size[moving])]) if len(moving) else 0
+        if index is not None:
+            moving, peak = index[moving], int(index[peak]) if len(index) else 0
+        return self.natural(moving), peak
+
+    def prime_normals(self, joints) -> None:
+        """:meth:`joint_plane_normal` of many joints at once (one batched SVD per degree)."""
+        if self.d != 3:
+            return
+        by_degree: dict = {}
+        for j in dict.fromkeys(joints):
+            if j not in self._normals:
+                by_degree.setdefault(self.inc_ptr[j + 1] - self.inc_ptr[j], []).append(j)
+        for deg, js in by_degree.items():
+            if deg < 2:
+                self._normals.update({j: None for j in js})
+                continue
+            _, sv, vt = np.linalg.svd(np.stack([self.w[self.members_at(j)] for j in js]))
+            for t, j in enumerate(js):
+                self._normals[j] = self._plane_normal(sv[t], vt[t])
 
     def members_at(self, j):
         return self.inc_m[self.inc_ptr[j]:self.inc_ptr[j + 1]]
@@ -387,31 +515,52 @@ class _Context:
 
     def joint_plane_normal(self, j):
         """Normal of the plane of joint j's members (None unless they span exactly a plane)."""
+        if j in self._normals:
+            return self._normals[j]
         ms = self.members_at(j)
         if self.d != 3 or len(ms) < 2:
             return None
         _, s, vt = np.linalg.svd(self.w[ms])
+        return self._plane_normal(s, vt)
+
+    def words(self, direction: np.ndarray) -> str:
+        """:func:`~spaceframe.naming.direction_words` of ``direction``, remembered: the
+        thousands of one-joint modes of a roof share a few directions."""
+        key = np.asarray(direction, dtype=float).tobytes()
+        if key not in self._words:
+            self._words[key] = direction_words(direction)
+        return self._words[key]
+
+    def _plane_normal(self, s, vt):
         eps = self.tol.direction_rank
         if s[1] > eps and (len(s) < 3 or s[2] < eps * s[0]):
             return vt[2]
         return None
 
-    def describe(self, u, hint) -> ModeInfo:
+    def describe(self, u, hint, index=None, pre=None) -> ModeInfo:
+        """The ModeInfo of one mode ``u`` (n, d); or, with ``index``, of a mode that
+        moves joints ``index`` only, ``u`` an :class:`_AtJoints` there.
+
+        ``pre = (moving, peak, (s, vt))``, where given, is what :meth:`moving` and the
+        SVD of ``u[moving]`` give (made in a batch by the caller).
+        """
         f = self.frame
-        size = np.linalg.norm(u, axis=1)
-        top = size.max() if size.size else 0.0
-        moving = np.flatnonzero(size > DISPLAY.moving * top)
-        peak = int(moving[np.argmax(size[moving])]) if len(moving) else 0
-        moving = np.array(sorted(moving, key=lambda j: natural_key(f.joint_ids[j])), int)
+        if pre is None:
+            moving, peak = self.moving(u if index is None else u.values, index)
+            svd = None
+        else:
+            moving, peak, svd = pre
         jids = tuple(f.joint_ids[j] for j in moving)
         mem = sorted({int(m) for j in moving for m in self.members_at(j)})
         mids = tuple(f.member_ids[m] for m in mem)
         frames = ()
         if self.frames:
             present = {self.frames[j] for j in moving if self.frames[j]}
-            frames = tuple(fr for fr in self.frame_order if fr in present)
-        U = u[moving]
-        _, s, vt = np.linalg.svd(U, full_matrices=False)
+            frames = tuple(sorted(present, key=self.frame_rank.__getitem__))
+        if svd is None:
+            _, s, vt = np.linalg.svd(u[moving], full_matrices=False)
+        else:
+            s, vt = svd
         direction = vt[0] * np.sign(vt[0][np.argmax(np.abs(vt[0]))])
         parallel = s[0] ** 2 / max(np.sum(s ** 2), 1e-300)
 
@@ -504,33 +653,54 @@ class _Context:
         return self.label(j) if dist[j] <= self.tol.on_axis * self.size else None
 
     # -- internal ----------------------------------------------------------
+    def _one_joint(self, j, uj, direction):
+        """Kind, sentence and data of an internal mode that moves joint ``j`` alone by ``uj``,
+        where it is one of the one-joint kinds (no members, out of their plane, on a straight
+        line of them); None otherwise."""
+        first = self.label(j)
+        ms = self.members_at(j)
+        if len(ms) == 0:                                   # a joint with no members at all
+            if j in self.held:
+                return "local", (f"Joint {first} has no members and its support leaves it free "
+                                 f"{self.words(direction)}."), {}
+            return "local", (f"Joint {first} has no members and no support: it is free "
+                             f"{self.words(direction)}."), {}
+        if self._out_of_plane(j, uj):                      # out of the plane of its members
+            return "out-of-plane", (f"Joint {first} is free out of the plane of its "
+                                    f"members ({self.words(direction)}): no member or "
+                                    f"support holds it that way."), {}
+        if np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
+            return "local", (f"Joint {first} lies on a straight line of members and is "
+                             f"free sideways to them ({self.words(direction)})."), {}
+        return None
+
+    def describe_one(self, j: int, uj: np.ndarray, direction: np.ndarray) -> ModeInfo | None:
+        """:meth:`describe` of an internal mode moving joint ``j`` alone by ``uj`` (``direction``
+        its unit direction, sign as there), for the one-joint kinds; None for any other."""
+        words = self._one_joint(j, uj, direction)
+        if words is None:
+            return None
+        kind, text, extra = words
+        f = self.frame
+        mids = tuple(f.member_ids[m] for m in sorted(set(self.members_at(j).tolist())))
+        frames = (self.frames[j],) if self.frames and self.frames[j] else ()
+        text += self._plane_note(uj[None], np.zeros(1, dtype=int))
+        return ModeInfo(kind=kind, joints=(f.joint_ids[j],), members=mids, direction=direction,
+                        frames=frames, description=text, **extra)
+
     def _internal(self, u, moving, direction, parallel, frames, peak):
         """Kind, sentence and data (``lines``, ``pivots``) of one internal mode."""
         n_mov = len(moving)
-        first = self.label(moving[0]) if n_mov else ""
         names = join_words(self.labels(moving), most=4)
-        # a joint with no members at all
-        if n_mov == 1 and len(self.members_at(moving[0])) == 0:
-            if moving[0] in self.held:
-                return "local", (f"Joint {first} has no members and its support leaves it free "
-                                 f"{direction_words(direction)}."), {}
-            return "local", (f"Joint {first} has no members and no support: it is free "
-                             f"{direction_words(direction)}."), {}
+        if n_mov == 1:
+            words = self._one_joint(moving[0], u[moving[0]], direction)
+            if words is not None:
+                return words
         # out of the plane of the members at each moving joint
-        if all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first joint that is not
-            if n_mov == 1:
-                return "out-of-plane", (f"Joint {first} is free out of the plane of its "
-                                        f"members ({direction_words(direction)}): no member or "
-                                        f"support holds it that way."), {}
+        elif all(self._out_of_plane(j, u[j]) for j in moving):  # stops at the first that is not
             return "out-of-plane", (f"Joints {names} can move out of the plane of their members "
                                     f"({direction_words(direction)}), with nothing to stop "
                                     f"them."), {}
-        # collinear members: free sideways
-        if n_mov == 1:
-            ms = self.members_at(moving[0])
-            if len(ms) and np.linalg.matrix_rank(self.w[ms], tol=self.tol.direction_rank) == 1:
-                return "local", (f"Joint {first} lies on a straight line of members and is "
-                                 f"free sideways to them ({direction_words(direction)})."), {}
         along_building = self.extrusion is not None and len(frames) >= 2 and parallel >= 0.9 \
             and abs(direction @ self.extrusion) >= 0.9
         if along_building:
@@ -577,10 +747,11 @@ class _Context:
         per = {fr: 0 for fr in frames}
         for j in moving:
             per[labels[j]] += 1
-        total = {fr: 0 for fr in frames}
-        for fr in labels:
-            if fr in total:
-                total[fr] += 1
+        if self._frame_size is None:               # joints of each frame, counted once
+            self._frame_size = {}
+            for fr in labels:
+                self._frame_size[fr] = self._frame_size.get(fr, 0) + 1
+        total = self._frame_size
         return all(per[fr] >= 0.5 * total[fr] and per[fr] >= 2 for fr in frames)
 
     def _tie_line_words(self, lines, moving, frames, along) -> str:

@@ -35,13 +35,16 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.sparse as sp
 
 from ..errors import ModelError
 from ..model import Frame
+from ..modeset import ModeSet
 from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["PrestressResult", "DeclaredPrestress", "prestress_test", "declared_prestress_test",
-           "product_forces", "STIFFENED", "NOT_STIFFENED"]
+           "product_forces", "product_forces_sparse", "prestress_test_sparse", "STIFFENED",
+           "NOT_STIFFENED"]
 
 STIFFENED = "first-order: stiffened only if built and kept prestressed"
 NOT_STIFFENED = "not stiffened by any prestress"
@@ -55,9 +58,10 @@ class PrestressResult:
     ----------
     orders : tuple of str
         :data:`STIFFENED` or :data:`NOT_STIFFENED` for each internal mode.
-    prestress : (k, m) float
+    prestress : (k, m) float, or ModeSet
         For each internal mode, a stiffening state of self-stress (largest
-        force 1, tension positive), or zeros.
+        force 1, tension positive), or zeros; a sparse :class:`ModeSet` from
+        :func:`prestress_test_sparse`.
     stable : bool or None
         True when one state stiffens every internal mechanism (the certificate
         is ``certificate``); False when some mode is stiffened by none (then no
@@ -107,8 +111,8 @@ def declared_prestress_test(frame: Frame, C, dofs, modes: np.ndarray, *, rigid_b
         The compatibility matrix; ``C.T t`` is the force the prestress ``t``
         leaves unbalanced at the free coordinates.
     dofs : FreeDofs
-    modes : (k, n, d) float
-        Internal mechanisms.
+    modes : (k, n, d) float, or ModeSet
+        Internal mechanisms (a sparse ModeSet: the stress form is built sparse).
     rigid_body_modes : int
         Rigid-body motions the supports permit (no prestress holds them).
     tol : Tolerances, keyword-only
@@ -146,17 +150,57 @@ def declared_prestress_test(frame: Frame, C, dofs, modes: np.ndarray, *, rigid_b
                          f"the force of every member that carries the prestress, in "
                          f"equilibrium at every joint with no load",
                          path=frame.source, item=frame.joint_ids[worst])
-    k = modes.shape[0]
+    k = len(modes)
     if k == 0:
         return DeclaredPrestress(t, np.zeros(0, dtype=bool), rigid_body_modes == 0)
-    du = _relative(frame, modes)
     L = frame.lengths()
+    if isinstance(modes, ModeSet) and modes.sparse:
+        du = _relative_sparse(frame, modes)
+        M, M_abs = _stress_form_sparse(du, L, t), _stress_form_sparse(du, L, np.abs(t))
+        scale = tol.stiffening * max(float(abs(M_abs).max()), 1e-300)
+        stiffens = M.diagonal() > scale
+        # positive definite: every diagonal entry positive, then the smallest eigenvalue
+        holds = bool(rigid_body_modes == 0 and stiffens.all() and
+                     _smallest_eigenvalue(M, tol) > scale)
+        return DeclaredPrestress(t, stiffens, holds)
+    modes = modes.dense() if isinstance(modes, ModeSet) else modes
+    du = _relative(frame, modes)
     M = _stress_form(du, L, t)
     M_abs = _stress_form(du, L, np.abs(t))
     scale = tol.stiffening * max(float(np.abs(M_abs).max()), 1e-300)
     stiffens = np.diag(M) > scale
     holds = bool(rigid_body_modes == 0 and np.linalg.eigvalsh(M)[0] > scale)
     return DeclaredPrestress(t, stiffens, holds)
+
+
+def _smallest_eigenvalue(M: sp.spmatrix, tol: Tolerances) -> float:
+    """Smallest eigenvalue of a sparse symmetric ``M``: dense up to ``tol.limits.dense_soft``."""
+    if M.shape[0] <= tol.limits.dense_soft:
+        return float(np.linalg.eigvalsh(M.toarray())[0])
+    from scipy.sparse.linalg import eigsh
+
+    return float(eigsh(M.tocsc(), k=1, which="SA", return_eigenvectors=False)[0])
+
+
+def _relative_sparse(frame: Frame, modes: ModeSet) -> list[sp.csr_matrix]:
+    """Relative end movements of every member in every mode: ``d`` sparse ``(k, m)`` matrices.
+
+    Cost O(d nnz) of the modes' rows.
+    """
+    m, n, d = frame.n_members, frame.n_joints, frame.dimension
+    B = sp.csr_matrix((np.r_[np.ones(m), -np.ones(m)],
+                       (np.r_[frame.ends[:, 1], frame.ends[:, 0]], np.r_[np.arange(m),
+                                                                       np.arange(m)])),
+                      shape=(n, m))
+    U = modes.matrix()
+    return [sp.csr_matrix(U[:, a::d] @ B) for a in range(d)]
+
+
+def _stress_form_sparse(du: list, L: np.ndarray, t: np.ndarray) -> sp.csr_matrix:
+    """``U.T G(t) U`` over sparse modes, ``(k, k)`` sparse symmetric."""
+    w = sp.diags(t / L)
+    M = sum(x @ w @ x.T for x in du)
+    return sp.csr_matrix((M + M.T) / 2)
 
 
 def _stress_form(du: np.ndarray, L: np.ndarray, t: np.ndarray) -> np.ndarray:
@@ -174,6 +218,59 @@ def product_forces(frame: Frame, modes: np.ndarray) -> np.ndarray:
     """Product forces ``p_e = |du_e|^2 / L_e`` of each mode, ``(m, k) float``."""
     du = _relative(frame, modes)
     return np.einsum("kmd,kmd->mk", du, du) / frame.lengths()[:, None]
+
+
+def product_forces_sparse(frame: Frame, modes: ModeSet) -> sp.csc_matrix:
+    """:func:`product_forces` of modes held sparse: ``(m, k)`` sparse.
+
+    Only members with an end at a moving joint have one; a one-joint mode's
+    are those of that joint's members, ``|u_j|^2 / L_e`` (the other end stays).
+    Cost O(d nnz) of the modes' rows.
+    """
+    du = _relative_sparse(frame, modes)
+    p = sum(x.multiply(x) for x in du)
+    return sp.csc_matrix(sp.csr_matrix(p).multiply(1.0 / frame.lengths()[None, :]).T)
+
+
+def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
+                          tol: Tolerances = DEFAULT) -> PrestressResult:
+    """:func:`prestress_test` on product forces and their projections held sparse.
+
+    Parameters
+    ----------
+    p : (m, k) sparse
+        Product forces of the internal modes (:func:`product_forces_sparse`).
+    P : (m, k) sparse
+        Their projections onto the states of self-stress
+        (:func:`spaceframe.analysis.blocks.project_sparse`).
+    tol : Tolerances, keyword-only
+        ``tol.stiffening`` as in :func:`prestress_test`.  The search for one
+        state for all modes is not made here (``prestress_stable`` is False
+        when some mode is stiffened by none, else None): it is for at most
+        ``tol.limits.common_prestress`` modes, and the audit takes this path
+        only for more than ``tol.limits.block_prestress``, which is larger.
+
+    Returns
+    -------
+    PrestressResult
+        With ``prestress`` a sparse :class:`ModeSet` of ``(m,)`` states.
+
+    Notes
+    -----
+    Cost O(nnz(p) + nnz(P)); no dense ``(m, k)`` array.
+    """
+    p, P = sp.csc_matrix(p), sp.csc_matrix(P)
+    m, k = P.shape
+    norm_p = np.sqrt(np.asarray(p.multiply(p).sum(axis=0)).ravel())
+    norm_P = np.sqrt(np.asarray(P.multiply(P).sum(axis=0)).ravel())
+    top = np.asarray(abs(P).max(axis=0).toarray()).ravel() if k else np.zeros(0)
+    stiff = norm_P > tol.stiffening * np.maximum(norm_p, 1e-300)
+    orders = tuple(STIFFENED if s else NOT_STIFFENED for s in stiff)
+    scale = np.where(stiff & (top > 0), 1.0 / np.where(top > 0, top, 1.0), 0.0)
+    rows = sp.csr_matrix(P.T).multiply(scale[:, None]).tocsr()
+    rows.eliminate_zeros()
+    stable = False if not stiff.all() else None
+    return PrestressResult(orders, ModeSet(rows, (m,)), stable if k else None, None)
 
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,

@@ -342,8 +342,8 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
     if audit is None:
         from .audit import audit as run_audit
         audit = run_audit(frame, self_stress_cap=0, soft=False, redundancy=False, tol=tol)
-    U = np.asarray(audit.mode_displacements, dtype=float)          # (k, n, d)
-    k = U.shape[0]
+    M = audit.modes.matrix().tocsc()              # (k, n d), sparse: never the dense basis
+    k, d = M.shape[0], frame.dimension
     X = frame.coords
     normals = _frame_normals(frame, tol) if frame.dimension == 3 else {}
     principal = None
@@ -380,7 +380,7 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
             if name not in dirs:
                 continue
             e = dirs[name]
-            moved = (np.abs(U[:, J, :] @ e).max(axis=0) > tol.restraint_motion if k
+            moved = (_sideways(M, J, e, d) > tol.restraint_motion if k
                      else np.zeros(len(J), dtype=bool))
             ok = ~moved
             restrained[name] = ok
@@ -404,7 +404,7 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
                           lengths=lengths, ends_held=held, unrestrained=loose,
                           compression=comp))
 
-    not_held = _outside(U, allowed, tol) if k else ()
+    not_held = _outside(audit.modes, allowed, tol) if k else ()
     result = dict(frame=frame, rule=chords, chords=tuple(made), mechanisms=k,
                   held_pin_jointed=k == 0, held_with_continuous_chords=not not_held,
                   not_held=not_held, case_names=tuple(names), forces=forces,
@@ -421,23 +421,30 @@ def restraints(frame: Frame, *, chords: str | None = None, cases: Sequence[str] 
     return RestraintResult(**result)
 
 
-def _outside(U: np.ndarray, allowed: dict, tol: Tolerances) -> tuple:
+def _outside(modes, allowed: dict, tol: Tolerances) -> tuple:
     """The mechanisms that are not lateral motions of chord joints between restraint points.
 
-    ``allowed`` maps a joint to the lateral directions it may move in; each
-    mode's movement at every joint, less its projection onto those, must be
-    within ``tol.restraint_motion``.  Returns ``((mode, joints outside), ...)``.
+    ``modes`` is the audit's :class:`~spaceframe.modeset.ModeSet` of ``(n, d)``
+    movements, read at the joints each mode moves; ``allowed`` maps a joint to
+    the lateral directions it may move in.  Each mode's movement at every
+    joint, less its projection onto those, must be within
+    ``tol.restraint_motion``.  Returns ``((mode, joints outside), ...)``.
+    O(nnz of the modes) besides one small SVD per allowed joint.
     """
-    size = np.linalg.norm(U, axis=2)                           # (k, n)
+    bases = {}
     for j, dirs in allowed.items():
         D = np.array(dirs).T                                   # (d, r)
         q, s, _ = np.linalg.svd(D, full_matrices=False)
-        B = q[:, s > 1e-12 * s[0]]
-        u = U[:, j, :]
-        size[:, j] = np.linalg.norm(u - (u @ B) @ B.T, axis=1)
+        bases[j] = q[:, s > 1e-12 * s[0]]
     out = []
-    for i in range(len(U)):
-        bad = np.flatnonzero(size[i] > tol.restraint_motion)
+    for i, (index, u) in enumerate(modes.supports()):
+        size = np.linalg.norm(u, axis=1)                       # (s,) at the joints it moves
+        for pos, j in enumerate(index.tolist()):
+            B = bases.get(j)
+            if B is not None:
+                w = u[pos]
+                size[pos] = np.linalg.norm(w - (w @ B) @ B.T)
+        bad = index[size > tol.restraint_motion]
         if bad.size:
             out.append((i, tuple(int(j) for j in bad)))
     return tuple(out)
@@ -463,3 +470,28 @@ def _restraint_loads(frame: Frame, chords, shown: np.ndarray, fraction: float) -
             if here > 0:
                 F[c.joints[i]] += fraction * here * e
     return F
+
+
+def _sideways(M, J, e, d: int) -> np.ndarray:
+    """The largest movement along ``e`` of each joint in ``J`` over every mode.
+
+    Parameters
+    ----------
+    M : (k, n d) scipy.sparse CSC matrix
+        The modes as rows (joint ``j``'s movement in columns ``j d .. j d + d - 1``).
+    J : (s,) int
+        Joints.
+    e : (d,) float
+        A unit direction.
+
+    Returns
+    -------
+    (s,) float
+        ``max_i |u_i(J) . e|``; O(nnz of the columns read).
+    """
+    J = np.asarray(J, dtype=int)
+    along = sum(M[:, J * d + a] * float(e[a]) for a in range(d) if e[a] != 0.0)
+    if isinstance(along, int):                     # e is zero: nothing moves along it
+        return np.zeros(len(J))
+    return np.asarray(abs(along).max(axis=0).todense()).ravel()
+

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 import click
@@ -71,11 +70,18 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, con
             from ..analysis.restraints import restraints
             held = restraints(frame, chords=chords, audit=result, compression=False)
         if as_json:
-            doc = result.to_dict()
+            from ..jsonstream import chunks
+            doc = result.document()          # its mechanisms made one at a time as written
             if held is not None:
                 from ..views.restraints_text import continuous_verdict
                 doc["continuous_chords"] = dict(held.summary(), verdict=continuous_verdict(held))
-            click.echo(json.dumps(doc, indent=1, allow_nan=False))
+            pieces = []
+            for piece in chunks(doc, indent=1, allow_nan=False):
+                pieces.append(piece)
+                if len(pieces) >= 4096:
+                    click.echo("".join(pieces), nl=False)
+                    pieces.clear()
+            click.echo("".join(pieces))
         else:
             many = sys.maxsize if show_all else 8
             text = render_audit(result, max_modes=many,

@@ -13,10 +13,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..model import Frame
+from ..modeset import ModeSet
 from ..results import AuditResult
 from ..tolerances import DEFAULT, DISPLAY
 
-__all__ = ["Scene", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints", "carrying_members",
+__all__ = ["Scene", "Motions", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints", "carrying_members",
            "AMPLITUDE"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
@@ -38,9 +39,11 @@ class Scene:
     ends : (m, 2) int
     extent : float
         Largest side of the joints' bounding box (1 for a single point).
-    modes : (p, n, 3) float
+    modes : sequence of (n, 3) float
         The audit's mechanisms (largest joint movement 1), in its order, then
-        the one-way motion of a frame its one-way members do not hold.
+        the one-way motion of a frame its one-way members do not hold; each
+        embedded in 3D as it is read (:class:`Motions`), so a frame with
+        thousands of sparse modes is never expanded whole.
     supports : list of (joint index, (3,) unit vector)
         One entry per restrained direction.
     normal : (3,) float or None
@@ -55,7 +58,7 @@ class Scene:
     coords: np.ndarray
     ends: np.ndarray
     extent: float
-    modes: np.ndarray
+    modes: "Motions"
     supports: list
     normal: np.ndarray | None = None
     one_way: int | None = None
@@ -110,27 +113,55 @@ class Scene:
         return out
 
 
+class Motions:
+    """Joint movements read one at a time, in 3D: a :class:`ModeSet`, then extra motions.
+
+    ``len(motions)``, ``motions[i]`` (``(n, 3)``, a plane frame's ``[x, y]`` as
+    ``[x, 0, y]``) and iteration; nothing is expanded until it is read.
+    """
+
+    def __init__(self, modes: ModeSet, dimension: int, extra=()):
+        self.base, self.dimension = modes, dimension
+        self.extra = [np.asarray(u, float) for u in extra]
+
+    def __len__(self) -> int:
+        return len(self.base) + len(self.extra)
+
+    def __getitem__(self, i: int) -> np.ndarray:
+        k = len(self.base)
+        if not -len(self) <= i < len(self):
+            raise IndexError(f"motion {i} of {len(self)}")
+        i %= len(self)
+        u = self.base[i] if i < k else self.extra[i - k]
+        return _embed(u, self.dimension)
+
+    def __iter__(self):
+        return (self[i] for i in range(len(self)))
+
+
 def scene_of(result: AuditResult) -> Scene:
     """The :class:`Scene` of an audited frame: its mechanisms, then any one-way motion.
 
-    Cost O(p n) for p modes and n joints.
+    Cost O(n + m) to build; each motion O(n) when it is read.
     """
-    modes = np.asarray(result.mode_displacements, float)
     w = result.one_way
     one_way = None
+    extra = ()
     if w is not None and w.motion is not None:
-        one_way = len(modes)
-        modes = np.concatenate([modes.reshape(-1, *w.motion.shape), w.motion[None]])
-    return frame_scene(result.frame, modes, one_way=one_way)
+        one_way, extra = result.mechanisms, (w.motion,)
+    return frame_scene(result.frame, Motions(result.modes, result.frame.dimension, extra),
+                       one_way=one_way)
 
 
 def frame_scene(f: Frame, modes=None, *, one_way: int | None = None) -> Scene:
     """The :class:`Scene` of a frame with the joint movements ``modes`` ``(p, n, d)``
-    (none: the frame at rest); ``one_way`` is the index of a one-way motion among them."""
+    (none: the frame at rest; or :class:`Motions`); ``one_way`` is the index of a
+    one-way motion among them."""
     coords = _embed(np.asarray(f.coords, float), f.dimension)
-    modes = np.zeros((0, f.n_joints, f.dimension)) if modes is None else np.asarray(modes, float)
-    modes = np.stack([_embed(u, f.dimension) for u in modes]) if len(modes) else \
-        np.zeros((0, len(coords), 3))
+    if not isinstance(modes, Motions):
+        modes = np.zeros((0, f.n_joints, f.dimension)) if modes is None else \
+            np.asarray(modes, float)
+        modes = Motions(ModeSet(modes, (f.n_joints, f.dimension)), f.dimension)
     dirs = _embed(np.asarray(f.restraint_dir, float), f.dimension)
     extent = float(np.ptp(coords, axis=0).max()) if len(coords) > 1 else 0.0
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]

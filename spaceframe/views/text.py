@@ -277,12 +277,12 @@ def _order_note(r: AuditResult, i: int, *, plural: bool = False) -> str:
 
 def _stiffening_state(r: AuditResult, i: int) -> str:
     """``"state 2 (tension in R1, R2)"``: the state that stiffens mode ``i``, in words."""
-    t = r.mode_prestress[i]
+    index, t = r.stiffening.support(i)
     pull = [k for k in np.argsort(-t, kind="stable") if t[k] > 0.05]
-    ids = [r.frame.member_ids[k] for k in pull]
+    ids = [r.frame.member_ids[index[k]] for k in pull]
     words = ", ".join(ids[:4]) + (f" and {len(ids) - 4} more" if len(ids) > 4 else "")
     for j, s in enumerate(r.self_stress_forces):
-        if abs(s @ t) >= 0.999 * np.linalg.norm(s) * np.linalg.norm(t):
+        if abs(s[index] @ t) >= 0.999 * np.linalg.norm(s) * np.linalg.norm(t):
             return f"state of self-stress {j + 1} (tension in {words})"
     return f"a state of self-stress with tension in {words}"
 

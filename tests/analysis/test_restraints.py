@@ -264,3 +264,24 @@ def test_units_scale_lengths_and_json_is_deterministic():
             np.testing.assert_allclose(c.lengths[d] / 1000.0, e.lengths[d], rtol=1e-12)
     one = json.dumps(a.to_dict())
     assert one == json.dumps(restraints(mm, chords="role=chord").to_dict())
+
+
+@pytest.mark.parametrize("braced", [True, False])
+def test_modes_held_sparse_give_the_same_restraints(braced):
+    """A frame with many mechanisms has its modes held as sparse rows (``Limits.dense_modes``);
+    the restraint reading works on those rows without the dense basis and must give the same
+    chords, restraint points, lengths and verdict as on the dense modes (same mode space, so
+    the same joints move: a derived equality, not a tolerance)."""
+    from dataclasses import replace
+
+    from spaceframe.tolerances import DEFAULT
+
+    sparse = replace(DEFAULT, limits=replace(DEFAULT.limits, dense_modes=0))
+    frame = roof(["L2", "L4"], braced=braced, bearings="all")
+    dense_audit = spaceframe.audit(frame)
+    sparse_audit = spaceframe.audit(frame, tol=sparse)
+    assert not dense_audit.modes.sparse and sparse_audit.modes.sparse
+    a = restraints(frame, chords="role=chord", audit=dense_audit)
+    b = restraints(frame, chords="role=chord", audit=sparse_audit)
+    assert a.to_dict() == b.to_dict()
+    assert [m for m, _ in a.not_held] == [m for m, _ in b.not_held]

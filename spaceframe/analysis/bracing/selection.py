@@ -270,8 +270,14 @@ def lateral_restraint(frame: Frame, after: AuditResult, *,
     if plane is None or not after.mechanisms:
         return None
     normal, centre = plane
-    u = after.mode_displacements            # (k, n, 3), each mode's largest movement 1
-    out = np.abs(u @ normal).max(axis=0) > tol.acts
+    if after.modes.sparse:                  # (k, n 3) sparse rows: each joint's movement along normal
+        n = frame.n_joints
+        along = sp.csr_matrix((np.tile(normal, n), (np.arange(3 * n), np.repeat(np.arange(n), 3))),
+                              shape=(3 * n, n))
+        out = abs(after.modes.matrix() @ along).max(axis=0).toarray().ravel() > tol.acts
+    else:
+        u = after.mode_displacements        # (k, n, 3), each mode's largest movement 1
+        out = np.abs(u @ normal).max(axis=0) > tol.acts
     if not out.any():
         return None
     return LateralRestraint(tuple(int(j) for j in np.flatnonzero(out)), normal, centre)
@@ -308,7 +314,7 @@ def remedies(frame: Frame, after: AuditResult, *,
         if after.mode_kinds[m] == "rigid-body":
             out.append(Remedy(m, "restraint"))
             continue
-        u = after.mode_displacements[m]
+        u = after.modes[m]
         j = int(np.argmax(np.linalg.norm(u, axis=1)))
         _, near = tree.query(X[j], k=near_count)
         remedy = Remedy(m, "direction", joint=j,
@@ -434,9 +440,14 @@ exclude_panels : keyword-only
     choice = None
     k = before.mechanisms
     n, d = frame.n_joints, frame.dimension
-    U = before.mode_displacements.reshape(k, n * d).T if k else np.zeros((n * d, 0))
+    # the readable modes, (n d, k); held sparse for many modes, dense only for the basis below
+    U = (before.modes.matrix().T.tocsc() if before.modes.sparse else
+         before.mode_displacements.reshape(k, n * d).T) if k else np.zeros((n * d, 0))
     A = reach_rows(frame, cand)
     acts_all = np.abs(A @ U) if k else np.zeros((len(cand), 0))   # (c, k), readable modes
+    if sp.issparse(acts_all):
+        acts_all = acts_all.toarray()
+        U = U.toarray()
     chosen, alts, basis, least = [], [], [], 0.0
     reach, threshold, rc = np.zeros((len(cand), 0)), 0.0, None
     if k and len(cand):
