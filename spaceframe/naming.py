@@ -8,14 +8,15 @@ desktop window read the same.
 from __future__ import annotations
 
 import re
+from pathlib import Path
 from typing import Iterable
 
 import numpy as np
 
 from .tolerances import DISPLAY
 
-__all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "placed", "xyz",
-           "direction_words", "fixed_decimals"]
+__all__ = ["natural_key", "natural_sorted", "count", "join_words", "numbered_only", "is_imported",
+           "placed_joints", "joint_label", "xyz", "measure", "direction_words", "fixed_decimals"]
 
 _DIGITS = re.compile(r"(\d+)")
 
@@ -92,16 +93,84 @@ def numbered_only(ids, tagged: bool = False) -> bool:
     return len(prefixes) == 1 and all(i[len(next(iter(prefixes))):].isdigit() for i in ids)
 
 
-def placed(ident: str, point, size: float = 1.0) -> str:
-    """``ident`` with its coordinates: ``J59 (2.5, 0, 1.5)`` (3 significant figures; values
-    with ``|x| <= Display.zero_coordinate * size`` written as 0)."""
-    return f"{ident} ({xyz(point, size)})"
+#: Model files written by hand or by spaceframe: their joint ids are the user's own.
+_NATIVE = (".toml", ".json", ".npz")
+#: Joint tags that say where an imported joint is in its source, and their words.
+_ORIGIN_TAGS = (("ifc_name", "IFC name"), ("layer", "layer"))
+
+
+def is_imported(frame) -> bool:
+    """Whether the frame was read from geometry (a mesh, drawing, CSV or IFC file)."""
+    return frame.source is not None and Path(frame.source).suffix.lower() not in _NATIVE
+
+
+def placed_joints(frame) -> bool:
+    """The one rule of when joints are named with where they are (:func:`joint_label`).
+
+    True when the ids say nothing of where a joint is: ids that only number the
+    joints (:func:`numbered_only`: ``J1, J2, ...`` with no tags), or any frame
+    imported from geometry (:func:`is_imported`), whose ids were generated.
+    """
+    return is_imported(frame) or numbered_only(frame.joint_ids, tagged=bool(frame.joint_tags))
+
+
+def joint_label(frame, j: int, size: float | None = None) -> str:
+    """Joint ``j``'s id with its coordinates, and its IFC name or drawing layer if it has one.
+
+    ``J59 (2.5, 0, 1.5)``, ``J3 (3000, 0; layer WEB)``: coordinates by :func:`xyz`
+    (``size``: the frame's size, :meth:`Frame.size`, computed when not given).
+    The one home of a joint's label: the mode descriptions, the text, the
+    bracing list and the report all write it so, where :func:`placed_joints`.
+
+    Examples
+    --------
+    >>> from spaceframe import Frame
+    >>> f = Frame.from_arrays([[0, 0], [2.5, 1.5]], [[0, 1]], joint_ids=["J1", "J2"])
+    >>> joint_label(f, 1)
+    'J2 (2.5, 1.5)'
+    """
+    size = frame.size() if size is None else size
+    parts = [xyz(frame.coords[j], size)]
+    for tag, words in _ORIGIN_TAGS:
+        labels = frame.joint_tags.get(tag)
+        if labels and labels[j]:
+            parts.append(f"{words} {labels[j]}")
+    return f"{frame.joint_ids[j]} ({'; '.join(parts)})"
 
 
 def xyz(point, size: float = 1.0) -> str:
-    """Coordinates as ``2.5, 0, 1.5`` (3 significant figures; tiny values as 0)."""
-    return ", ".join(f"{0.0 if abs(c) <= DISPLAY.zero_coordinate * size else c:.3g}"
-                     for c in point)
+    """Coordinates as ``2.5, 0, 1.5``, each by :func:`measure`.
+
+    Examples
+    --------
+    >>> xyz([2.5, 0.0, 1.5], 12.0), xyz([3000.0, -1e-12], 30000.0), xyz([0.12345], 1.0)
+    ('2.5, 0, 1.5', '3000, 0', '0.123')
+    """
+    return ", ".join(measure(c, size) for c in point)
+
+
+def measure(value: float, size: float = 1.0, *, up: bool = False) -> str:
+    """A coordinate or length of a frame of size ``size`` in figures: to four
+    significant figures of ``size`` (:func:`fixed_decimals`: one fixed point for a
+    frame, trailing zeros dropped, never an exponent; ``|x| <= Display.zero_coordinate * size``
+    written as 0).  With ``up`` the value is rounded up at that resolution, for a
+    threshold the value must pass (``--within 1921`` for a member 1920.9 long).
+
+    Examples
+    --------
+    >>> measure(1920.94, 10800.0), measure(1920.94, 10800.0, up=True), measure(2.4, 9.0)
+    ('1921', '1921', '2.4')
+    >>> measure(1920.04, 10800.0, up=True), measure(-0.001, 12.0)
+    ('1921', '0')
+    """
+    size = abs(float(size)) or 1.0
+    k = fixed_decimals([size])
+    c = float(value)
+    if abs(c) <= DISPLAY.zero_coordinate * size:
+        c = 0.0
+    c = np.ceil(c * 10 ** k) / 10 ** k if up else round(c, k)
+    text = f"{c:.{k}f}".rstrip("0").rstrip(".") if k else f"{c:.0f}"
+    return "0" if text in ("-0", "") else text
 
 
 def direction_words(v, *, signed: bool = True) -> str:

@@ -216,6 +216,32 @@ def test_demo_variants_file():
     assert len(variants) == 5 + 12  # base, four layouts, twelve bearings
 
 
+def test_variant_keeps_the_loads():
+    """A variant of a loaded model (the braced hall roof's snow, wind and their combination)
+    keeps its load set field by field: loads name joints by id, and a variant edits members
+    and supports, never joints (spaceframe/edit.py carries every field of the frame). Its
+    load cases then run on the changed frame: a roof variant that frees a gable bearing still
+    has every case, and each case's reactions balance its load (Newton's third law: the sum
+    of the support reactions is minus the total applied load)."""
+    import numpy as np
+
+    from spaceframe.batch import Variant, apply_variant
+
+    from common.frames import assert_same_loads
+
+    frame = spaceframe.load(ROOT / "models" / "hall_roof_braced.toml")
+    held = sorted({frame.joint_ids[j] for j in frame.restraint_joint.tolist()})
+    v = Variant("moved", move_joints=((held[0], tuple(frame.coords[frame.joint_ids.index(
+        held[0])] + [0.0, 0.0, 0.05])),), supports=((held[1], "z"),))
+    changed = apply_variant(frame, v)
+    assert_same_loads(changed.loads, frame.loads)
+    r = spaceframe.forces(changed)
+    assert r.names == frame.loads.applied(frame).names
+    for i in np.flatnonzero(r.carried):
+        np.testing.assert_allclose(r.reactions[i].sum(axis=0), -r.loads[i].sum(axis=0),
+                                   atol=1e-6 * max(1.0, np.abs(r.loads[i]).sum()))
+
+
 def test_variant_keeps_ea_tags_and_supports_field_by_field():
     """Every change a variant can make, on a frame with tags and EA: the result written out by
     hand (source: derived from the frame's own fields and spaceframe/edit.py's rule: an added

@@ -34,8 +34,8 @@ import scipy.sparse as sp
 
 from ..model import Frame
 from ..modeset import ModeSet
-from ..naming import (count, direction_words, join_words, natural_key, numbered_only, placed,
-                      xyz)
+from ..naming import (count, direction_words, join_words, joint_label, natural_key,
+                      placed_joints, xyz)
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .nullspace import canonical_basis
 
@@ -387,9 +387,9 @@ class _Context:
         ids = frame.joint_ids
         self.line = self._lines()
         self.line_role = self._line_roles()
-        # ids that only number the joints (an imported mesh's J1, J2...) say nothing of
-        # where a joint is: its coordinates go beside them
-        self.bare = numbered_only(ids, tagged=bool(frame.joint_tags))
+        # ids that say nothing of where a joint is (J1, J2... of an import): its
+        # coordinates go beside them (the one rule and label: naming.joint_label)
+        self.bare = placed_joints(frame)
 
     def _lines(self) -> list:
         """The line along the building of each framed joint (None for the others).
@@ -438,7 +438,7 @@ class _Context:
     def label(self, j) -> str:
         """Joint ``j``'s id, with its coordinates when the id is bare numbering."""
         jid = self.frame.joint_ids[j]
-        return placed(jid, self.frame.coords[j], self.size) if self.bare else jid
+        return joint_label(self.frame, j, self.size) if self.bare else jid
 
     def labels(self, joints) -> list[str]:
         """Labels of ``joints`` in natural order of their ids."""
@@ -624,7 +624,7 @@ class _Context:
         if d == 2:
             p = c + np.array([-t[1], t[0]]) / om[0]
             near = self._joints_near_point(p)
-            where = f"joint {near}" if near else f"the point ({xyz(p)})"
+            where = f"joint {near}" if near else f"the point ({xyz(p, self.size)})"
             return (f"The whole frame can turn in its plane about {where}: the supports do not "
                     f"stop the rotation.", np.array([0.0, 1.0]))
         axis = om / np.linalg.norm(om)

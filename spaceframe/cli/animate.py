@@ -17,12 +17,14 @@ SUFFIXES = (".gif", ".mp4", ".png")
 @click.command("animate")
 @model_argument
 @click.option("-o", "--output", "out", required=True, metavar="OUT",
-              help="Picture to write: .gif (looping), .mp4, or .png (a sheet of poses, "
-                   "each mode's in rows at most 1,600 px wide).")
+              help="Picture to write: .gif (looping), .mp4, or .png (a sheet at most 1,600 px wide: "
+                   "each mode's caption once above its poses, the legend once at the foot; "
+                   "modes that pass 4,800 px in height go on more sheets, OUT-modes-A-B.png).")
 @click.option("--mode", "mode", type=int, default=None, metavar="K",
               help="The mechanism to show, numbered from 1 in the order the audit lists them "
                    "(default 1).")
-@click.option("--all", "every", is_flag=True, help="Every mechanism in turn (each its own rows in a PNG).")
+@click.option("--all", "every", is_flag=True,
+              help="Every mechanism in turn (in a PNG, each its own block of poses).")
 @click.option("--one-way", "one_way", is_flag=True,
               help="Show how a frame with one-way members (rods, props) moves when they go "
                    "slack: out and back on one side only.")
@@ -59,7 +61,8 @@ def animate_command(model, out, mode, every, one_way, state, case, n, fps, size,
         from ..naming import count as counted
         from ..selection import supports_for
         from ..views.progress import progress
-        from ..views.render import mode_frames, state_picture, write_frames
+        from ..views.render import (mode_frames, plan_sheets, state_picture, write_frames,
+                                    write_sheets)
 
         if sum(x is not None and x is not False
                for x in (mode, state, every or None, one_way or None, case)) > 1:
@@ -96,24 +99,30 @@ def animate_command(model, out, mode, every, one_way, state, case, n, fps, size,
                     "--one-way: the one-way members hold the frame; nothing moves that way"
                     if w.held else "--one-way: the frame has mechanisms even with every member "
                                    "carrying both ways; show them with --mode or --all")
-            rows = []
-            poses = n or (6 if path.suffix.lower() == ".png" else 24)
-            with progress(poses, f"rendering {path.name}", quiet=quiet) as step:
-                rows.append(mode_frames(result, count, n=poses, size=wh, on_frame=step))
-            write_frames(rows, path, fps=fps)
-            return
-        if mode is not None and not 1 <= mode <= max(count, 1):
-            raise SpaceframeError(f"--mode {mode}: the audit found "
-                                  f"{counted(count, 'mechanism')}; "
-                                  f"give a number from 1 to {count}" if count else
-                                  f"--mode {mode}: the frame has no mechanism")
-        if count == 0:
-            click.echo("spaceframe: the frame is held (no mechanism): drawing it at rest.",
-                       err=True)
-            modes, poses = [None], 1
+            modes, poses = [count], n or (6 if path.suffix.lower() == ".png" else 24)
         else:
-            modes = list(range(count)) if every else [(mode or 1) - 1]
-            poses = n or (6 if path.suffix.lower() == ".png" else 24)
+            if mode is not None and not 1 <= mode <= max(count, 1):
+                raise SpaceframeError(f"--mode {mode}: the audit found "
+                                      f"{counted(count, 'mechanism')}; "
+                                      f"give a number from 1 to {count}" if count else
+                                      f"--mode {mode}: the frame has no mechanism")
+            if count == 0:
+                click.echo("spaceframe: the frame is held (no mechanism): drawing it at rest.",
+                           err=True)
+                modes, poses = [None], 1
+            else:
+                modes = list(range(count)) if every else [(mode or 1) - 1]
+                poses = n or (6 if path.suffix.lower() == ".png" else 24)
+        if path.suffix.lower() == ".png":
+            plan = plan_sheets(result, modes, path, n=poses, size=wh)
+            for other in (p for p in plan.paths if p != path):    # every sheet, before work
+                check_output(other, inputs=(model,), overwrite=force, suffixes=SUFFIXES,
+                             what="a picture")
+            with progress(len(modes) * poses, f"rendering {path.name}", quiet=quiet) as step:
+                written = write_sheets(result, plan, on_frame=step)
+            if not quiet:
+                click.echo(_sheets_written(plan, written, count), err=True)
+            return
         rows = []
         with progress(len(modes) * poses, f"rendering {path.name}", quiet=quiet) as step:
             for k in modes:
@@ -121,6 +130,29 @@ def animate_command(model, out, mode, every, one_way, state, case, n, fps, size,
         write_frames(rows, path, fps=fps)
 
     run_guarded(job, debug=debug)
+
+
+def _sheets_written(plan, written, mechanisms: int) -> str:
+    """What ``animate`` wrote to PNG: the sheet, or each sheet with the modes on it."""
+    from ..naming import count
+    from ..views.render import SHEET_HEIGHT
+
+    def which(group):
+        if group[0] >= mechanisms:           # after the mechanisms: the one-way motion
+            return "the one-way motion"
+        a, b = group[0] + 1, group[-1] + 1
+        return f"mode {a}" if a == b else f"modes {a}-{b}"
+
+    w, h = plan.pose_size
+    if plan.groups == ((None,),):
+        return f"spaceframe: wrote {written[0]} (the frame at rest, {w}x{h} px)."
+    each = f"{count(plan.poses, 'pose')} of {w}x{h} px"
+    if len(written) == 1:
+        return f"spaceframe: wrote {written[0]} ({which(plan.groups[0])}: {each} each)."
+    lines = [f"spaceframe: wrote {len(written)} sheets ({each} a mode; at most "
+             f"{SHEET_HEIGHT:,} px high each, so the modes are split):"]
+    lines += [f"  {p}  ({which(g)})" for p, g in zip(written, plan.groups)]
+    return "\n".join(lines)
 
 
 def _size(text: str) -> tuple[int, int]:

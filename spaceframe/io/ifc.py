@@ -606,3 +606,7 @@ def dump_ifc(frame: Frame, path, *, overwrite: bool = False) -> None:
     header.time_stamp = _TIME_STAMP        # the same frame gives the same file, byte for byte
     header.originating_system = "spaceframe"
     write_text(target, f.to_string(), overwrite=overwrite)
+    if frame.loads is not None:     # said, not silently dropped
+        warnings.warn(f"{target}: the IFC file written holds the frame, not its load cases; "
+                      f"keep the loads in the TOML, JSON or .npz model", SpaceframeWarning,
+                      stacklevel=2)

@@ -16,7 +16,7 @@ from ..analysis.bracing import BRACING_CAUTION
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
 from ..analysis.bracing.layout import candidate_kind, plane_kind
 from ..analysis.bracing.rules import rods_of
-from ..naming import count, join_words
+from ..naming import count, join_words, measure
 from ..results import CAUTION
 from ..supports import AXES
 from ..tolerances import DEFAULT, DISPLAY
@@ -44,10 +44,11 @@ def _plane_words(frame, corners) -> str | None:
     normal /= np.linalg.norm(normal)
     centre = P.mean(axis=0)
     if abs(normal[2]) > _LEVEL:
-        return f"horizontal plane z = {centre[2]:.3g}"
+        return f"horizontal plane z = {measure(centre[2], frame.size())}"
     if abs(normal[2]) < _PLUMB:
         axis = int(np.argmax(np.abs(normal[:2])))
-        along = f" {AXES[axis]} = {centre[axis]:.3g}" if abs(normal[axis]) > _LEVEL else ""
+        along = f" {AXES[axis]} = {measure(centre[axis], frame.size())}" \
+            if abs(normal[axis]) > _LEVEL else ""
         return f"vertical plane{along}"
     pitch = np.degrees(np.arccos(min(1.0, abs(normal[2]))))
     return f"plane pitched {pitch:.0f} deg"
@@ -121,11 +122,11 @@ def remedy_text(r, remedy) -> str:
                 f"braced structure (--attach JOINT)")
     jid = frame.joint_ids[remedy.joint]
     if remedy.kind == "member":
-        L = remedy.length
+        L, size = remedy.length, frame.size()
         return (f"{what}: no candidate acts on it; a member such as "
-                f"{jid}-{frame.joint_ids[remedy.other]} ({L:.3g} {frame.units}, "
+                f"{jid}-{frame.joint_ids[remedy.other]} ({measure(L, size)} {frame.units}, "
                 f"bounded by no panel) would: allow such members with --within "
-                f"{L:.3g}, or list them with --candidates FILE")
+                f"{measure(L, size, up=True)}, or list them with --candidates FILE")
     along = ", ".join(f"{v:+.2f}" for v in remedy.direction)
     return (f"{what}: no candidate acts on it; joint {jid} needs a member or "
             f"restraint along its movement ({along}), to a joint or structure that does not "
@@ -136,7 +137,8 @@ def _lateral_text(frame, lateral) -> str:
     normal, centre = lateral.normal, lateral.centre
     ids = [frame.joint_ids[j] for j in lateral.joints]
     axis = int(np.argmax(np.abs(normal)))
-    where = (f"the plane {AXES[axis]} = {centre[axis]:.3g}" if abs(normal[axis]) > _LEVEL else
+    where = (f"the plane {AXES[axis]} = {measure(centre[axis], frame.size())}"
+             if abs(normal[axis]) > _LEVEL else
              "one plane")
     direction = AXES[axis] if abs(normal[axis]) > _LEVEL else "out of that plane"
     return (f"every member lies in {where} and nothing ties the frame to another: no member "

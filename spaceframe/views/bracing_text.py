@@ -3,9 +3,10 @@
 from __future__ import annotations
 
 from ..analysis.bracing import BRACING_CAUTION
+from ..naming import joint_label, placed_joints
 from ..results import CAUTION
 from .bracing_document import bracing_document, filter_lines, layout_text
-from .text import is_imported, joint_label, verdict
+from .text import verdict
 
 __all__ = ["render_bracing", "render_comparison"]
 
@@ -25,7 +26,8 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     """
     f, doc = r.frame, bracing_document(r)
     units = f.units
-    name = (lambda j: joint_label(f, j)) if is_imported(f) else str   # where, for imports
+    index, size = {jid: i for i, jid in enumerate(f.joint_ids)}, f.size()
+    name = (lambda jid: joint_label(f, index[jid], size)) if placed_joints(f) else str
     lines = [f"Bracing recommendation: {f.name or '(unnamed frame)'}"
              + (f"  [{f.source}]" if f.source else "")]
     b = r.before

@@ -15,13 +15,10 @@ import numpy as np
 
 from ..errors import SpaceframeError
 from ..force_results import ForcesResult
-from .render import PALETTE, SIZE, _entry, _Stage, force_colours
-from .scene import _embed, frame_scene, view_direction
+from .render import PALETTE, SIZE, Stage, force_colours, legend_entry
+from .scene import ARROW, embed, frame_scene, view_direction
 
 __all__ = ["forces_picture"]
-
-#: Longest arrow, as a fraction of the frame's largest extent.
-ARROW = 0.16
 
 
 def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
@@ -54,19 +51,19 @@ def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
                f"{t[big_c]:.3g} {u}, {f.member_ids[big_c]}); colour scaled to the largest force."
                if top else "No member carries force in this case.")
     title = f"Forces, case {name!r} ({result.kinds[case]}): {f.name or 'frame'}"
-    legend = [_entry("tension", "tension: the member pulls on its joints"),
-              _entry("compression", "compression: the member pushes"),
-              _entry("ghost", "thin: carries nothing"),
-              _entry("load", "arrow: load"),
-              _entry("reaction", "arrow: reaction of a support")]
+    legend = [legend_entry("tension", "tension: the member pulls on its joints"),
+              legend_entry("compression", "compression: the member pushes"),
+              legend_entry("ghost", "thin: carries nothing"),
+              legend_entry("load", "arrow: load"),
+              legend_entry("reaction", "arrow: reaction of a support")]
     cmap = force_colours()
-    stage = _Stage(scene, size, title, caption, legend, cmap)
+    stage = Stage(scene, size, title, caption, legend, cmap, dimension=f.dimension)
     try:
         pv, p, e = stage.pv, stage.plotter, stage.e
         stage.forces(t / (top or 1.0), carrying, cmap)
-        loads = _embed(np.asarray(result.loads[case], float), f.dimension)
+        loads = embed(np.asarray(result.loads[case], float), f.dimension)
         reactions = np.zeros_like(loads)
-        reactions[result.reaction_joints] = _embed(result.shown_reactions(case), f.dimension)
+        reactions[result.reaction_joints] = embed(result.shown_reactions(case), f.dimension)
         tips = [scene.coords]
         for key, vectors in (("load", loads), ("reaction", reactions)):
             mesh, ends = _arrows(pv, scene.coords, vectors, e)

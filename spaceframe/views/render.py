@@ -9,7 +9,9 @@ mode's one-line description as the caption.  A state of self-stress is a
 still: each member coloured by its force on a fixed scale from compression
 (blue, -1) through zero (light grey) to tension (orange, +1), with a legend
 in words.  Colours are from a colour-blind-safe set, and every colour is
-named in the picture's legend.
+named in the picture's legend.  A GIF or MP4 shows one picture at a time, each
+with its caption and legend; a PNG of poses is a sheet (:func:`write_sheets`)
+that words each mode once above its poses and gives the legend once.
 
 pyvista (VTK) renders; it is imported on first use.  With no X display the
 EGL path (Mesa's ``libEGL``) is chosen, which needs no window system.
@@ -18,6 +20,7 @@ EGL path (Mesa's ``libEGL``) is chosen, which needs no window system.
 from __future__ import annotations
 
 import os
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -28,8 +31,10 @@ from ..naming import count
 from ..results import AuditResult
 from .scene import AMPLITUDE, Scene, carrying_members, moving_joints, phases, scene_of
 
-__all__ = ["mode_frames", "state_picture", "write_frames", "contact_sheet", "support_glyphs",
-           "screen_axes", "PALETTE", "SIZE", "SHEET_WIDTH"]
+__all__ = ["mode_frames", "state_picture", "write_frames", "plan_sheets", "write_sheets",
+           "contact_sheet", "sheet_grid", "SheetPlan", "Block", "Stage", "legend_entry",
+           "force_colours", "support_glyphs", "screen_axes", "PALETTE", "SIZE", "SHEET_WIDTH",
+           "SHEET_HEIGHT", "SHEET_COLUMNS"]
 
 #: Colours of the pictures (colour-blind-safe), each with the word used in legends.
 PALETTE = {
@@ -53,7 +58,7 @@ SIZE = (800, 480)
 #: Height in pixels of the title line; the caption band below it grows with its lines, the
 #: legend band with its rows.
 _TITLE = 27
-#: Widest PNG sheet in pixels: the poses of a mode wrap into rows of pictures beyond it.
+#: Width of a PNG sheet of poses in pixels (:func:`write_sheets`).
 SHEET_WIDTH = 1600
 
 _CAUTION_SHORT = ("Idealised pin-jointed model; results to be checked by a competent engineer "
@@ -99,17 +104,23 @@ def support_glyphs(pv, scene: Scene, points):
     return pv.merge(parts)
 
 
-class _Stage:
+class Stage:
     """One off-screen plotter with the parts of a frame's picture that stay put.
 
     The 3D view fills the band between a caption (top) and a legend (bottom);
     both are drawn with Pillow onto each screenshot (:func:`_compose`), so
     the words (the caption whole, on as many lines as it needs), the colour
     scale and the axis triad sit in their own space and never over the frame.
+    With ``bands=False`` the view fills ``size`` and :meth:`view` gives it bare
+    (a sheet of poses words each mode once).
+
+    Every picture of the package is made on one: :func:`mode_frames`,
+    :func:`state_picture`, :func:`write_sheets` and
+    :func:`spaceframe.views.forces_render.forces_picture`.
     """
 
     def __init__(self, scene: Scene, size, title: str, caption: str, legend, scale=None,
-                 dimension: int = 3):
+                 dimension: int = 3, *, bands: bool = True):
         pv = self.pv = _pyvista()
         self.scene = scene
         self.size, self.title, self.caption = tuple(size), title, caption
@@ -118,11 +129,14 @@ class _Stage:
         self.dimension = dimension
         self.axes = None    # the camera's screen axes (right, up) in the scene, once placed
         w, h = self.size
-        self.bottom = _legend_height(legend, w, scale is not None)
-        # the whole caption, unless a small picture would leave the frame less than half
-        # its height: then as many lines as fit, the last one ending in an ellipsis
-        self.lines = _caption_lines(caption, w, (h // 2 - self.bottom - _TITLE - 6) // 16)
-        self.top = _TITLE + 16 * max(len(self.lines), 1) + 6
+        if bands:
+            self.bottom = _legend_height(legend, w, scale is not None)
+            # the whole caption, unless a small picture would leave the frame less than half
+            # its height: then as many lines as fit, the last one ending in an ellipsis
+            self.lines = _caption_lines(caption, w, (h // 2 - self.bottom - _TITLE - 6) // 16)
+            self.top = _TITLE + 16 * max(len(self.lines), 1) + 6
+        else:               # the bare view, for a sheet that words it once (:func:`write_sheets`)
+            self.bottom, self.lines, self.top = 0, [], 0
         try:
             self.plotter = pv.Plotter(off_screen=True,
                                       window_size=[w, h - self.top - self.bottom])
@@ -135,11 +149,14 @@ class _Stage:
         p.enable_anti_aliasing("ssaa")
         self.e = scene.unit
 
+    def view(self) -> np.ndarray:
+        """The current 3D view alone, ``(h, w, 3) uint8`` (no caption, legend or triad)."""
+        self.plotter.render()  # screenshot() alone may return the previous render
+        return np.ascontiguousarray(self.plotter.screenshot(return_img=True)[:, :, :3])
+
     def shot(self) -> np.ndarray:
         """The current view with its caption and legend, ``(h, w, 3) uint8``."""
-        self.plotter.render()  # screenshot() alone may return the previous render
-        view = self.plotter.screenshot(return_img=True)[:, :, :3]
-        return _compose(view, self.size, self.title, self.lines, self.legend,
+        return _compose(self.view(), self.size, self.title, self.lines, self.legend,
                         (self.top, self.bottom), self.scale, self.axes, self.dimension)
 
     def ghost(self):
@@ -196,6 +213,9 @@ def mode_frames(result: AuditResult, mode: int | None, *, n: int = 24, size=SIZE
                 on_frame=None) -> list[np.ndarray]:
     """Pictures of one cycle of a mechanism, ``n`` of them, as ``(h, w, 3) uint8`` arrays.
 
+    Each picture carries the title, the caption and the legend (a GIF or MP4
+    shows one at a time); :func:`write_sheets` lays poses out with the words once.
+
     Parameters
     ----------
     result : AuditResult
@@ -215,29 +235,39 @@ def mode_frames(result: AuditResult, mode: int | None, *, n: int = 24, size=SIZE
     -----
     Cost: one off-screen render per picture, O(m) tube geometry each.
     """
+    scene, title, caption, legend = _mode_setup(result, mode)
+    stage = Stage(scene, size, title, caption, legend, dimension=result.frame.dimension)
+    try:
+        return _animate(stage, scene, mode, n, on_frame, stage.shot)
+    finally:
+        stage.close()
+
+
+def _mode_setup(result: AuditResult, mode: int | None):
+    """The scene, title, caption and legend of mode ``mode``'s pictures."""
     scene = scene_of(result)
     if mode is not None and not 0 <= mode < len(scene.modes):
         raise SpaceframeError(f"mode {mode + 1} does not exist: the audit found "
                               f"{count(len(scene.modes), 'mechanism')}")
     title, caption = _mode_words(result, mode)
-    motion = scene.modes[mode] if mode is not None else None
-    if motion is None:
-        legend = [_entry("member", "members"),
-                  _entry("support", "stalk and plate: a direction a support holds")]
-    else:
-        legend = [_entry("moving_joint", "joints that move"),
-                  _entry("moving_member", "members at them"),
-                  _entry("support", "stalk and plate: a direction a support holds"),
-                  _entry("ghost", "the frame at rest")]
-    stage = _Stage(scene, size, title, caption, legend, dimension=result.frame.dimension)
-    try:
-        return _animate(stage, scene, mode, motion, n, on_frame)
-    finally:
-        stage.close()
+    return scene, title, caption, _mode_legend(mode)
 
 
-def _animate(stage: _Stage, scene: Scene, mode, motion, n, on_frame):
+def _mode_legend(mode: int | None) -> list[tuple[str, str]]:
+    """The legend of a mode's pictures (of the frame at rest for ``mode=None``)."""
+    if mode is None:
+        return [legend_entry("member", "members"),
+                legend_entry("support", "stalk and plate: a direction a support holds")]
+    return [legend_entry("moving_joint", "joints that move"),
+            legend_entry("moving_member", "members at them"),
+            legend_entry("support", "stalk and plate: a direction a support holds"),
+            legend_entry("ghost", "the frame at rest")]
+
+
+def _animate(stage: Stage, scene: Scene, mode, n, on_frame, take):
+    """``n`` poses of mode ``mode`` on ``stage``, each as ``take()`` gives it."""
     pv, p, e = stage.pv, stage.plotter, stage.e
+    motion = scene.modes[mode] if mode is not None else None
     moving = np.zeros(len(scene.coords), bool)
     if motion is not None:
         moving = moving_joints(motion)
@@ -272,7 +302,7 @@ def _animate(stage: _Stage, scene: Scene, mode, motion, n, on_frame):
     frames = []
     for phi in phases(n) + np.pi / 2:  # start at the largest movement: a still reads best
         pose(scene.displaced(mode, phi))
-        frames.append(stage.shot())
+        frames.append(take())
         if on_frame:
             on_frame()
     return frames
@@ -304,11 +334,11 @@ def state_picture(result: AuditResult, state: int, *, size=SIZE) -> np.ndarray:
     caption = (f"{count(int(carrying.sum()), 'member')} carry forces with no load applied; colour says "
                f"how much and which way (largest force = 1).")
     cmap = force_colours()
-    legend = [_entry("tension", "tension: the member pulls on its joints"),
-              _entry("compression", "compression: the member pushes"),
-              _entry("ghost", "thin: carries nothing here"),
-              _entry("support", "stalk and plate: a direction held")]
-    stage = _Stage(scene, size, title, caption, legend, cmap, dimension=result.frame.dimension)
+    legend = [legend_entry("tension", "tension: the member pulls on its joints"),
+              legend_entry("compression", "compression: the member pushes"),
+              legend_entry("ghost", "thin: carries nothing here"),
+              legend_entry("support", "stalk and plate: a direction held")]
+    stage = Stage(scene, size, title, caption, legend, cmap, dimension=result.frame.dimension)
     try:
         p = stage.plotter
         stage.forces(t, carrying, cmap)
@@ -331,15 +361,14 @@ def force_colours():
 
 
 def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float = 12.0):
-    """Write pictures to ``path``: a looping GIF, an MP4, or a PNG strip, by suffix.
+    """Write pictures to ``path``: a looping GIF or an MP4 of them all, or one still PNG.
 
     Parameters
     ----------
     rows : list of list of (h, w, 3) uint8
-        One list of pictures per mode.  A GIF or MP4 plays them all in turn;
-        a PNG lays each mode's pictures out in a block of rows, as many
-        pictures to a row as fit :data:`SHEET_WIDTH` (at least one), the
-        modes one block below another.
+        One list of pictures per mode; a GIF or MP4 plays them all in turn.
+        A PNG holds one picture (a still); poses of modes go on sheets,
+        :func:`write_sheets`.
     path : str or Path
         Ends in ``.gif``, ``.mp4`` or ``.png``.
     fps : float
@@ -360,30 +389,244 @@ def write_frames(rows: list[list[np.ndarray]], path: str | Path, *, fps: float =
             for f in frames:
                 w.append_data(f)
     elif suffix == ".png":
-        iio.imwrite(path, contact_sheet(rows), extension=".png")
+        if len(frames) != 1:
+            raise SpaceframeError(f"{path}: a PNG written here holds one still; lay poses of "
+                                  f"modes out with write_sheets")
+        iio.imwrite(path, frames[0], extension=".png")
     else:
         raise SpaceframeError(f"{path}: cannot tell the picture format from the suffix "
                               f"{path.suffix!r}; use .gif, .mp4 or .png")
 
 
-def contact_sheet(rows: list[list[np.ndarray]], width: int = SHEET_WIDTH) -> np.ndarray:
-    """The pictures of each mode as a block of rows, ``(H, W, 3) uint8``.
+# ---------------------------------------------------------------- sheets of poses
 
-    Each row holds ``max(1, min(longest list, width // w))`` pictures of
-    width ``w``; a mode's pictures wrap onto as many rows as they need, and
-    the next mode starts on a new row.
+#: Tallest PNG sheet in pixels: beyond it the modes go on as many sheets as they need
+#: (a mode's block is never split, so one taller than this has a sheet of its own).
+SHEET_HEIGHT = 4800
+#: Most poses side by side in a sheet's row.
+SHEET_COLUMNS = 4
+#: Gap in pixels between two modes' blocks on a sheet.
+_GAP = 14
+
+
+@dataclass(frozen=True)
+class Block:
+    """One mode on a sheet: its title and caption once, then its poses in rows.
+
+    Attributes
+    ----------
+    title, caption : str
+    lines : list of str
+        The caption wrapped to the sheet's width.
+    views : list of (h, w, 3) uint8
+        The bare 3D views of the poses, in phase order (empty until rendered).
+    axes : tuple of two (3,) float or None
+        The camera's screen axes, for the axis triad on the first pose.
     """
-    h, w = rows[0][0].shape[:2]
-    cols = max(1, min(max(len(r) for r in rows), width // w))
-    lines = [r[k:k + cols] for r in rows for k in range(0, len(r), cols)]
-    sheet = np.full((h * len(lines), w * cols, 3), 255, np.uint8)
-    for i, line in enumerate(lines):
-        for k, f in enumerate(line):
-            sheet[i * h:(i + 1) * h, k * w:(k + 1) * w] = f[:, :, :3]
-    return sheet
+
+    title: str
+    caption: str
+    lines: list
+    views: list = field(default_factory=list)
+    axes: tuple | None = None
 
 
-def _entry(key: str, words: str) -> tuple[str, str]:
+@dataclass(frozen=True)
+class SheetPlan:
+    """Which modes go on which PNG sheet, and at what size; made before any render, so
+    that every file can be checked first (:func:`plan_sheets`).
+
+    Attributes
+    ----------
+    paths : tuple of Path
+        The sheets' files: the path asked for when one sheet holds every mode,
+        else ``<stem>-modes-<first>-<last>.png`` (``<stem>-mode-<k>.png`` for a
+        sheet of one mode), numbers from 1 as the audit lists the modes,
+        zero-padded to the width of the audit's count so that the names sort in order.
+    groups : tuple of tuple of (int or None)
+        The 0-based modes of each sheet (None: the frame at rest).
+    poses : int
+        Poses per mode.
+    grid : (int, int)
+        Rows and columns of each mode's poses.
+    pose_size : (int, int)
+        Width and height of one pose in pixels.
+    width : int
+        The sheets' width in pixels: a row of poses.
+    """
+
+    paths: tuple
+    groups: tuple
+    poses: int
+    grid: tuple
+    pose_size: tuple
+    width: int
+
+
+def sheet_grid(n: int, size=SIZE, width: int = SHEET_WIDTH) -> tuple[tuple, tuple]:
+    """Rows and columns of ``n`` poses on a sheet, and the size of one pose:
+    ``((rows, cols), (w, h))``.
+
+    The poses of a mode fill ``ceil(n / SHEET_COLUMNS)`` rows, as evenly as they
+    go (6 poses: 2 rows of 3); a pose is ``size`` scaled down to fit ``width``
+    (never up), its height to the same ratio, both even.
+
+    Examples
+    --------
+    >>> sheet_grid(6, (800, 480))
+    ((2, 3), (532, 320))
+    >>> sheet_grid(2, (320, 240))
+    ((1, 2), (320, 240))
+    """
+    rows = -(-max(n, 1) // SHEET_COLUMNS)
+    cols = -(-max(n, 1) // rows)
+    w = min(size[0], width // cols) // 2 * 2
+    h = max(2, round(w * size[1] / size[0] / 2) * 2)
+    return (rows, cols), (w, h)
+
+
+def _block_height(lines: list, grid, pose_size) -> int:
+    return _TITLE + 16 * max(len(lines), 1) + 6 + grid[0] * pose_size[1]
+
+
+def _sheet_legend(modes) -> list[tuple[str, str]]:
+    """The legend of a sheet of ``modes``: each entry once, in order."""
+    out = []
+    for mode in modes:
+        out += [e for e in _mode_legend(mode) if e not in out]
+    return out
+
+
+def plan_sheets(result: AuditResult, modes, path, *, n: int, size=SIZE,
+                width: int = SHEET_WIDTH, height: int = SHEET_HEIGHT) -> SheetPlan:
+    """Lay ``n`` poses of each of ``modes`` out on PNG sheets at most ``height`` px high.
+
+    Parameters
+    ----------
+    result : AuditResult
+    modes : sequence of (int or None)
+        0-based modes (the audit's order, then any one-way motion), or
+        ``[None]`` for the frame at rest.
+    path : str or Path
+        The ``.png`` asked for; more sheets take their names from it
+        (:class:`SheetPlan`).
+    n : int
+        Poses per mode.
+    size : (int, int)
+        The largest size of one pose (see :func:`sheet_grid`).
+    width, height : int
+        The sheets' most width and height in pixels; a sheet is as wide as its
+        row of poses (a held frame's one pose: its own width).
+
+    Notes
+    -----
+    Cost: the captions' wrapping only; nothing is rendered.
+    """
+    path = Path(path)
+    grid, pose = sheet_grid(n, size, width)
+    width = grid[1] * pose[0]       # as wide as a row of poses: no empty margin at the right
+    modes = list(modes)
+    foot = _legend_height(_sheet_legend(modes), width)
+    heights = [_block_height(_caption_lines(_mode_words(result, k)[1], width, 10 ** 6), grid,
+                             pose) for k in modes]
+    fits = lambda hs: sum(hs) + _GAP * (len(hs) - 1) + foot <= height  # noqa: E731
+    cuts, start = [], 0                   # greedy: the fewest sheets, each filled in turn
+    for i in range(1, len(modes) + 1):
+        if i == len(modes) or not fits(heights[start:i + 1]):
+            cuts.append(i)
+            start = i
+    even = np.linspace(0, len(modes), len(cuts) + 1).round().astype(int)   # as many, evened
+    if all(fits(heights[a:b]) or b - a == 1 for a, b in zip(even, even[1:])):
+        cuts = even[1:].tolist()
+    groups = [tuple(modes[a:b]) for a, b in zip([0, *cuts], cuts)]
+    if len(groups) == 1:
+        paths = (path,)
+    else:
+        digits = len(str(max(max(modes) + 1, result.mechanisms)))   # as the audit numbers
+        num = lambda k: f"{k + 1:0{digits}d}"  # noqa: E731
+        paths = tuple(path.with_name(
+            f"{path.stem}-mode-{num(g[0])}{path.suffix}" if len(g) == 1 else
+            f"{path.stem}-modes-{num(g[0])}-{num(g[-1])}{path.suffix}") for g in groups)
+    return SheetPlan(paths=paths, groups=tuple(groups), poses=n, grid=grid, pose_size=pose,
+                     width=width)
+
+
+def write_sheets(result: AuditResult, plan: SheetPlan, *, on_frame=None) -> list[Path]:
+    """Render the poses of :func:`plan_sheets` and write its sheets; the paths written.
+
+    Each sheet holds, per mode, the title and the whole caption once, then
+    the mode's poses in rows (the first at the largest movement, with the
+    axis triad); the legend and the caution once at its foot.  The files'
+    paths should have been checked (``io.output.check_output``) beforehand.
+
+    Notes
+    -----
+    Cost: one off-screen render per pose, O(m) tube geometry each.
+    """
+    iio = require("imageio.v3")
+    written = []
+    for target, group in zip(plan.paths, plan.groups):
+        blocks = [_render_block(result, k, plan, on_frame) for k in group]
+        iio.imwrite(target, contact_sheet(blocks, _sheet_legend(group), plan.width,
+                                          dimension=result.frame.dimension), extension=".png")
+        written.append(Path(target))
+    return written
+
+
+def _render_block(result: AuditResult, mode, plan: SheetPlan, on_frame) -> Block:
+    scene, title, caption, legend = _mode_setup(result, mode)
+    stage = Stage(scene, plan.pose_size, title, caption, legend,
+                  dimension=result.frame.dimension, bands=False)
+    try:
+        views = _animate(stage, scene, mode, plan.poses, on_frame, stage.view)
+        axes = stage.axes
+    finally:
+        stage.close()
+    return Block(title, caption, _caption_lines(caption, plan.width, 10 ** 6), views, axes)
+
+
+def contact_sheet(blocks: list[Block], legend, width: int = SHEET_WIDTH, *,
+                  dimension: int = 3) -> np.ndarray:
+    """Modes' blocks one below another with the legend once at the foot, ``(H, W, 3) uint8``.
+
+    Each block is its title line, its caption lines and its poses in rows of
+    ``ceil(p / ceil(p / SHEET_COLUMNS))`` (:func:`sheet_grid`), left-aligned;
+    a grey rule and a gap part two blocks.  ``W`` is ``width`` or the widest
+    row of poses when that is wider.
+    """
+    Image, ImageDraw, ImageFont = (require(f"PIL.{m}") for m in ("Image", "ImageDraw",
+                                                                   "ImageFont"))
+    ph, pw = blocks[0].views[0].shape[:2]
+    (rows, cols), _ = sheet_grid(len(blocks[0].views), (pw, ph), width)
+    w = max(width, cols * pw)
+    heights = [_TITLE + 16 * max(len(b.lines), 1) + 6 + rows * ph for b in blocks]
+    foot = _legend_height(legend, w)
+    total = sum(heights) + _GAP * (len(blocks) - 1) + foot
+    img = Image.new("RGB", (w, total), PALETTE["background"][0])
+    d = ImageDraw.Draw(img)
+    ink = PALETTE["text"][0]
+    big, small, tiny = (ImageFont.load_default(size=s) for s in (15, 12, 10))
+    y = 0
+    for i, (b, bh) in enumerate(zip(blocks, heights)):
+        if i:
+            d.line([(0, y + _GAP // 2), (w, y + _GAP // 2)], fill="#bbbbbb", width=2)
+            y += _GAP
+        _draw_caption(d, b.title, b.lines, y, w, big, small)
+        top = y + _TITLE + 16 * max(len(b.lines), 1) + 6
+        for k, view in enumerate(b.views):
+            img.paste(Image.fromarray(view), ((k % cols) * pw, top + (k // cols) * ph))
+        for c in range(1, min(cols, len(b.views))):     # hairlines between poses
+            d.line([(c * pw, top), (c * pw, top + rows * ph)], fill="#eeeeee")
+        if b.axes is not None:
+            _triad(d, b.axes, (34, top + ph - 34), small, dimension)
+        y += bh
+    d.line([(0, y), (w, y)], fill="#dddddd")
+    _draw_legend(d, legend, y + 6, w, small)
+    d.text((10, total - 14), _CAUTION_SHORT, font=tiny, fill="#555555")
+    return np.asarray(img)
+
+
+def legend_entry(key: str, words: str) -> tuple[str, str]:
     """A legend entry: the colour, and its name followed by what it shows."""
     colour, name = PALETTE[key]
     return colour, f"{name}: {words}"
@@ -412,9 +655,7 @@ def _compose(view: np.ndarray, size, title: str, caption: list[str],
     d = ImageDraw.Draw(img)
     ink = PALETTE["text"][0]
     big, small, tiny = (ImageFont.load_default(size=s) for s in (15, 12, 10))
-    d.text((10, 6), _fit(title, big, w - 20), font=big, fill=ink)
-    for k, line in enumerate(caption):
-        d.text((10, _TITLE + 16 * k), line, font=small, fill=ink)
+    _draw_caption(d, title, caption, 0, w, big, small)
     y0 = h - bottom + 6
     if scale is not None:
         bar_w = 240
@@ -429,16 +670,29 @@ def _compose(view: np.ndarray, size, title: str, caption: list[str],
         d.text((bx + bar_w + 8 + small.getlength(right) + 14, y0), "(0 in the middle: light grey)",
                font=small, fill="#555555")
         y0 += _SCALE_ROW
-    for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
-        y = y0 + 17 * row
-        d.rectangle([x, y + 1, x + 13, y + 13], fill=colour, outline="#606060")
-        d.text((x + 19, y), words, font=small, fill=ink)
+    _draw_legend(d, legend, y0, w, small)
     if axes is not None:
         _triad(d, axes, (34, top + (h - top - bottom) - 34), small, dimension)
     d.text((10, h - 14), _CAUTION_SHORT, font=tiny, fill="#555555")
     d.line([(0, top - 1), (w, top - 1)], fill="#dddddd")
     d.line([(0, h - bottom), (w, h - bottom)], fill="#dddddd")
     return np.asarray(img)
+
+
+def _draw_caption(d, title: str, lines: list, y: int, w: int, big, small):
+    """The title line and the caption's lines from ``y`` down, in a band ``w`` wide."""
+    ink = PALETTE["text"][0]
+    d.text((10, y + 6), _fit(title, big, w - 20), font=big, fill=ink)
+    for k, line in enumerate(lines):
+        d.text((10, y + _TITLE + 16 * k), line, font=small, fill=ink)
+
+
+def _draw_legend(d, legend, y: int, w: int, font):
+    """The legend's entries (a swatch and its words) in rows of width ``w`` from ``y``."""
+    for (colour, words), (x, row) in zip(legend, _legend_layout(legend, w)):
+        ly = y + 17 * row
+        d.rectangle([x, ly + 1, x + 13, ly + 13], fill=colour, outline="#606060")
+        d.text((x + 19, ly), words, font=font, fill=PALETTE["text"][0])
 
 
 #: Height in pixels of the colour scale's row in the legend band.

@@ -26,7 +26,8 @@ from ..errors import SpaceframeError
 from ..naming import count, fixed_decimals, join_words
 from ..results import AuditResult
 from ..tolerances import DISPLAY
-from .scene import AMPLITUDE, GLYPH, carrying_members, moving_joints, scene_of
+from .scene import (AMPLITUDE, ARROW, GLYPH, carrying_members, embed, frame_scene, moving_joints,
+                    scene_of)
 from .text import verdict
 
 __all__ = ["render_report", "report_document", "asset"]
@@ -173,17 +174,38 @@ def script_json(doc) -> str:
 
 
 def forces_document(forces) -> dict:
-    """What the page shows of the load cases: per case its forces scaled to the largest
-    (``scaled``, on [-1, 1], for the colours), that largest force, the largest tension and
-    compression members, or the mechanisms a case not carried acts on."""
+    """What the page shows of the load cases.
+
+    Per case: its forces scaled to the largest (``scaled``, on [-1, 1], for the
+    colours), that largest force, the largest tension and compression members
+    and how many members carry each, the reactions by joint id in the model's
+    axes (``reactions``), the arrows to draw (``arrows``: ``loads`` and
+    ``reactions`` as ``[joint index, [x, y, z]]`` in the pictures' 3D, see
+    :func:`spaceframe.views.scene.embed`), or the mechanisms a case not
+    carried acts on.  Forces keep 6 significant figures.  ``arrow`` is the
+    longest arrow over the frame's extent, as in the forces still
+    (:data:`~spaceframe.views.scene.ARROW` of the marks' unit).
+    """
     from ..force_results import FORCES_CAUTION
 
-    ids = forces.frame.member_ids
+    f = forces.frame
+    ids = f.member_ids
+    sig = lambda v: float(f"{v:.6g}")  # noqa: E731
+    s = frame_scene(f)
+
+    def arrows(joints, vectors):
+        v = embed(np.asarray(vectors, float), f.dimension)
+        keep = np.flatnonzero(np.linalg.norm(v, axis=1) > 0)
+        return [[int(joints[k]), [sig(x) for x in v[k]]] for k in keep]
+
     cases = []
     for i, name in enumerate(forces.names):
+        applied = np.asarray(forces.loads[i], float)
         entry = {"name": name, "kind": forces.kinds[i], "carried": bool(forces.carried[i]),
                  "method": forces.methods[i], "scaled": None, "largest": 0.0,
-                 "tension": None, "compression": None, "slack": list(forces.slack[i]),
+                 "tension": None, "compression": None, "in_tension": 0, "in_compression": 0,
+                 "reactions": [], "slack": list(forces.slack[i]),
+                 "arrows": {"loads": arrows(np.arange(f.n_joints), applied), "reactions": []},
                  "excited": [{"mode": e.mode, "description": e.description,
                               "fraction": round(e.fraction, DISPLAY.decimals)}
                              for e in forces.excited[i]]}
@@ -195,9 +217,74 @@ def forces_document(forces) -> dict:
             hi, lo = int(np.argmax(t)), int(np.argmin(t))
             entry["tension"] = [ids[hi], float(t[hi])] if t.size and t[hi] > 0 else None
             entry["compression"] = [ids[lo], float(t[lo])] if t.size and t[lo] < 0 else None
+            entry["in_tension"], entry["in_compression"] = int(np.sum(t > 0)), int(np.sum(t < 0))
+            R = forces.shown_reactions(i)
+            entry["reactions"] = [[f.joint_ids[j], [sig(x) for x in r]]
+                                  for j, r in zip(forces.reaction_joints.tolist(), R)]
+            entry["arrows"]["reactions"] = arrows(forces.reaction_joints, R)
         cases.append(entry)
     return {"force_units": forces.force_units, "cases": cases,
-            "determinate": forces.statically_determinate, "caution": FORCES_CAUTION}
+            "determinate": forces.statically_determinate, "caution": FORCES_CAUTION,
+            "arrow": ARROW * s.unit / s.extent}    # the longest arrow over the extent
+
+
+def _cases_html(loads: dict) -> str:
+    """The load cases' section as plain HTML: a summary, one row per case (carried or not,
+    the largest tension and compression, the reactions), the caution.  The script adds
+    only the case selector of the 3D view."""
+    e = html.escape
+    u = loads["force_units"]
+    cases = loads["cases"]
+    bad = sum(not c["carried"] for c in cases)
+    summary = (count(len(cases), "case")
+               + (f", {bad} not carried (a load on a mechanism: no forces)" if bad else
+                  ", every one carried") + ". "
+               + ("Statically determinate: forces from equilibrium alone." if loads["determinate"]
+                  else "Statically indeterminate: forces depend on the members' relative axial "
+                       "stiffness (EA).")
+               + f" Forces in {u}: + tension (the member pulls), - compression (it pushes).")
+    rows = []
+    for c in cases:
+        head = f"<td>{e(c['name'])}</td><td>{e(c['kind'])}</td>"
+        if not c["carried"]:
+            why = " ".join(f"Mechanism {x['mode']} ({100 * x['fraction']:.3g} % of the load): "
+                           f"{x['description']}" for x in c["excited"])
+            rows.append(f'<tr class="not-carried">{head}<td>no</td>'
+                        f'<td colspan="3">{e(why)}</td></tr>')
+            continue
+        pull = _case_largest(c["tension"], c["in_tension"], "tension")
+        push = _case_largest(c["compression"], c["in_compression"], "compression")
+        rows.append(f'<tr>{head}<td>yes</td><td class="ids">{e(pull)}</td>'
+                    f'<td class="ids">{e(push)}</td>'
+                    f'<td class="ids">{e(_reactions_words(c["reactions"]))}</td></tr>')
+    return ('  <section id="cases-section">\n    <h2>Load cases and member forces</h2>\n'
+            f'    <p id="cases-summary">{e(summary)}</p>\n'
+            '    <table id="cases"><thead><tr><th>case</th><th>kind</th><th>carried</th>'
+            '<th>largest tension</th><th>largest compression</th>'
+            f'<th>reactions ({e(u)}), largest first</th></tr></thead><tbody>\n'
+            + "\n".join(rows) + "\n</tbody></table>\n"
+            f'    <p id="forces-caution" class="caution">{e(loads["caution"])}</p>\n'
+            "  </section>")
+
+
+def _case_largest(entry, n: int, way: str) -> str:
+    """``BC1 +33.75, of 10 members in tension`` (``entry``: member id and force), or
+    ``none in tension``."""
+    return f"{entry[0]} {entry[1]:+.4g}, of {count(n, 'member')} in {way}" if entry else \
+        f"none in {way}"
+
+
+def _reactions_words(reactions, most: int = 3) -> str:
+    """``A (+0.00, +12.50), B (...) and 2 more``: the largest reactions first, one fixed
+    point for all (four significant figures of the largest, as the forces text)."""
+    if not reactions:
+        return "none"
+    R = np.array([r for _, r in reactions], float)
+    order = np.argsort(-np.linalg.norm(R, axis=1), kind="stable")
+    dp = fixed_decimals(R)
+    words = [f"{reactions[k][0]} ({', '.join(f'{v:+.{dp}f}' for v in R[k])})"
+             for k in order]
+    return join_words(words, most=most)
 
 
 def restraints_document(r) -> dict:
@@ -278,7 +365,8 @@ def page_text(doc: dict) -> dict:
     dict of str
         ``PAGE_TITLE``, ``TITLE``, ``SOURCE``, ``VERDICT``, ``CAUTION``,
         ``COUNTS``, ``MECH_SUMMARY``, ``MECHANISMS``, ``STRESS_SUMMARY``,
-        ``STATES``, ``BRACING``, ``RESTRAINTS``, ``KEY_SUMMARY``, ``KEY_MEMBERS``,
+        ``STATES``, ``BRACING``, ``CASES``, ``RESTRAINTS``, ``KEY_SUMMARY``,
+        ``KEY_MEMBERS``,
         ``CAUTIONS``, ``FOOTER``.
     """
     a = doc["audit"]
@@ -348,6 +436,7 @@ def page_text(doc: dict) -> dict:
             for i, st in enumerate(doc["states"])),
         "BRACING": _bracing_html(doc["bracing"], a["units"], doc.get("bracing_robust"))
         if doc["bracing"] else "",
+        "CASES": _cases_html(doc["loads"]) if doc.get("loads") else "",
         "RESTRAINTS": _restraints_html(doc.get("restraints")),
         "KEY_SUMMARY": e(
             "No key member: every member takes part in some state of self-stress, so losing "

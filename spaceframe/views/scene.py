@@ -17,14 +17,18 @@ from ..modeset import ModeSet
 from ..results import AuditResult
 from ..tolerances import DEFAULT, DISPLAY
 
-__all__ = ["Scene", "Motions", "scene_of", "frame_scene", "phases", "view_direction", "moving_joints", "carrying_members",
-           "AMPLITUDE"]
+__all__ = ["Scene", "Motions", "scene_of", "frame_scene", "phases", "view_direction",
+           "moving_joints", "carrying_members", "embed", "AMPLITUDE", "GLYPH", "ARROW"]
 
 #: Largest joint movement drawn, as a fraction of the frame's largest extent.
 AMPLITUDE = 0.12
 
 #: Length of a support glyph's stalk, as a fraction of the frame's largest extent.
 GLYPH = 0.06
+
+#: Longest load or reaction arrow, as a fraction of the frame's largest extent (the
+#: forces still and the report's view).
+ARROW = 0.16
 
 
 @dataclass(frozen=True)
@@ -133,7 +137,7 @@ class Motions:
             raise IndexError(f"motion {i} of {len(self)}")
         i %= len(self)
         u = self.base[i] if i < k else self.extra[i - k]
-        return _embed(u, self.dimension)
+        return embed(u, self.dimension)
 
     def __iter__(self):
         return (self[i] for i in range(len(self)))
@@ -157,12 +161,12 @@ def frame_scene(f: Frame, modes=None, *, one_way: int | None = None) -> Scene:
     """The :class:`Scene` of a frame with the joint movements ``modes`` ``(p, n, d)``
     (none: the frame at rest; or :class:`Motions`); ``one_way`` is the index of a
     one-way motion among them."""
-    coords = _embed(np.asarray(f.coords, float), f.dimension)
+    coords = embed(np.asarray(f.coords, float), f.dimension)
     if not isinstance(modes, Motions):
         modes = np.zeros((0, f.n_joints, f.dimension)) if modes is None else \
             np.asarray(modes, float)
         modes = Motions(ModeSet(modes, (f.n_joints, f.dimension)), f.dimension)
-    dirs = _embed(np.asarray(f.restraint_dir, float), f.dimension)
+    dirs = embed(np.asarray(f.restraint_dir, float), f.dimension)
     extent = float(np.ptp(coords, axis=0).max()) if len(coords) > 1 else 0.0
     supports = [(int(j), d / np.linalg.norm(d)) for j, d in zip(f.restraint_joint, dirs)]
     ends = np.asarray(f.ends, np.int64)
@@ -237,7 +241,10 @@ def view_direction(coords: np.ndarray, motion: np.ndarray | None = None, *,
     - ``tilt``: 1 at 20 degrees, 0.9 at 10 and 30, 0.6 at 45, 0.4 at 60,
       so that a roof is seen in elevation rather than as a plan grid.
 
-    Ties go to the first candidate, so the choice is deterministic.
+    Ties go to the first candidate, so the choice is deterministic, except that
+    of a view and its mirror in ``y = 0`` that score the same (to 1e-9: every
+    plane frame, which lies in that plane) the one from ``-y`` is taken, so
+    that x runs from left to right as on a drawn elevation (common practice).
 
     Parameters
     ----------
@@ -285,11 +292,26 @@ def view_direction(coords: np.ndarray, motion: np.ndarray | None = None, *,
     face = 0.25 + 0.75 * np.minimum(1.0, np.abs(cand @ normal) / 0.7) if normal is not None \
         else np.ones(len(cand))
     score = np.sqrt(seen * spread) * members ** 2 * face * tilt
-    return cand[int(np.argmax(score))]
+    best = int(np.argmax(score))
+    if cand[best, 1] > 0:       # its mirror in y = 0 as good (a plane frame): look from -y
+        mirror = int(np.argmin(np.linalg.norm(cand - cand[best] * [1, -1, 1], axis=1)))
+        if score[mirror] >= score[best] * (1 - 1e-9):
+            best = mirror
+    return cand[best]
 
 
-def _embed(a: np.ndarray, dimension: int) -> np.ndarray:
-    """``(k, 2)`` plane rows ``[x, y]`` to ``[x, 0, y]``; 3D rows unchanged."""
+def embed(a: np.ndarray, dimension: int) -> np.ndarray:
+    """Rows of a frame's space in the pictures' 3D, ``(k, 3)`` float: a plane frame's
+    ``[x, y]`` becomes ``[x, 0, y]`` (its y is up, as z is in space); 3D rows are copied.
+
+    Used for every array drawn: coordinates, modes, restraint directions, loads and
+    reactions (pictures and the report alike).
+
+    Examples
+    --------
+    >>> embed([[1.0, 2.0]], 2).tolist()
+    [[1.0, 0.0, 2.0]]
+    """
     a = np.asarray(a, float).reshape(-1, dimension)
     if dimension == 3:
         return a.copy()

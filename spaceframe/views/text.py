@@ -2,58 +2,18 @@
 
 from __future__ import annotations
 
-import re
-from pathlib import Path
 
 import numpy as np
 
 from ..analysis.prestress import NOT_STIFFENED, STIFFENED
 from ..naming import count as counted
-from ..naming import direction_words, join_words, natural_sorted, numbered_only, placed
+from ..naming import direction_words, join_words, joint_label, natural_sorted, placed_joints
 from ..results import CAUTION, AuditResult
 from ..tolerances import DISPLAY
 
-__all__ = ["render_audit", "verdict", "joint_label", "is_imported"]
+__all__ = ["render_audit", "verdict"]
 
 _AXES = "xyz"
-#: Model files written by hand or by spaceframe: their ids are the user's own.
-_NATIVE = (".toml", ".json", ".npz")
-#: Joint tags that say where an imported joint is in its source, and their words.
-_ORIGIN_TAGS = (("ifc_name", "IFC name"), ("layer", "layer"))
-
-
-def is_imported(frame) -> bool:
-    """Whether the frame was read from geometry (a mesh, drawing, CSV or IFC file)."""
-    return frame.source is not None and Path(frame.source).suffix.lower() not in _NATIVE
-
-
-def joint_label(frame, jid: str) -> str:
-    """A joint id with its coordinates, and its IFC name or DXF layer where it has one.
-
-    ``J3 (3000, 0; layer WEB)``: for imported frames, whose generated ids
-    say nothing, so that the joint can be found in the drawing or model.
-    """
-    j = frame.joint_ids.index(jid)
-    parts = [", ".join(f"{v:.6g}" for v in frame.coords[j])]
-    for tag, words in _ORIGIN_TAGS:
-        labels = frame.joint_tags.get(tag)
-        if labels and labels[j]:
-            parts.append(f"{words} {labels[j]}")
-    return f"{jid} ({'; '.join(parts)})"
-
-
-def _traced(r: AuditResult, text: str) -> str:
-    """``text`` with each joint id of an imported frame followed by where it is."""
-    if not is_imported(r.frame):
-        return text
-    ids = set(r.frame.joint_ids)
-
-    def label(m):
-        token = m.group(0)
-        core = token.rstrip(".:")
-        return joint_label(r.frame, core) + token[len(core):] if core in ids else token
-    # an id already followed by its coordinates (naming.placed) is left as it is
-    return re.sub(r"[^\s,;()]+(?! \()", label, text)
 
 
 def verdict(r: AuditResult) -> str:
@@ -159,12 +119,12 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                 names = _frame_grouped(r, [r.mode_info[j].joints[0] for j in run])
                 how = "out of the plane of their members" if kind == "out-of-plane" else \
                     "on their own"
-                lines.append(f"    {i + 1}-{run[-1] + 1}. Joints {_traced(r, names)} are each "
+                lines.append(f"    {i + 1}-{run[-1] + 1}. Joints {names} are each "
                              f"free {how} ({direction_words(info.direction, signed=False)}): "
                              f"no member or support holds them that way.{_order_note(r, i, plural=True)}")
                 i = run[-1] + 1
             else:
-                lines.append(f"    {i + 1}. {_traced(r, r.mode_info[i].description)}"
+                lines.append(f"    {i + 1}. {r.mode_info[i].description}"
                              f"{_order_note(r, i)}")
                 i += 1
             shown += 1
@@ -195,7 +155,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
                      f"frame's typical joint stiffness; {ea}):")
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: "
-                         f"{_traced(r, info.description)}")
+                         f"{info.description}")
     lines.extend(_one_way_lines(r))
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
@@ -339,9 +299,9 @@ def _frame_grouped(r: AuditResult, joints: list[str]) -> str:
     f = r.frame
     frames = f.tag("joint", "frame")
     index = {jid: i for i, jid in enumerate(f.joint_ids)}
-    if numbered_only(f.joint_ids, tagged=bool(f.joint_tags)):   # ids that say nothing of where
+    if placed_joints(f):   # ids that say nothing of where a joint is: its place beside it
         size = f.size() or 1.0
-        return join_words([placed(j, f.coords[index[j]], size) for j in joints], most=8)
+        return join_words([joint_label(f, index[j], size) for j in joints], most=8)
     if not frames or len(joints) < 4:
         return ", ".join(joints)
     by_frame: dict[str, list[str]] = {}

@@ -358,7 +358,8 @@ def _expected_braced(frame, r):
                  restraint_dir=np.vstack([frame.restraint_dir, r.candidates.direction[res]]),
                  dimension=3, name=frame.name, units=frame.units,
                  joint_tags=dict(frame.joint_tags), member_tags=tags,
-                 member_properties={"EA": np.r_[ea, np.full(len(mem), np.median(ea))]})
+                 member_properties={"EA": np.r_[ea, np.full(len(mem), np.median(ea))]},
+                 loads=frame.loads)   # loads name joints by id: bracing keeps them
 
 
 def test_braced_frame_keeps_ea_tags_and_supports(tmp_path):
@@ -414,3 +415,27 @@ def test_braced_extruded_frame_keeps_every_tag_table():
             assert tags["bay"] == str(min(int(jframe[a]), int(jframe[b]))) and tags["frame"] == ""
         else:
             assert tags["bay"] != ""
+
+
+@pytest.mark.filterwarnings("ignore:.*T-junctions", "ignore:.*drawn twice")
+def test_remedy_advice_admits_the_member_it_names():
+    """The demo canopy drawing (mm): the loose gridline joint J19 at (0, -1500) needs a
+    member such as J19-J2, J2 at (1200, 0): sqrt(1200^2 + 1500^2) = 1920.94 mm (by hand).
+    The advice gives a --within that admits it, rounded up (1921, never the 1920 of
+    three significant figures, which would leave it out), in figures, not '1.92e+03';
+    brace with that distance then acts on the mode."""
+    import re
+
+    from spaceframe.selection import supports_for
+
+    path = MODELS / "canopy_truss.dxf"
+    frame = supports_for(spaceframe.load(path), path)      # with its sidecar's supports
+    r = recommend_bracing(frame)
+    texts = [remedy_text(r, m) for m in r.remaining]
+    first = next(t for t in texts if "J19-J2" in t)
+    assert "(1921 mm," in first and "e+0" not in first
+    within = float(re.search(r"--within (\S+),", first).group(1))
+    assert within >= np.hypot(1200.0, 1500.0)
+    again = recommend_bracing(frame, within=within)
+    acted = {k for a in bracing_document(again)["added"] for k in a["modes"]}
+    assert 1 in acted

@@ -137,3 +137,40 @@ def test_text_runs_give_numbered_joints_their_place():
     text = render_audit(audit(flat_truss(6)))
     assert "Joints J1 (0, 0, 0), J2 (2, 0, 0), J3 (4, 0, 0)" in text
     assert "J8 (2, 1.5, 0), J9 (4, 1.5, 0) and 1 more are each free out of the plane" in text
+
+
+def test_one_rule_for_joint_labels():
+    """One label for a joint wherever it is written: coordinates to four significant figures
+    of the frame's size at one fixed point (naming.fixed_decimals of the size), never in
+    exponent form.  Python's format mini-language writes ``f"{3000.0:.3g}"`` as ``3e+03``
+    (a fact of Python's ``g`` format), which is why a fixed point is used; 0.001 of a
+    12 m frame rounds to 0 at 0.01 m (arithmetic by hand)."""
+    from spaceframe.naming import joint_label, placed_joints, xyz
+
+    assert f"{3000.0:.3g}" == "3e+03"
+    assert xyz([3000.0, 1234.5678, 0.0], 30000.0) == "3000, 1235, 0"
+    assert xyz([2.5, 0.001, -0.004], 12.0) == "2.5, 0, 0"
+    assert xyz([0.0125, 0.5], 1.0) == "0.013, 0.5"   # the double nearest 0.0125 lies above it
+    X = [[0.0, 0.0], [3000.0, 0.0], [1500.0, 900.0]]
+    f = Frame.from_arrays(X, [[0, 1], [1, 2], [2, 0]], joint_ids=["J1", "J2", "J3"],
+                          joint_tags={"layer": ["CHORD", "CHORD", ""]})
+    assert joint_label(f, 1) == "J2 (3000, 0; layer CHORD)" and joint_label(f, 2) == \
+        "J3 (1500, 900)"
+    # the rule of when: bare numbering without tags, or any frame imported from geometry
+    assert placed_joints(Frame.from_arrays(X, [[0, 1]]))              # J1, J2, J3, no tags
+    assert not placed_joints(f)                                       # tagged, native
+    assert not placed_joints(Frame.from_arrays(X, [[0, 1]], joint_ids=list("ABC")))
+
+
+@pytest.mark.filterwarnings("ignore:.*T-junctions", "ignore:.*drawn twice")
+def test_imported_joints_read_the_same_in_json_and_text(tmp_path):
+    """A drawing's joints: the audit's own mode descriptions (the JSON) carry the same label
+    as the text, ``J19 (0, -1500; layer GRID)`` for the demo canopy drawing's loose
+    gridline joint (the drawing is in mm, 9.6 m long: to 1 mm)."""
+    from spaceframe.views.text import render_audit
+
+    r = audit(load(MODELS / "canopy_truss.dxf"))
+    first = r.mode_info[0].description
+    assert "J19 (0, -1500; layer GRID)" in first
+    assert "J19 (0, -1500; layer GRID)" in render_audit(r)
+    assert "e+0" not in render_audit(r).split("Mechanisms")[1].split("Key members")[0]

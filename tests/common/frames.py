@@ -26,3 +26,21 @@ def assert_same_frame(got, want, *, atol: float = 1e-12):
     assert set(got.member_properties) == set(want.member_properties)
     for key, values in want.member_properties.items():
         np.testing.assert_allclose(got.member_properties[key], values, rtol=1e-12, atol=0)
+    assert_same_loads(got.loads, want.loads)
+
+
+def assert_same_loads(got, want):
+    """Two load sets (or None) field by field: cases (names, joints, forces), combinations
+    (names, cases and factors in order), self-weight, notional fraction and cases, units."""
+    if want is None:
+        assert got is None
+        return
+    assert got is not None, "the loads were lost"
+    assert [c.name for c in got.cases] == [c.name for c in want.cases]
+    for a, b in zip(got.cases, want.cases):
+        assert a.joints == b.joints
+        np.testing.assert_array_equal(a.forces, b.forces)
+    assert [(c.name, c.factors) for c in got.combinations] == \
+        [(c.name, c.factors) for c in want.combinations]
+    assert (got.self_weight, got.notional, got.notional_cases, got.force_units) == \
+        (want.self_weight, want.notional, want.notional_cases, want.force_units)

@@ -33,6 +33,56 @@ def test_round_trip_keeps_everything(tmp_path, name):
     assert (a.mechanisms, a.self_stress_states) == (b.mechanisms, b.self_stress_states)
 
 
+@pytest.mark.parametrize("name", ["hall_truss.toml", "footbridge_truss.toml",
+                                  "hall_roof_braced.toml", "plant_platform.toml"])
+def test_round_trip_keeps_the_loads(tmp_path, name):
+    """Every demo model with loads: the load set back field by field (cases, combinations,
+    self-weight, notional fraction and its cases, force units), so the member forces of
+    every case are the same numbers (numpy's ``savez``/``load`` keep float64 bit for bit)."""
+    from common.frames import assert_same_frame
+
+    f = spaceframe.load(MODELS / name)
+    assert f.loads is not None
+    out = tmp_path / "m.npz"
+    dump_npz(f, out)
+    g = spaceframe.load(out)
+    assert_same_frame(g, f)
+    a, b = spaceframe.forces(f), spaceframe.forces(g)
+    assert a.names == b.names and np.array_equal(a.carried, b.carried)
+    np.testing.assert_array_equal(a.member_forces, b.member_forces)
+
+
+def test_loads_of_odd_names_and_damaged_archives(tmp_path):
+    """Case names with ':' and quotes survive (entries are numbered, not named); an archive
+    whose loads name a joint the frame lacks, or lose an entry, is refused with a message."""
+    import dataclasses
+
+    from common.frames import assert_same_loads
+
+    from spaceframe.loads import Combination, LoadCase, LoadSet
+
+    f = spaceframe.load(MODELS / "canopy_sway.toml")
+    j = f.joint_ids
+    d = f.dimension
+    loads = LoadSet(cases=(LoadCase('snow: "drift"', (j[0], j[1]), np.ones((2, d))),
+                           LoadCase("wind:x", (j[2],), [[1.5] + [0.0] * (d - 1)])),
+                    combinations=(Combination("c:1", (('snow: "drift"', 1.35), ("wind:x", 0.9))),),
+                    notional=0.005, notional_cases=("c:1",), force_units="N")
+    out = tmp_path / "odd.npz"
+    dump_npz(dataclasses.replace(f, loads=loads), out)
+    assert_same_loads(spaceframe.load(out).loads, loads)
+    with np.load(out) as z:
+        data = {k: z[k] for k in z.files}
+    bad = dict(data, **{"loads:case:1:joints": np.array(["nowhere"])})
+    np.savez(tmp_path / "bad.npz", **bad)
+    with pytest.raises(ModelError, match="nowhere"):
+        spaceframe.load(tmp_path / "bad.npz")
+    lost = {k: v for k, v in data.items() if k != "loads:combination:0:factors"}
+    np.savez(tmp_path / "lost.npz", **lost)
+    with pytest.raises(ModelError, match="lack loads:combination:0:factors"):
+        spaceframe.load(tmp_path / "lost.npz")
+
+
 def test_convert_writes_npz_and_never_over_an_existing_file(tmp_path):
     out = tmp_path / "roof.npz"
     run = lambda *a: CliRunner().invoke(main, [str(x) for x in a])  # noqa: E731

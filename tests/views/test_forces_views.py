@@ -46,3 +46,19 @@ def test_forces_still_refused_when_not_carried_or_not_png(tmp_path):
                                     str(tmp_path / "w.gif")])
     assert res.exit_code == 2 and "still" in res.output
     assert not (tmp_path / "w.png").exists()
+
+
+def test_forces_still_of_a_plane_frame_names_its_axes_x_and_y(monkeypatch):
+    """The hall truss is a plane frame ([x, y], y up, as its model file says): the axis
+    triad of its forces still is drawn for two dimensions (x and y), as its mode pictures
+    are, not with the z of a space frame."""
+    from spaceframe.views import render
+    from spaceframe.views.forces_render import forces_picture
+
+    seen = []
+    real = render._triad
+    monkeypatch.setattr(render, "_triad", lambda d, axes, origin, font, dimension, **kw:
+                        seen.append(dimension) or real(d, axes, origin, font, dimension, **kw))
+    r = spaceframe.forces(spaceframe.load(MODELS / "hall_truss.toml"), ["gravity"])
+    forces_picture(r, 0, size=(480, 320))
+    assert seen == [2]

@@ -302,16 +302,81 @@ def test_load_case_selector_colours_members_by_force(browser, tmp_path):
         assert page.locator("#cases tbody tr").count() == len(forces.names)
         assert "not carried" in page.inner_text("#cases-summary")
         assert page.is_disabled("#case-list button >> nth=1")
+        before = _canvas(page)
         # the compression colour at full strength
         assert _colours_after(page, lambda: page.click("#case-list button >> nth=0"),
                               [0x1d, 0x5f, 0xa6], within=40)
+        after = _canvas(page)
         assert "tension (kN)" in page.inner_text("#legend")
         assert "competent engineer" in page.inner_text("#forces-caution")
+        # the arrows of the case, in the forces still's colours: pink loads, green reactions
+        pink = np.array([0xcc, 0x79, 0xa7])
+        is_pink = lambda img: (np.abs(img.astype(int) - pink).max(axis=2) < 30).sum()  # noqa: E731
+        assert is_pink(before) == 0 and is_pink(after) > 40
+        legend = page.inner_text("#legend")
+        assert "pink arrow: load" in legend and "green arrow: reaction" in legend
         ARTIFACTS.mkdir(exist_ok=True)
         page.screenshot(path=str(ARTIFACTS / "report_canopy_forces.png"), full_page=False)
         assert errors == []
     finally:
         page.close()
+
+
+def test_load_arrows_point_at_their_joints(browser, tmp_path):
+    """The hall truss's roof case: a load of -y (down) at each top-chord joint, so the pink
+    arrow at the ridge runs straight down the screen onto the ridge joint (at rest the
+    view's up is the model's up: a plane frame's y, common practice for an elevation), and
+    the reactions at the two bearings push up (the truss is symmetric: 11.25 kN each, the
+    half of the 22.5 kN roof load; see the model's comments)."""
+    frame = spaceframe.load(MODELS / "hall_truss.toml")
+    forces = spaceframe.forces(frame)
+    html = render_report(spaceframe.audit(frame), None, forces)
+    page, errors, _, _ = _open(browser, html, tmp_path)
+    try:
+        page.evaluate("() => window.spaceframeViewer.chooseCase(0)")
+        page.wait_for_timeout(100)
+        img = _canvas(page)
+        box = page.locator("#view").bounding_box()
+        scale = img.shape[1] / box["width"]
+        ridge = page.evaluate("() => window.spaceframeViewer.screenOf('U3')")
+        x, y = ((ridge[0] - box["x"]) * scale, (ridge[1] - box["y"]) * scale)
+        pink = np.abs(img.astype(int) - [0xcc, 0x79, 0xa7]).max(axis=2) < 30
+        above = pink[int(y) - 60:int(y) - 8, int(x) - 3:int(x) + 4]
+        below = pink[int(y) + 8:int(y) + 60, int(x) - 3:int(x) + 4]
+        assert above.any(axis=1).mean() > 0.8 and not below.any()
+        assert errors == []
+    finally:
+        page.close()
+
+
+def test_load_cases_read_with_scripts_off(browser, tmp_path):
+    """With JavaScript off the table of cases is on the page: each case carried or not, its
+    largest tension and compression with how many members carry each, and its reactions
+    (the roof case: 11.25 kN up at each bearing, half the roof load, by symmetry); the
+    canopy's wind case names the mechanism it acts on instead."""
+    for model, checks in (("hall_truss.toml", ["roof\tcase\tyes", "L0 (+0.00, +11.25)",
+                                                "of 10 members in tension"]),
+                          ("canopy_sway.toml", ["wind_y\tcase\tno\tMechanism 1"])):
+        frame = spaceframe.load(MODELS / model)
+        forces = spaceframe.forces(frame)
+        path = tmp_path / f"{model}.html"
+        path.write_text(render_report(spaceframe.audit(frame), None, forces), encoding="utf-8")
+        context = browser.new_context(java_script_enabled=False,
+                                      viewport={"width": 1300, "height": 1000})
+        page = context.new_page()
+        try:
+            page.goto(path.as_uri())
+            assert page.is_visible("#cases")
+            assert page.locator("#cases tbody tr").count() == len(forces.names)
+            text = page.inner_text("#cases")
+            for words in checks:
+                assert words in text, (words, text)
+            assert "competent engineer" in page.inner_text("#forces-caution")
+            ARTIFACTS.mkdir(exist_ok=True)
+            page.locator("#cases-section").screenshot(
+                path=str(ARTIFACTS / f"report_{model.split('.')[0]}_cases_noscript.png"))
+        finally:
+            context.close()
 
 
 def test_chords_coloured_by_unrestrained_length_and_restraint_case(browser, tmp_path):

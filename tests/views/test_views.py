@@ -99,14 +99,27 @@ def test_gif_has_the_frame_count_and_loops(tmp_path):
     assert again.exit_code == 2 and "--force" in again.output
 
 
-def test_png_strip_one_row_per_mode(tmp_path):
+def test_png_sheet_says_what_it_wrote_and_checks_every_sheet(tmp_path):
+    """``--all`` to PNG: one sheet as wide as a row of poses holding each mode's poses under its caption
+    (12 mechanisms of 2 small poses fit in one), and the command says what it wrote.
+    The hall's 37 modes go on several sheets; an existing one among them is refused before
+    any render (exit 2, nothing written), as for the file asked for."""
     out = tmp_path / "bridge.png"
     r = run("animate", MODELS / "footbridge_truss.toml", "-o", out, "--all", "--frames", 2,
-            "--size", "320x240", "--quiet")
+            "--size", "320x240")
     assert r.exit_code == 0, r.output
     sheet = iio.imread(out)
     audit = spaceframe.audit(spaceframe.load(MODELS / "footbridge_truss.toml"))
-    assert sheet.shape[:2] == (240 * audit.mechanisms, 320 * 2)
+    assert sheet.shape[1] == 2 * 320                     # a row of two poses
+    assert audit.mechanisms * 240 < sheet.shape[0] < audit.mechanisms * (240 + 110) + 120
+    assert f"wrote {out} (modes 1-{audit.mechanisms}: 2 poses of 320x240 px each" in r.output
+    taken = tmp_path / "hall-modes-01-05.png"
+    taken.write_bytes(b"mine")
+    r = run("animate", MODELS / "hall_roof_unbraced.toml", "-o", tmp_path / "hall.png",
+            "--all", "--quiet")
+    assert r.exit_code == 2 and "hall-modes-01-05.png" in r.output and "--force" in r.output
+    assert taken.read_bytes() == b"mine" and sorted(p.name for p in tmp_path.iterdir()) == \
+        ["bridge.png", "hall-modes-01-05.png"]
 
 
 def test_held_frame_gives_one_still(tmp_path):

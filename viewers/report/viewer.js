@@ -10,7 +10,8 @@
 
   const COLOUR = {
     member: "#5d6b75", movingMember: "#0072b2", movingJoint: "#d55e00", joint: "#3a3a3a",
-    support: "#009e73", ghost: "#c4c4c4", pick: "#cc79a7", brace: "#e69f00",
+    support: "#009e73", ghost: "#c4c4c4", pick: "#111111", brace: "#e69f00",
+    load: "#cc79a7", reaction: "#009e73",          // the arrows' colours of the forces still
     compression: [0x1d, 0x5f, 0xa6], zero: [0xe3, 0xe3, 0xe3], tension: [0xc2, 0x5a, 0x12],
     short: [0xbf, 0xe3, 0xd0], long: [0x7a, 0x1f, 0x5c], point: "#1a1a1a",
   };
@@ -174,6 +175,7 @@
       ctx.stroke(); ctx.setLineDash([]);
     }
     drawSupports(P, now);
+    if (show.loadcase >= 0) drawArrows(now);
     if (show.chords) {                                // restraint points: dark squares, white rim
       ctx.fillStyle = COLOUR.point; ctx.strokeStyle = "#ffffff"; ctx.lineWidth = 1.5;
       for (const j of points) {
@@ -377,34 +379,48 @@
     });
   }
 
-  // The load cases: a selector that colours the members by force, and a table.
+  // The load cases: a selector that colours the members by force and draws the arrows of
+  // the loads and reactions (the table of cases is plain HTML above, for scripts off too).
   function fillCases() {
     document.getElementById("case-controls").hidden = false;
-    document.getElementById("cases-section").hidden = false;
-    const cl = document.getElementById("case-list"), tb = document.querySelector("#cases tbody");
-    const row = cells => {
-      const tr = el("tr");
-      for (const c of cells) tr.appendChild(el("td", c));
-      return tr;
-    };
-    const bad = loads.cases.filter(c => !c.carried).length;
-    document.getElementById("cases-summary").textContent = plural(loads.cases.length, "case") +
-      (bad ? ", " + bad + " not carried (a load on a mechanism: no forces)" : ", every one carried") + ". " +
-      (loads.determinate ? "Statically determinate: forces from equilibrium alone."
-        : "Statically indeterminate: forces depend on the members' relative axial stiffness (EA).");
+    const cl = document.getElementById("case-list");
     loads.cases.forEach((c, i) => {
       const li = el("li"), b = el("button", c.name + (c.carried ? "" : ": not carried"));
       b.type = "button"; b.setAttribute("aria-pressed", "false"); b.dataset.loadcase = String(i);
       if (c.carried) b.addEventListener("click", () => chooseCase(i, b));
       else { b.disabled = true; b.title = c.excited.map(e => e.description).join(" "); }
       buttons.push(b); li.appendChild(b); cl.appendChild(li);
-      const side = v => v ? v[0] + " " + fmt(v[1]) : "-";
-      tb.appendChild(row([c.name, c.kind, c.carried ? "yes" : "no",
-        c.carried ? side(c.tension) : c.excited.map(e => "mechanism " + e.mode + " (" +
-          Math.round(100 * e.fraction) + " % of the load): " + e.description).join(" "),
-        c.carried ? side(c.compression) : ""]));
     });
-    document.getElementById("forces-caution").textContent = loads.caution;
+  }
+
+  // Arrows of a load case: loads pointing at their joints, reactions pushing on theirs, each
+  // as long as its force over the largest of its kind (the longest loads.arrow x extent).
+  function drawArrows(now) {
+    const c = loads.cases[show.loadcase], b = basis(), s = scale();
+    for (const [list, colour] of [[c.arrows.loads, COLOUR.load], [c.arrows.reactions, COLOUR.reaction]]) {
+      let top = 0;
+      for (const [, v] of list) top = Math.max(top, Math.hypot(v[0], v[1], v[2]));
+      if (!(top > 0)) continue;
+      ctx.strokeStyle = colour; ctx.fillStyle = colour; ctx.lineWidth = 2.5;
+      for (const [j, v] of list) {
+        const size = Math.hypot(v[0], v[1], v[2]);
+        // pixels; the shortest 1/8 of the longest, as in the forces still (0.02 / 0.16)
+        const len = Math.max(size / top, 0.125) * loads.arrow * geo.extent * s;
+        const dx = dot(v, b.right) / size, dy = -dot(v, b.up) / size;         // on screen
+        const tip = now[j], flat = Math.hypot(dx, dy);
+        if (flat < 0.15) {                                // along the line of sight: a ring
+          ctx.beginPath(); ctx.arc(tip[0], tip[1], 6, 0, 2 * Math.PI); ctx.stroke(); continue;
+        }
+        const tail = [tip[0] - len * dx, tip[1] - len * dy];
+        const ux = dx / flat, uy = dy / flat, head = Math.min(10, 0.35 * len * flat);
+        ctx.beginPath(); ctx.moveTo(tail[0], tail[1]);
+        ctx.lineTo(tip[0] - head * ux, tip[1] - head * uy); ctx.stroke();
+        ctx.beginPath(); ctx.moveTo(tip[0], tip[1]);
+        ctx.lineTo(tip[0] - head * ux - 0.5 * head * uy, tip[1] - head * uy + 0.5 * head * ux);
+        ctx.lineTo(tip[0] - head * ux + 0.5 * head * uy, tip[1] - head * uy - 0.5 * head * ux);
+        ctx.closePath(); ctx.fill();
+      }
+    }
   }
 
   // The proposal: a table, and a toggle that draws the braces and gives the audit after them.
@@ -468,7 +484,9 @@
       d.appendChild(el("span", "compression -" + top)); d.appendChild(ramp);
       d.appendChild(el("span", "+" + top + " tension (" + loads.force_units + ")"));
       box.appendChild(d);
-      entries.push([COLOUR.ghost, "light grey, thin: carries nothing in case " + c.name]);
+      entries.push([COLOUR.ghost, "light grey, thin: carries nothing in case " + c.name],
+        [COLOUR.load, "pink arrow: load, pointing at its joint"],
+        [COLOUR.reaction, "green arrow: reaction of a support on the frame"]);
     } else if (show.chords) {
       const d = el("div"), ramp = el("span", null, "ramp");
       ramp.style.background = "linear-gradient(to right, " + lengthColour(0) + ", " + lengthColour(1) + ")";
@@ -489,7 +507,7 @@
     }
     if (show.bracing) entries.push([COLOUR.brace, "orange, dashed: proposed bracing"]);
     entries.push([COLOUR.support, "green stalk and plate: a direction a support holds"],
-      [COLOUR.pick, "pink: what you picked"]);
+      [COLOUR.pick, "black, thick: what you picked"]);
     for (const [c, words] of entries) {
       const d = el("div"), sw = el("span", null, "swatch");
       sw.style.background = c;
