@@ -14,7 +14,12 @@ Prints a table: time to audit the frame as given, to gather the candidates, to s
 the robust proposal (no added member whose loss brings a mechanism back) beside the
 default one: its selection (the greedy pass, the exact search up to its limit, the greedy
 augmentation), the key-member check and the re-audit, with the ratio of each to the
-default's, and the robust set's size and cost against the least-cost basis.
+default's, and the robust set's size and cost against the least-cost basis.  Then the
+layout rules (:mod:`spaceframe.analysis.bracing.layout`) on the same candidates, side by
+side with the default: for each, the rules' preparation (costs, filters, groups), the
+reaches and the choice, its ratio to the default, the count chosen and what the re-audit
+leaves.  The grid's members are tagged with a bay (10 bays of 5 grid spacings along x) so
+that the braced-bay rules have bays to work on.
 """
 
 from __future__ import annotations
@@ -27,6 +32,8 @@ import numpy as np
 from spaceframe import Frame, audit
 from spaceframe.analysis.bracing import (braced_frame, find_candidates, greedy_basis,
                                          reach_rows)
+from spaceframe.analysis.bracing import layout
+from spaceframe.analysis.bracing.layout import LayoutRules
 from spaceframe.analysis.bracing.robust import robust_elements
 from spaceframe.analysis.bracing.rules import coloops
 from spaceframe.analysis.bracing.selection import _s_max
@@ -43,10 +50,15 @@ def frame_with_mechanisms(n: int, step: int = 5):
     for k, (mid, (a, b)) in enumerate(zip(grid.member_ids, grid.ends.tolist())):
         diagonal = mid.startswith("D")
         (removed if diagonal and (ids[a] in hung or ids[b] in hung) else keep).append(k)
+    X = grid.coords
+    mid_x = 0.5 * (X[grid.ends[keep, 0], 0] + X[grid.ends[keep, 1], 0])
+    span = float(np.ptp(X[:, 0])) or 1.0
+    bay = tuple(str(min(10, int(10 * (x - X[:, 0].min()) / span) + 1)) for x in mid_x.tolist())
     frame = Frame(joint_ids=grid.joint_ids, coords=grid.coords,
                   member_ids=tuple(grid.member_ids[k] for k in keep), ends=grid.ends[keep],
                   restraint_joint=grid.restraint_joint, restraint_dir=grid.restraint_dir,
-                  name=f"{grid.name}, {len(hung)} bottom joints hanging")
+                  name=f"{grid.name}, {len(hung)} bottom joints hanging",
+                  member_tags={"bay": bay})
     return frame, grid.ends[removed], len(hung)
 
 
@@ -55,7 +67,7 @@ def main():
     ap.add_argument("--quick", action="store_true", help="a 20 x 20 grid instead")
     args = ap.parse_args()
     n, want = (20, 1_600) if args.quick else (50, 10_000)
-    frame, removed, hung = frame_with_mechanisms(n, step=5 if not args.quick else 4)
+    frame, removed, hung = frame_with_mechanisms(n, step=5)
     opts = dict(self_stress_cap=0, redundancy=False, soft=False)
     rows = []
 
@@ -103,6 +115,8 @@ def main():
     print(f"{'selection + re-audit':32s} {total:8.2f}   target <= {TARGET:.0f} s: "
           f"{'met' if total <= TARGET else 'NOT met'}")
     robust_side_by_side(frame, cand, before, U, opts)
+    print()
+    layout_table(frame, cand, Q, k, opts)
 
 
 def robust_side_by_side(frame, cand, before, U, opts, repeats: int = 3):
@@ -144,6 +158,38 @@ def robust_side_by_side(frame, cand, before, U, opts, repeats: int = 3):
     a = sum(med[f"default {s}"] for s in ("select", "key", "re-audit"))
     b = sum(med[f"robust {s}"] for s in ("select", "key", "re-audit"))
     print(f"{'total':22s} {a:10.3f} {b:10.3f} {b / a:7.1f}")
+
+
+def layout_table(frame, cand, Q, k, opts, repeats: int = 3):
+    """The layout rules against the default, on the same candidates; medians of ``repeats``."""
+    threshold = 1e-6 * _s_max(frame)
+    runs = [("default (no rule)", None, "auto"),
+            ("planes roof,walls", LayoutRules(planes=("roof", "walls")), "auto"),
+            ("braced bays ends", LayoutRules(braced_bays="ends"), "auto"),
+            ("braced bays every:3", LayoutRules(braced_bays="every:3"), "auto"),
+            ("symmetric", LayoutRules(symmetric=True), "auto"),
+            ("cost brace=1.5, restraints always",
+             LayoutRules(costs={"brace": 1.5}), "always")]
+    print(f"{'layout rule':34s} {'seconds':>8s} {'ratio':>6s} {'chosen':>7s} {'left':>5s}  "
+          f"{'search':s}")
+    base = None
+    for name, rules, restraints in runs:
+        times = []
+        for _ in range(repeats):
+            t = time.perf_counter()
+            c2, plan = layout.prepare(frame, cand, rules, restraints=restraints)
+            reach = np.asarray(reach_rows(frame, c2) @ Q)
+            if plan.search:
+                chosen, _, choice = layout.select(plan, c2, reach, threshold)
+                how = f"{choice.method}, {choice.tried} tried"
+            else:
+                chosen = greedy_basis(reach, c2.order(), threshold)
+                how = "matroid greedy"
+            times.append(time.perf_counter() - t)
+        sec = float(np.median(times))
+        base = sec if base is None else base
+        left = audit(braced_frame(frame, c2, chosen), **opts).mechanisms
+        print(f"{name:34s} {sec:8.2f} {sec / base:6.2f} {len(chosen):7d} {left:5d}  {how}")
 
 
 if __name__ == "__main__":

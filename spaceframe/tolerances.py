@@ -340,6 +340,14 @@ class Tolerances:
         Bracing: a candidate acts on a mode when the mode stretches it by
         ``e > acts * u_max``, ``u_max`` the mode's largest joint movement
         (modes are scaled so that it is 1).  Default ``0.01``.
+    clear_space : float
+        Bracing, the rule against rakers: a point of a candidate at ``(s, z)``
+        in a frame's plane is inside its clear space when
+        ``s_min + m < s < s_max - m`` (between its outer joints),
+        ``z_0 + m < z`` (above its lowest support) and ``z < z_low(s) - m``
+        (below its lowest member there), ``m = clear_space * size``; so a brace
+        along a wall line, on the ground or in the plane of a chord is not
+        inside.  Default ``1e-6``.
     hint_stretch : float
         Bracing, for a mode no candidate acts on: a member from its most
         moving joint ``j`` to a nearby joint ``q`` would act on it when
@@ -487,6 +495,7 @@ class Tolerances:
     parallel_lines: float = 1e-12
     parallel_diagonals: float = 1e-6
     acts: float = 0.01
+    clear_space: float = 1e-6
     hint_stretch: float = 0.1
     held_stiffness: float = 1e10
     mechanism_load: float = 1e-6

@@ -1,5 +1,8 @@
 """A user's list of candidate bracing members: a CSV file ``start,end[,weight]``.
 
+The column ``cost`` may stand for ``weight`` (the same meaning: the
+candidate's own cost, which replaces its length).
+
 ::
 
     start,end,weight
@@ -73,7 +76,8 @@ def read_candidate_list(path, frame: Frame, *, tol: Tolerances = DEFAULT):
                          f"write 'start,end' (and optionally ',weight') as the first row",
                          path=source, line=head_line)
     cs, ce = names.index("start"), names.index("end")
-    cw = names.index("weight") if "weight" in names else None
+    cw = (names.index("weight") if "weight" in names else
+          names.index("cost") if "cost" in names else None)
     size = frame.size()
     for line, row in rows[1:]:
         cells = [c.strip() for c in row] + [""] * len(names)

@@ -13,16 +13,17 @@ from __future__ import annotations
 import numpy as np
 
 from ..analysis.bracing import BRACING_CAUTION
-from ..analysis.bracing.rules import rods_of
-from ..naming import count, join_words
 from ..analysis.bracing.frames import bay_between, missing_ties, panel_bay, planar_id, tie_level
-from ..naming import measure
+from ..analysis.bracing.layout import candidate_kind, plane_kind
+from ..analysis.bracing.rules import rods_of
+from ..naming import count, join_words, measure
 from ..results import CAUTION
 from ..supports import AXES
 from ..tolerances import DEFAULT, DISPLAY
 
 __all__ = ["bracing_document", "candidate_entry", "location", "remedy_text", "bracing_notes",
-           "forces_section", "force_note"]
+           "filter_lines", "layout_text", "bay_name", "compare_document", "forces_section",
+           "force_note"]
 
 #: A panel is horizontal (vertical) when the vertical component of its unit normal is above
 #: ``axis_plane`` (below ``1 - axis_plane``); otherwise its pitch is given.  A plane is named
@@ -87,13 +88,16 @@ def candidate_entry(r, i: int, modes=None) -> dict:
         e = c.direction[i]
         axis = AXES[int(np.argmax(np.abs(e)))] if np.count_nonzero(e) == 1 else None
         entry = {"joint": f.joint_ids[c.joint[i]], "direction": [float(x) for x in e],
-                 "axis": axis, "origin": c.origin[i]}
+                 "axis": axis, "origin": c.origin[i], "kind": "restraint",
+                 "cost": round(float(c.cost[i]), 6)}
     else:
         a, b = c.ends[i]
         entry = {"ends": [f.joint_ids[a], f.joint_ids[b]],
                  "length": round(float(c.length[i]), 6),
                  "cost": round(float(c.cost[i]), 6), "origin": c.origin[i],
-                 "location": location(f, c, i)}
+                 "kind": candidate_kind(c, i), "location": location(f, c, i)}
+        if entry["kind"] == "brace":
+            entry["plane"] = plane_kind(f, c, i)
         if c.panel[i] is not None:
             entry["panel"] = [f.joint_ids[j] if j >= 0 else "ground" for j in c.panel[i]]
         if c.origin[i] == "tie panel":
@@ -144,6 +148,80 @@ def _lateral_text(frame, lateral) -> str:
             f"that can be tied to it: --attach {','.join(ids)}")
 
 
+def bay_name(label: str) -> str:
+    """A bay as the output writes it: ``B3`` for bay ``3``, other labels as they are."""
+    return f"B{label}" if label[:1].isdigit() else label
+
+
+_FILTERS = {"exclude box": "excluded box {}", "exclude bay": "excluded bay {}",
+            "exclude panel": "excluded panel {}", "planes": "braces only in the planes {}",
+            "braced bays": "braces only in the bays of the rule '{}'",
+            "tension only": "tension only: diagonals without a second in their panel",
+            "clear space": "no member through the clear space of the frames at floor level "
+                           "(--allow-rakers lets them)",
+            "symmetric": "symmetric: candidates whose mirror image is no candidate"}
+
+
+def filter_lines(r) -> list[str]:
+    """What each filter matched: ``"excluded bay B1: 54 candidates removed"``, in order.
+
+    The clear-space rule, which is on unless asked off, is listed only when
+    it removed something.
+    """
+    out = []
+    for kind, value, n in r.candidates.filters:
+        if kind == "clear space" and not n:
+            continue
+        if kind == "attach":
+            out.append(f"tie points given: {count(n, 'restraint candidate')} at "
+                       f"{count(int(value), 'joint')}")
+            continue
+        what = _FILTERS.get(kind, kind + " {}").format(value)
+        out.append(f"{what}: {count(n, 'candidate')} removed")
+    return out
+
+
+def _groups_words(groups, held: bool) -> str:
+    if all(len(g) == 1 for g in groups):
+        names = [bay_name(g[0]) for g in groups]
+        one = len(names) == 1
+        return (join_words(names) + (" holds a brace" if one else " each hold a brace")
+                if held else join_words(names) + (" holds" if one else " hold") + " no brace")
+    if held:
+        return f"every run of {len(groups[0])} consecutive bays holds a brace"
+    spans = [f"{bay_name(g[0])}-{bay_name(g[-1])}" for g in groups]
+    return "no brace in the bays " + join_words(spans)
+
+
+def layout_text(r) -> str | None:
+    """How the choice under layout rules was made and which rules held, or None."""
+    c = r.layout
+    if c is None:
+        return None
+    how = {"matroid": "exact: the greedy pass of the matroid met every rule",
+           "exhaustive": f"exact: all {c.tried} sets of the groups that act were compared",
+           "bound": f"exact: the greedy search over the rules ({count(c.tried, 'pass', 'passes')}) "
+                    f"found a choice as few and as cheap as the plain greedy pass",
+           "greedy": f"greedy search over the rules ({count(c.tried, 'pass', 'passes')}; "
+                     f"not proven least)"}
+    parts = [how[c.method]]
+    if c.mirrors:
+        parts.append("chosen in mirror-image groups about "
+                     + join_words([f"{ax} = {v:.4g}" for ax, v in c.mirrors]))
+    if c.required:
+        met = [g for g in c.required if g not in c.unmet]
+        if met:
+            parts.append(_groups_words(met, True))
+        if c.unmet:
+            parts.append(_groups_words(c.unmet, False)
+                         + " (no candidate brace there removes a mechanism the others leave)")
+    parts.append(f"{count(c.count, 'member or restraint', 'members and restraints')}, cost "
+                 f"{c.cost:.3f}; the plain greedy pass over the candidates the rules allow "
+                 f"takes {c.least_count}, cost {c.least_cost:.3f} (no set removing as much "
+                 f"has fewer)")
+    return "; ".join(parts)
+
+
 def bracing_notes(r) -> list[str]:
     """The notes of a recommendation, in the order the text and the JSON give them."""
     notes = []
@@ -166,6 +244,17 @@ def bracing_notes(r) -> list[str]:
     if r.before.mechanisms and r.before.mechanisms - r.after.mechanisms <= 0:
         notes.append("no candidate removes any mechanism")
     return notes
+
+
+def _layout_entry(c):
+    if c is None:
+        return None
+    return {"method": c.method, "exact": c.exact, "tried": c.tried, "count": c.count,
+            "cost": round(c.cost, 6), "plain_greedy": {"count": c.least_count,
+                                                        "cost": round(c.least_cost, 6)},
+            "required_bays": [list(map(bay_name, g)) for g in c.required],
+            "unmet_bays": [list(map(bay_name, g)) for g in c.unmet],
+            "mirrors": [{"axis": ax, "at": v} for ax, v in c.mirrors]}
 
 
 def _ids(r, items) -> list[str]:
@@ -361,6 +450,9 @@ def bracing_document(r) -> dict:
                              for n, info in enumerate(b.mode_info)]},
         "candidates": {"members": int(np.sum(r.candidates.is_member)),
                        "restraints": int(np.sum(~r.candidates.is_member))},
+        "filters": [{"filter": kind, "value": value, "removed": n}
+                    for kind, value, n in r.candidates.filters],
+        "layout": _layout_entry(r.layout),
         "tension_only": r.tension_only,
         "one_way": r.rules.one_way,
         "one_way_held": None if r.after.one_way is None else bool(r.after.one_way.held),
@@ -390,3 +482,23 @@ def bracing_document(r) -> dict:
         "after": r.after.to_dict(),
         "caution": CAUTION + " " + BRACING_CAUTION,
     }
+
+
+def _figures_entry(f, units: str) -> dict:
+    return {"members_added": len(f.added), "restraints_added": f.restraints_added,
+            "length_added": round(f.length, 6), "mechanisms_left": f.after.mechanisms,
+            "self_stress_states": f.after.self_stress_states,
+            "key_members_added": len(f.key_added),
+            "largest_brace_force": (None if f.largest is None else
+                                    {"force": round(f.largest[0], 6), "member": f.largest[1],
+                                     "case": f.largest[2]}),
+            "cases_not_carried": list(f.not_carried), "units": units}
+
+
+def compare_document(c) -> dict:
+    """The ``compare`` entry of ``brace --json``: the proposal and the designer's scheme."""
+    units = c.proposal.frame.units
+    return {"scheme": c.source, "loads_from": c.loads_from, "force_units": c.force_units,
+            "proposal": _figures_entry(c.proposal, units),
+            "designer": _figures_entry(c.scheme, units),
+            "caution": CAUTION + " " + BRACING_CAUTION}

@@ -5,10 +5,10 @@ from __future__ import annotations
 from ..analysis.bracing import BRACING_CAUTION
 from ..naming import joint_label, placed_joints
 from ..results import CAUTION
-from .bracing_document import bracing_document
+from .bracing_document import bracing_document, filter_lines, layout_text
 from .text import verdict
 
-__all__ = ["render_bracing"]
+__all__ = ["render_bracing", "render_comparison"]
 
 
 def _modes(numbers) -> str:
@@ -35,6 +35,8 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
                  f"({b.internal_mechanisms} internal, {b.rigid_body_modes} rigid-body); "
                  f"candidates: {doc['candidates']['members']} members, "
                  f"{doc['candidates']['restraints']} restraint directions")
+    for line in filter_lines(r):
+        lines.append(f"  {line}")
     if b.stable and not b.mechanisms:
         lines += ["", "Nothing to brace: the frame has no mechanism.", "",
                   "Caution: " + CAUTION]
@@ -45,8 +47,10 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     lines.append("")
     added = doc["added"]
     if added:
+        under_rules = r.layout is not None and not r.layout.exact
         lines.append(f"Members to add ({len(added)}), "
                      + ("that stay held after the loss of any one:" if r.robust is not None
+                        else "chosen under the layout rules (see Layout below):" if under_rules
                         else "the fewest and then the shortest that remove what the "
                              "candidates can" + (", with what the notes below add:"
                                                  if r.rules.ties or r.rules.repaired else ":")))
@@ -84,6 +88,9 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
     for alt in doc["alternatives"]:
         lines.append(f"  alternative of the same size, cost {alt['total_cost']:.3f}: "
                      f"{names(alt['take'])} instead of {names(alt['instead_of'])}")
+    how = layout_text(r)
+    if how:
+        lines.append(f"Layout: {how}")
     for note in doc["notes"]:
         lines.append(f"Note: {note}")
     lines += _forces_lines(doc, max_rows)
@@ -101,6 +108,37 @@ def render_bracing(r, *, max_rows: int = 40) -> str:
             lines.append(f"  ... and {len(remaining) - max_rows} more (see --json)")
     lines.append("")
     lines.append("Caution: " + CAUTION + " " + BRACING_CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def render_comparison(c) -> str:
+    """The proposal and the designer's scheme side by side (:func:`compare_schemes`)."""
+    units, fu = c.proposal.frame.units, c.force_units or "force units"
+
+    def force(f):
+        if f.largest is None:
+            return "-" if not f.added else "no loads given"
+        value, member, case = f.largest
+        return f"{value:.4g} {fu} ({member}, {case})"
+
+    rows = [("", "proposal", "designer's scheme")]
+    for label, get in (("members added", lambda f: str(len(f.added))),
+                       ("restraints added", lambda f: str(f.restraints_added)),
+                       (f"length added {units}", lambda f: f"{f.length:.3f}"),
+                       ("mechanisms left", lambda f: str(f.after.mechanisms)),
+                       ("states of self-stress", lambda f: str(f.after.self_stress_states)),
+                       ("key members among those added",
+                        lambda f: f"{len(f.key_added)} of {len(f.added)}"),
+                       ("largest force in an added member", force)):
+        rows.append((label, get(c.proposal), get(c.scheme)))
+    lines = [f"Compared with the designer's scheme [{c.source}]:"] + _table(rows)
+    if c.loads_from:
+        lines.append(f"  loads: the cases of the {c.loads_from} on both")
+    for who, f in (("proposal", c.proposal), ("designer's scheme", c.scheme)):
+        if f.not_carried:
+            lines.append(f"  the {who} does not carry: {', '.join(f.not_carried)} "
+                         f"(the load acts on a mechanism)")
+    lines.append("  A key member carries no state of self-stress: losing it leaves a mechanism.")
     return "\n".join(lines) + "\n"
 
 

@@ -72,6 +72,11 @@ PINNED = {
     # Maxwell: 234 + 22 - 216 = +40; numpy's dense SVD gives rank 194, all of the
     # 216 - 22 = 194 free coordinates: 0 mechanisms, so 234 - 194 = 40 states of self-stress.
     "hall_roof_braced.toml": (72, 234, 22, 0, 0, 0, 40, True),
+    # A facade scaffold: 6 standard pairs, 3 lifts, ledgers and transoms, feet pinned.
+    # Maxwell: 84 + 36 - 3 x 48 = -24; no closed triangle or braced panel anywhere, and
+    # numpy's dense SVD below finds rank 84 (no self-stress): 24 mechanisms.  Twelve pinned
+    # feet not on one line leave no rigid-body motion.
+    "facade_scaffold.toml": (48, 84, 36, 24, 0, 24, 0, False),
     # A triangulated dome (84 triangles, 132 unique edges) with its 12 base-ring joints
     # pinned by the sidecar.  Maxwell: 132 + 36 - 147 = +21.  A convex polyhedron with
     # triangular faces is infinitesimally rigid (Dehn 1916; from memory), and the pinned

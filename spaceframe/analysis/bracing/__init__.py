@@ -22,6 +22,10 @@ The package has one module per step:
 - :mod:`.forces`: the forces in what is added, under the model's cases and
   notional horizontal loads.
 - :mod:`.frames`: the frames of a frame of frames, planar ids and bays.
+- :mod:`.layout`: layout rules (planes, braced bays, mirror-image groups, the
+  clear space at floor level, per-kind costs, ties to a building first) and
+  the search under those that are no matroid constraint.
+- :mod:`.compare`: the designer's scheme audited beside the proposal.
 
 The analysis returns data (origins, joint indices, bay labels, remedies);
 the words (``"bottom-chord tie at L2, bay 3"``, hints, notes) and the JSON
@@ -31,7 +35,9 @@ document are made in :mod:`spaceframe.views.bracing_document`.
 from .candidates import (GENERATORS, ORIGINS, CandidateOptions, CandidateSet, MemberCandidate,
                          RestraintCandidate, Search, find_candidates, panel_diagonals,
                          tie_candidates)
+from .compare import Comparison, compare_schemes
 from .forces import ProposalForces, proposal_forces
+from .layout import LayoutChoice, LayoutRules
 from .result import (ACTS, BRACING_CAUTION, BracingResult, LateralRestraint, MemberRules, Remedy,
                      RobustInfo, braced_frame)
 from .robust import RobustChoice, robust_elements
@@ -46,4 +52,5 @@ __all__ = ["recommend_bracing", "find_candidates", "panel_diagonals", "tie_candi
            "RestraintCandidate", "Search", "GENERATORS", "ORIGINS", "ACTS", "PER_MODE",
            "BRACING_CAUTION", "MemberRules", "RobustInfo", "ProposalForces", "proposal_forces",
            "RobustChoice", "robust_elements", "coloops", "hold_one_way", "hold_single_losses",
-           "key_items", "with_needed_ties"]
+           "key_items", "with_needed_ties", "LayoutRules", "LayoutChoice", "compare_schemes",
+           "Comparison"]

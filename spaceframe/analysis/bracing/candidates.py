@@ -43,6 +43,7 @@ Adding an origin is one generator function and one entry in
 
 from __future__ import annotations
 
+import dataclasses
 from collections import defaultdict
 from dataclasses import dataclass
 from functools import cached_property
@@ -52,8 +53,9 @@ import numpy as np
 
 from ...errors import SpaceframeError
 from ...model import Frame
+from ...suggest import did_you_mean
 from ...tolerances import DEFAULT, Tolerances
-from .frames import frame_labels, frame_offset, panel_bay
+from .frames import bay_key, bay_labels, frame_labels, frame_offset, panel_bay
 
 __all__ = ["MemberCandidate", "RestraintCandidate", "CandidateOptions", "CandidateSet",
            "Search", "GENERATORS", "ORIGINS", "find_candidates", "panel_diagonals",
@@ -107,6 +109,9 @@ class CandidateOptions:
     listed: tuple | None = None
     restraints: bool = False
     attachable: tuple[int, ...] = ()
+    #: Joints whose restraint candidates are limited to given directions: pairs
+    #: ``(joint, unit direction)``; a joint listed here gets only its directions.
+    attach_directions: tuple = ()
 
 
 class Search:
@@ -183,14 +188,25 @@ def support_directions(search: Search) -> list[RestraintCandidate]:
 
 
 def attachable_directions(search: Search) -> list[RestraintCandidate]:
-    """Axis directions at the attachable joints (every joint when none is supported)."""
+    """Axis directions at the attachable joints (every joint when none is supported).
+
+    A joint given with its directions (``options.attach_directions``, a tie
+    that holds only along the normal of a facade) gets those directions,
+    less any part its supports already hold, instead of the axes.
+    """
     frame = search.frame
     if not search.options.restraints:
         return []
     supported = set(frame.restraint_joint.tolist())
+    limited = {}
+    for j, e in search.options.attach_directions:
+        limited.setdefault(int(j), []).append(e)
     joints = set(search.options.attachable) if supported else set(range(frame.n_joints))
     joints |= set(search.options.attachable)
-    return _free_axes(frame, sorted(joints - supported), "attachable", search.tol)
+    out = _free_axes(frame, sorted(joints - supported - set(limited)), "attachable", search.tol)
+    for j in sorted(limited):
+        out += _free_directions(frame, j, limited[j], "attachable", search.tol)
+    return sorted(out, key=lambda c: c.joint)
 
 
 #: The candidate generators by origin, in order of preference: where two find the same
@@ -396,17 +412,36 @@ def tie_candidates(frame: Frame, *, tol: Tolerances = DEFAULT) -> list[MemberCan
 
 def _free_axes(frame: Frame, joints, origin: str, tol: Tolerances) -> list[RestraintCandidate]:
     """The axis directions at ``joints`` that their restraints do not already hold."""
-    d = frame.dimension
-    rj, rd = frame.restraint_joint, frame.restraint_dir
     out = []
     for j in joints:
-        held = rd[rj == j]
-        Q = np.linalg.qr(held.T)[0] if len(held) else None
-        for e in np.eye(d):
-            if Q is not None and np.linalg.norm(e - Q @ (Q.T @ e)) <= tol.restraint_dependence:
-                continue
-            out.append(RestraintCandidate(int(j), tuple(e.tolist()), origin))
+        out += _free_directions(frame, j, np.eye(frame.dimension), origin, tol)
     return out
+
+
+def _free_directions(frame: Frame, j: int, directions, origin: str,
+                     tol: Tolerances) -> list[RestraintCandidate]:
+    """Restraint candidates at joint ``j`` along ``directions`` (unit rows) that its
+    restraints do not already hold (``tol.restraint_dependence``)."""
+    held = frame.restraint_dir[frame.restraint_joint == j]
+    Q = np.linalg.qr(held.T)[0] if len(held) else None
+    out = []
+    for e in np.asarray(directions, dtype=float):
+        if Q is not None and np.linalg.norm(e - Q @ (Q.T @ e)) <= tol.restraint_dependence:
+            continue
+        out.append(RestraintCandidate(int(j), tuple(e.tolist()), origin))
+    return out
+
+
+def free_directions(frame: Frame, j: int, directions, *, tol: Tolerances = DEFAULT):
+    """Which of ``directions`` (unit rows, ``(q, d)``) joint ``j``'s supports leave free.
+
+    Returns
+    -------
+    list of bool
+        True where a restraint along that direction would hold something new.
+    """
+    free = {tuple(c.direction) for c in _free_directions(frame, j, directions, "", tol)}
+    return [tuple(np.asarray(e, float).tolist()) in free for e in directions]
 
 
 # ----------------------------------------------------------------------- the candidate set
@@ -435,6 +470,16 @@ class CandidateSet:
         sides of a ``"tie panel"`` that no member joins are tie candidates.
     partner : (c,) int
         The other diagonal of the same panel, or -1.
+    tier : (c,) int
+        The first key of the greedy order, before the cost: by default 0 for
+        members and 1 for restraints (restraints only for what no member
+        removes); :mod:`.layout` sets it for restraints that compete on cost
+        and for ties to a building that come first.
+    filters : tuple of (str, str, int)
+        What each filter matched: ``(filter, value, candidates removed)``, in
+        the order applied (exclusions here, layout rules in :mod:`.layout`);
+        for ``"attach"`` the value is the number of joints given and the count
+        the restraint candidates made there.
     """
 
     ends: np.ndarray
@@ -445,6 +490,12 @@ class CandidateSet:
     origin: tuple[str, ...]
     panel: tuple
     partner: np.ndarray
+    tier: np.ndarray | None = None
+    filters: tuple = ()
+
+    def __post_init__(self):
+        if self.tier is None:
+            object.__setattr__(self, "tier", (self.joint >= 0).astype(np.int64))
 
     def __len__(self) -> int:
         return len(self.origin)
@@ -454,10 +505,11 @@ class CandidateSet:
         return self.joint < 0
 
     def order(self) -> np.ndarray:
-        """Indices in the order of the greedy pass: members first, then by cost, origin, ends."""
+        """Indices in the order of the greedy pass: by tier (members before restraints
+        unless :mod:`.layout` says otherwise), then cost, origin, ends."""
         keys = np.lexsort((self.joint, self.ends[:, 1], self.ends[:, 0],
                            np.array([ORIGINS.index(o) for o in self.origin]),
-                           np.round(self.cost, 12), (~self.is_member).astype(int)))
+                           np.round(self.cost, 12), self.tier))
         return keys
 
     def subset(self, keep: np.ndarray) -> "CandidateSet":
@@ -469,7 +521,8 @@ class CandidateSet:
         return CandidateSet(self.ends[keep], self.joint[keep], self.direction[keep],
                             self.length[keep], self.cost[keep],
                             tuple(self.origin[i] for i in keep),
-                            tuple(self.panel[i] for i in keep), partner)
+                            tuple(self.panel[i] for i in keep), partner, self.tier[keep],
+                            self.filters)
 
     @classmethod
     def from_records(cls, frame: Frame, members, restraints) -> "CandidateSet":
@@ -532,21 +585,61 @@ def _one_per_pair(frame: Frame, found) -> list[MemberCandidate]:
     return list(chosen.values())
 
 
-def _excluded(frame: Frame, c: MemberCandidate, boxes, bays, panels, member_at) -> bool:
-    """Is candidate ``c`` in an exclusion zone (a box it passes through, a bay, a panel)?"""
+def _bay_filter(frame: Frame, values, bays_of) -> list[tuple[str, set]]:
+    """Each excluded bay as its label, with the candidates in it; unknown ones refused."""
+    labels = bay_labels(frame)
+    out = []
+    for v in values:
+        key = bay_key(v)
+        if key not in labels:
+            valid = ", ".join(f"B{b}" if b[:1].isdigit() else b for b in labels) or "none"
+            raise SpaceframeError(f"bay {v!r} (excluded) is not a bay of "
+                                  f"{frame.source or 'the model'}"
+                                  f"{did_you_mean(key, labels)}; its bays are {valid} "
+                                  f"(write 'B1' or '1')")
+        out.append((f"B{key}" if key[:1].isdigit() else key,
+                    {i for i, b in enumerate(bays_of) if b == key}))
+    return out
+
+
+def _panel_filter(frame: Frame, panels, members) -> list[tuple[str, set]]:
+    """Each excluded panel (a set of corner joints) with the candidates in it."""
+    out = []
+    for p in panels:
+        p = frozenset(int(j) for j in p)
+        hit = {i for i, c in enumerate(members)
+               if c.corners is not None and frozenset(j for j in c.corners if j >= 0) == p}
+        name = ",".join(frame.joint_ids[j] for j in sorted(p))
+        if not hit:
+            near = sorted({",".join(frame.joint_ids[j] for j in sorted(q))
+                           for q in (frozenset(j for j in c.corners if j >= 0)
+                                     for c in members if c.corners is not None)
+                           if len(q & p) >= min(len(p), 3) - 1})[:6]
+            raise SpaceframeError(f"no candidate panel has the corners {name} (excluded panel)"
+                                  f"; panels sharing its corners: "
+                                  f"{'; '.join(near) if near else 'none'}")
+        out.append((name, hit))
+    return out
+
+
+def _box_filter(frame: Frame, boxes, members) -> list[tuple[str, set]]:
+    """Each excluded box with the candidates passing through it."""
     X = frame.coords
-    if any(_segment_hits_box(X[c.a], X[c.b], lo, hi) for lo, hi in boxes):
-        return True
-    if c.corners is None:
-        return False
-    if bays and panel_bay(frame, c.corners, member_at) in bays:
-        return True
-    return frozenset(j for j in c.corners if j >= 0) in panels
+    out = []
+    for lo, hi in boxes:
+        hit = {i for i, c in enumerate(members) if _segment_hits_box(X[c.a], X[c.b], lo, hi)}
+        name = ",".join(f"{v:g}" for v in list(lo) + list(hi))
+        if not hit:
+            extent = ",".join(f"{v:g}" for v in list(X.min(axis=0)) + list(X.max(axis=0)))
+            raise SpaceframeError(f"no candidate member passes through the excluded box {name}; "
+                                  f"the frame spans the box {extent} ({frame.units})")
+        out.append((name, hit))
+    return out
 
 
 def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
                     within: float | None = None,
-                    listed=None, restraints: bool = False, attachable=(),
+                    listed=None, restraints: bool = False, attachable=(), attach_directions=(),
                     exclude_boxes=(), exclude_bays=(), exclude_panels=(),
                     tension_only: bool = False, tol: Tolerances = DEFAULT) -> CandidateSet:
     """Gather the bracing candidates of a frame: every generator of :data:`GENERATORS`.
@@ -572,11 +665,15 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
         Add restraint candidates: the axis directions not yet held at every
         supported joint (every joint when none is supported) and at
         ``attachable`` joints (indices).
+    attach_directions : sequence of (int, (d,) float), keyword-only
+        Attachable joints limited to these unit directions (a tie to a
+        facade that holds only along its normal).
     exclude_boxes : sequence of ((d,), (d,)) float, keyword-only
         No candidate member may pass through these boxes (low, high corners).
     exclude_bays : sequence of str, keyword-only
-        Bay labels (the ``bay`` tag of a panel's members; a tie's bay for a
-        side that is a tie) where no brace goes.  Ties themselves are kept.
+        Bays (the ``bay`` tag of a panel's members; a tie's bay for a
+        side that is a tie) where no brace goes, as the output writes them
+        (``"B1"``) or as labels (``"1"``).  Ties themselves are kept.
     exclude_panels : sequence of sets of int, keyword-only
         Panels, by their corner joints, where no brace goes.
     tension_only : bool, keyword-only
@@ -592,25 +689,41 @@ def find_candidates(frame: Frame, *, panels: bool = True, ties: bool = True,
     Raises
     ------
     SpaceframeError
-        When the exclusions leave no candidate member of those found.
+        When the exclusions leave no candidate member of those found, or one
+        of them matches none (a bay that does not exist, a panel no candidate
+        lies in, a box no candidate passes through): the message lists the
+        valid values.
     """
     search = Search(frame, CandidateOptions(panels=panels, ties=ties, within=within,
                                             listed=listed, restraints=restraints,
-                                            attachable=tuple(attachable)), tol)
+                                            attachable=tuple(attachable),
+                                            attach_directions=tuple(attach_directions)), tol)
     found = [c for generate in GENERATORS.values() for c in generate(search)]
     members = _one_per_pair(frame, [c for c in found if isinstance(c, MemberCandidate)])
     restraint_rows = [c for c in found if isinstance(c, RestraintCandidate)]
     boxes = [(np.asarray(lo, float), np.asarray(hi, float)) for lo, hi in exclude_boxes]
-    bays = set(exclude_bays)
-    excluded_panels = {frozenset(p) for p in exclude_panels}
     member_at = {(min(a, b), max(a, b)): k for k, (a, b) in enumerate(frame.ends.tolist())}
-    kept = [c for c in members
-            if not _excluded(frame, c, boxes, bays, excluded_panels, member_at)]
-    if members and not kept and (boxes or bays or excluded_panels):
+    bays_of = [panel_bay(frame, c.corners, member_at) if c.corners is not None else ""
+               for c in members] if exclude_bays else []
+    zones = ([("exclude box", *z) for z in _box_filter(frame, boxes, members)]
+             + [("exclude bay", *z) for z in _bay_filter(frame, exclude_bays, bays_of)]
+             + [("exclude panel", *z) for z in _panel_filter(frame, exclude_panels, members)])
+    out = set().union(*(hit for _, _, hit in zones)) if zones else set()
+    kept = [c for i, c in enumerate(members) if i not in out]
+    if members and not kept and zones:
         raise SpaceframeError(f"the exclusion zones leave none of the {len(members)} candidate "
                               f"members; make a zone smaller or drop one, so that some panel "
                               f"can be braced")
+    filters = tuple((kind, name, len(hit)) for kind, name, hit in zones)
+    given = set(int(j) for j in attachable) | {int(j) for j, _ in attach_directions}
+    if given and restraints:
+        filters += (("attach", str(len(given)),
+                     sum(c.joint in given for c in restraint_rows if c.origin == "attachable")),)
     if tension_only:
         pairs = CandidateSet.from_records(frame, kept, [])
+        single = [c for c, p in zip(kept, pairs.partner.tolist())
+                  if p < 0 and c.corners is not None]
         kept = [c for c, p in zip(kept, pairs.partner.tolist()) if p >= 0 or c.corners is None]
-    return CandidateSet.from_records(frame, kept, restraint_rows)
+        filters += (("tension only", "one diagonal", len(single)),)
+    cand = CandidateSet.from_records(frame, kept, restraint_rows)
+    return dataclasses.replace(cand, filters=filters)

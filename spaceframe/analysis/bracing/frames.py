@@ -17,7 +17,7 @@ from ...model import Frame
 from ...tolerances import DEFAULT
 
 __all__ = ["frame_labels", "planar_id", "frame_offset", "bay_between", "panel_bay",
-           "missing_ties", "tie_level"]
+           "missing_ties", "tie_level", "bay_labels", "bay_key", "candidate_bay", "joint_bays"]
 
 
 def frame_labels(frame: Frame) -> list[tuple[str, np.ndarray]]:
@@ -134,3 +134,68 @@ def tie_level(frame: Frame, a: int) -> str:
     z = frame.coords[own, 2]
     size = float(np.max(np.ptp(frame.coords, axis=0))) or 1.0
     return "bottom chord" if frame.coords[a, 2] - z.min() <= DEFAULT.select * size else "upper"
+
+
+def bay_labels(frame: Frame) -> list[str]:
+    """Every bay of a frame of frames, in order along the building.
+
+    The bays between consecutive frames (:func:`frame_labels`,
+    :func:`bay_between`), then any other ``bay`` member tag (numeric labels in
+    numeric order, others in order of first appearance).  Empty for a frame
+    with neither.
+    """
+    frames = frame_labels(frame)
+    jf = frame.joint_tags.get("frame")
+    out = [bay_between(jf, int(A[0]), int(B[0])) for (_, A), (_, B) in zip(frames, frames[1:])]
+    tags = list(dict.fromkeys(b for b in frame.member_tags.get("bay") or () if b and b not in out))
+    if all(b.isdigit() for b in tags):
+        tags.sort(key=int)
+    return [b for b in dict.fromkeys(out) if b] + tags
+
+
+def bay_key(text: str) -> str:
+    """A bay as the user may write it, as its label: ``"B3"``, ``"bay 3"`` and ``"3"`` give ``"3"``.
+
+    Only a prefix followed by a digit is taken off, so a label such as
+    ``"Bx"`` stays as written.
+    """
+    t = str(text).strip()
+    for prefix in ("bay ", "bay", "b", "B"):
+        rest = t[len(prefix):].strip() if t.lower().startswith(prefix.lower()) else ""
+        if rest[:1].isdigit():
+            return rest
+    return t
+
+
+def candidate_bay(frame: Frame, cand, i: int, member_at=None, around=None) -> str:
+    """The bay of candidate ``i`` of a :class:`~.candidates.CandidateSet` ('' for none).
+
+    A panel's diagonal: the panel's bay (:func:`panel_bay`); any other member
+    (a tie, a listed pair, a pair within a distance): the bay between its
+    ends' frames (:func:`bay_between`), or, in a frame with ``bay`` member
+    tags but no frames, the most common bay of the members at its ends; a
+    restraint: none.  ``member_at`` (:func:`panel_bay`) and ``around``
+    (:func:`joint_bays`) may be passed to save rebuilding them.
+    """
+    if cand.joint[i] >= 0:
+        return ""
+    if cand.panel[i] is not None:
+        return panel_bay(frame, cand.panel[i], member_at)
+    a, b = (int(j) for j in cand.ends[i])
+    jframe, tags = frame.joint_tags.get("frame"), frame.member_tags.get("bay")
+    if jframe is not None or tags is None:
+        return bay_between(jframe, a, b)
+    around = joint_bays(frame) if around is None else around
+    labels = around[a] + around[b]
+    return Counter(labels).most_common(1)[0][0] if labels else ""
+
+
+def joint_bays(frame: Frame) -> list[list[str]]:
+    """The non-empty ``bay`` tags of the members at each joint (for :func:`candidate_bay`)."""
+    tags = frame.member_tags.get("bay") or ("",) * frame.n_members
+    out = [[] for _ in range(frame.n_joints)]
+    for (a, b), t in zip(frame.ends.tolist(), tags):
+        if t:
+            out[a].append(t)
+            out[b].append(t)
+    return out

@@ -186,6 +186,11 @@ class BracingResult:
         should find as many).
     lateral : LateralRestraint or None
         For a lone planar frame with modes out of its plane left.
+    layout : LayoutChoice or None
+        How the choice was made under layout rules that are no matroid
+        constraint (:func:`spaceframe.analysis.bracing.layout.select`); None
+        when the greedy pass alone made it.  What each filter removed is in
+        ``candidates.filters``.
     rules : MemberRules
         Needed ties, the one-way repair, which added items are key.
     robust : RobustInfo or None
@@ -211,6 +216,7 @@ class BracingResult:
     rules: MemberRules = MemberRules()
     robust: RobustInfo | None = None
     proposal_forces: object = None
+    layout: object = None
 
     @property
     def cost(self) -> float:

@@ -63,6 +63,7 @@ from ...results import AuditResult
 from ...tolerances import DEFAULT, Tolerances
 from ..audit import audit
 from ..equilibrium import compatibility_matrix
+from . import layout as layout_rules
 from .candidates import CandidateSet, find_candidates
 from .forces import proposal_forces
 from .result import (BracingResult, LateralRestraint, MemberRules, Remedy, RobustInfo,
@@ -332,10 +333,11 @@ def remedies(frame: Frame, after: AuditResult, *,
 
 def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                       within: float | None = None,
-                      listed=None, restraints: str = "auto", attachable=(),
+                      listed=None, restraints: str = "auto", attachable=(), attach_directions=(),
                       exclude_boxes=(), exclude_bays=(), exclude_panels=(),
                       tension_only: bool = False, robust: bool = False,
                       forces: bool = True, alternatives: int = 3,
+                      layout: "layout_rules.LayoutRules | None" = None,
                       audit_options: dict | None = None,
                       tol: Tolerances = DEFAULT) -> BracingResult:
     """The fewest, cheapest candidate members and restraints that remove every mechanism.
@@ -351,8 +353,8 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
     Parameters
     ----------
     frame : Frame
-    panels, ties, within, listed, attachable, exclude_boxes, exclude_bays, exclude_panels \
-: keyword-only
+    panels, ties, within, listed, attachable, attach_directions, exclude_boxes, exclude_bays, \
+exclude_panels : keyword-only
         As in :func:`find_candidates`.
     tension_only : bool, keyword-only
         The added braces are rods (tag ``carries = tension``): chosen and
@@ -368,7 +370,12 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
         True).
     restraints : {"auto", "always", "never"}, keyword-only
         Restraint candidates: "auto" (default) only when the frame has
-        rigid-body modes or ``attachable`` joints are given.
+        rigid-body modes or ``attachable`` joints are given, and then only
+        for what no member removes; "always": always, competing with the
+        members on cost (:mod:`.layout`).
+    layout : LayoutRules, keyword-only
+        Layout rules (:mod:`.layout`); None: the defaults (no member through
+        the clear space at floor level, unit costs).
     alternatives : int, keyword-only
         At most this many alternative sets of the same size (default 3).
     audit_options : dict, keyword-only
@@ -419,12 +426,18 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                               f"not {within!r}")
     opts = dict(audit_options or {})
     before = audit(frame, tol=tol, **opts)
+    attach_joints = list(dict.fromkeys([*attachable, *(j for j, _ in attach_directions)]))
     use_restraints = restraints == "always" or (
-        restraints == "auto" and (before.rigid_body_modes > 0 or len(attachable) > 0))
+        restraints == "auto" and (before.rigid_body_modes > 0 or len(attach_joints) > 0))
     cand = find_candidates(frame, panels=panels, ties=ties, within=within, listed=listed,
-                           restraints=use_restraints, attachable=attachable,
+                           restraints=use_restraints, attachable=attach_joints,
+                           attach_directions=attach_directions,
                            exclude_boxes=exclude_boxes, exclude_bays=exclude_bays,
                            exclude_panels=exclude_panels, tension_only=tension_only, tol=tol)
+    cand, plan = layout_rules.prepare(frame, cand, layout, restraints=restraints,
+                                      attachable=attach_joints, tension_only=tension_only,
+                                      tol=tol)
+    choice = None
     k = before.mechanisms
     n, d = frame.n_joints, frame.dimension
     # the readable modes, (n d, k); held sparse for many modes, dense only for the basis below
@@ -441,18 +454,28 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
         threshold = tol.rank * _s_max(frame, tol)
         Q, _ = np.linalg.qr(U)
         reach = np.asarray(A @ Q)
-        order, elements, cost = matroid_elements(cand, reach, tension_only)
-        basis = greedy_basis(elements, order, threshold)
-        picked = basis
-        if robust:
-            rc = robust_elements(elements, order, cost, cand.is_member, basis, threshold, tol=tol)
-            picked = list(rc.elements)
-        chosen = expand_elements(picked, cand, tension_only)
-        least = float(sum(cand.cost[i] for i in expand_elements(basis, cand, tension_only)
-                          if cand.is_member[i]))
-        if not robust:
-            alts = _alternatives(elements, order, cost, basis, threshold, alternatives, cand,
-                                 tension_only)
+        if plan.search:   # a layout rule that is no matroid constraint
+            if robust:
+                raise SpaceframeError("a robust proposal is searched on the matroid's elements; "
+                                      "it does not combine yet with symmetric groups or bays "
+                                      "that must hold a brace")
+            chosen, removed, choice = layout_rules.select(plan, cand, reach, threshold)
+            basis = list(range(removed))
+            least = float(sum(cand.cost[i] for i in chosen if cand.is_member[i]))
+        else:
+            order, elements, cost = matroid_elements(cand, reach, tension_only)
+            basis = greedy_basis(elements, order, threshold)
+            picked = basis
+            if robust:
+                rc = robust_elements(elements, order, cost, cand.is_member, basis, threshold,
+                                     tol=tol)
+                picked = list(rc.elements)
+            chosen = expand_elements(picked, cand, tension_only)
+            least = float(sum(cand.cost[i] for i in expand_elements(basis, cand, tension_only)
+                              if cand.is_member[i]))
+            if not robust:
+                alts = _alternatives(elements, order, cost, basis, threshold, alternatives, cand,
+                                     tension_only)
     rule = _member_rules(frame, cand, chosen, A, k - len(basis), tension_only, robust, tol)
     chosen = rule["chosen"]
     if rule["ties"] or rule["repaired"]:
@@ -475,7 +498,7 @@ def recommend_bracing(frame: Frame, *, panels: bool = True, ties: bool = True,
                          remaining=remedies(braced, after, tol=tol),
                          tension_only=tension_only, restraints_used=use_restraints,
                          expected_after=k - len(basis),
-                         lateral=lateral_restraint(braced, after, tol=tol),
+                         lateral=lateral_restraint(braced, after, tol=tol), layout=choice,
                          rules=MemberRules(
                              one_way=rule["one_way"], ties=tuple(rule["ties"]),
                              repaired=tuple(rule["repaired"]), held=rule["held"],
