@@ -131,6 +131,16 @@ BAD = [
 ]
 
 
+def test_text_introduces_each_kind_of_case_in_words():
+    """Cases, the self-weight case, combinations and notional variants each read as what they are."""
+    res = run(MODELS / "hall_truss.toml")
+    assert res.exit_code == 0, res.output
+    for heading in ("Load case 'roof';", "Self-weight case 'self_weight';",
+                    "Combination 'gravity';", "Notional case 'gravity notional +x';"):
+        assert heading in res.output, heading
+    assert "(case)" not in res.output and "(combination)" not in res.output
+
+
 @pytest.mark.parametrize("name,text,marker,pieces", BAD, ids=[b[0] for b in BAD])
 def test_bad_load_input_exits_2_naming_the_item(write, name, text, marker, pieces):
     path = write("bad.toml", text)
