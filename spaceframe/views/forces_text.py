@@ -17,8 +17,9 @@ _BRACING = {"brace", "tie", "purlin", "ridge", "bracing"}
 
 
 #: How each kind of case (``AppliedLoads.kinds``) is introduced in the text.
-CASE_HEADINGS = {"case": "Load case", "self-weight": "Self-weight case",
-                 "combination": "Combination", "notional": "Notional case"}
+_CASE_HEADINGS = {"case": "Load case", "self-weight": "Self-weight case",
+                  "combination": "Combination", "notional": "Notional case"}
+
 
 def _state(value: float) -> str:
     return "T" if value > 0 else "C" if value < 0 else "-"
@@ -63,7 +64,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
     width = max([len(m) for m in f.member_ids] + [6])
     for i, name in enumerate(r.names):
         total = ", ".join(f"{v:.4g}" for v in r.loads[i].sum(axis=0))
-        out += ["", f"{CASE_HEADINGS.get(r.kinds[i], 'Case')} {name!r}; total load [{total}] {u}"]
+        out += ["", f"{_CASE_HEADINGS[r.kinds[i]]} {name!r}; total load [{total}] {u}"]
         if not r.carried[i]:
             out.append(f"  NOT CARRIED: {100 * r.mechanism_fraction[i]:.3g} % of the load acts on "
                        f"the frame's mechanisms, which nothing resists:")

@@ -113,6 +113,16 @@ def test_demo_models_with_loads_run():
                                               max(1.0, max(map(abs, case["total_load"]))))
 
 
+def test_text_introduces_each_kind_of_case_in_words():
+    """Cases, the self-weight case, combinations and notional variants each read as what they are."""
+    res = run(MODELS / "hall_truss.toml")
+    assert res.exit_code == 0, res.output
+    for heading in ("Load case 'roof';", "Self-weight case 'self_weight';",
+                    "Combination 'gravity';", "Notional case 'gravity notional +x';"):
+        assert heading in res.output, heading
+    assert "(case)" not in res.output and "(combination)" not in res.output
+
+
 BAD = [
     ("unknown joint", LOADED.replace("C = [0.0, -12.0]", "Q = [0.0, -12.0]"), "Q = [0.0",
      ["load case 'apex' loads joint 'Q'", "not in [joints]", "correct the id"]),
@@ -129,16 +139,6 @@ BAD = [
     ("self weight", LOADED + "[self_weight]\nper_length = -0.2\n", "per_length = -0.2",
      ["[self_weight] per_length must be a positive number"]),
 ]
-
-
-def test_text_introduces_each_kind_of_case_in_words():
-    """Cases, the self-weight case, combinations and notional variants each read as what they are."""
-    res = run(MODELS / "hall_truss.toml")
-    assert res.exit_code == 0, res.output
-    for heading in ("Load case 'roof';", "Self-weight case 'self_weight';",
-                    "Combination 'gravity';", "Notional case 'gravity notional +x';"):
-        assert heading in res.output, heading
-    assert "(case)" not in res.output and "(combination)" not in res.output
 
 
 @pytest.mark.parametrize("name,text,marker,pieces", BAD, ids=[b[0] for b in BAD])
