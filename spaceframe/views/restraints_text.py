@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..naming import count, fixed_decimals, join_words
+from ..naming import count, fixed_decimals, join_words, natural_sorted
 from ..restraint_results import LATERAL, RESTRAINT_CAUTION, RestraintResult
 
 __all__ = ["render_restraints", "render_continuous", "continuous_verdict", "chord_span", "why_lines",
@@ -83,7 +83,7 @@ def why_lines(r: RestraintResult, most: int = 6) -> list[str]:
                 continue
             untied = [ids[u.joint] for u in c.unrestrained[d] if u.reason == "untied"]
             tied = [u for u in c.unrestrained[d] if u.reason == "tied"]
-            ties = sorted({mids[k] for u in tied for k in u.members})
+            ties = natural_sorted({mids[k] for u in tied for k in u.members})
             what = []
             if untied:
                 what.append(f"nothing ties {join_words(untied, most=4)} {DIRECTION_WORDS[d]}")

@@ -46,3 +46,13 @@ def test_chord_ids_with_markup_are_escaped():
     assert "<b>" not in section and "&lt;b&gt;-&amp;x" in section
     assert _data(html)["restraints"]["chords"][0]["span"] == "C1 <b>-&x"
     assert np.isclose(_data(html)["restraints"]["longest"], 2.0)
+
+
+def test_ties_to_moving_joints_are_listed_in_natural_order():
+    """The purlins that tie a top chord to joints that move are named P1.0, P1.1, P1.2, ...,
+    not P1.0, P1.1, P1.10, ... (the joint lists' natural order, kept for member lists too)."""
+    from spaceframe.families import plane_truss_roof
+    from spaceframe.views.restraints_text import render_restraints
+    text = render_restraints(restraints(plane_truss_roof(3, 12)))
+    assert "are tied (P1.0, P1.1, P1.2, P1.3 and " in text
+    assert "P1.10, P1.11" not in text
