@@ -15,6 +15,7 @@ import numpy as np
 
 from ..errors import SpaceframeError
 from ..force_results import ForcesResult
+from .forces_text import case_heading
 from .render import PALETTE, SIZE, Stage, force_colours, legend_entry
 from .scene import ARROW, embed, frame_scene, view_direction
 
@@ -50,7 +51,7 @@ def forces_picture(result: ForcesResult, case: int, *, size=SIZE) -> np.ndarray:
                f"{f.member_ids[big_t]}), {int(np.sum(t < 0))} in compression (largest "
                f"{t[big_c]:.3g} {u}, {f.member_ids[big_c]}); colour scaled to the largest force."
                if top else "No member carries force in this case.")
-    title = f"Forces, case {name!r} ({result.kinds[case]}): {f.name or 'frame'}"
+    title = f"{case_heading(name, result.kinds[case])}: member forces, {f.name or 'frame'}"
     legend = [legend_entry("tension", "tension: the member pulls on its joints"),
               legend_entry("compression", "compression: the member pushes"),
               legend_entry("ghost", "thin: carries nothing"),

@@ -10,15 +10,21 @@ import numpy as np
 from ..naming import count as counted, fixed_decimals
 from ..force_results import FORCES_CAUTION, STIFFNESS_NOTE, ForcesResult
 
-__all__ = ["render_forces", "forces_csv", "bracing_members"]
+__all__ = ["render_forces", "forces_csv", "bracing_members", "case_heading"]
 
 #: Member tags that mark bracing and ties (an extruded model's ``group``, or ``role``).
 _BRACING = {"brace", "tie", "purlin", "ridge", "bracing"}
 
 
-#: How each kind of case (``AppliedLoads.kinds``) is introduced in the text.
+#: How each kind of case (``AppliedLoads.kinds``) is introduced in words.
 _CASE_HEADINGS = {"case": "Load case", "self-weight": "Self-weight case",
                   "combination": "Combination", "notional": "Notional case"}
+
+
+def case_heading(name: str, kind: str) -> str:
+    """Case ``name`` of ``kind`` in words: ``case_heading("gravity", "combination") ==
+    "Combination 'gravity'"``."""
+    return f"{_CASE_HEADINGS[kind]} {name!r}"
 
 
 def _state(value: float) -> str:
@@ -64,7 +70,7 @@ def render_forces(r: ForcesResult, *, max_rows: int = 10) -> str:
     width = max([len(m) for m in f.member_ids] + [6])
     for i, name in enumerate(r.names):
         total = ", ".join(f"{v:.4g}" for v in r.loads[i].sum(axis=0))
-        out += ["", f"{_CASE_HEADINGS[r.kinds[i]]} {name!r}; total load [{total}] {u}"]
+        out += ["", f"{case_heading(name, r.kinds[i])}; total load [{total}] {u}"]
         if not r.carried[i]:
             out.append(f"  NOT CARRIED: {100 * r.mechanism_fraction[i]:.3g} % of the load acts on "
                        f"the frame's mechanisms, which nothing resists:")
