@@ -1,6 +1,6 @@
 """The one way spaceframe imports an optional library.
 
-The core audit needs numpy, scipy, pymetis, click and rtoml only.  Pictures,
+The core audit needs numpy, scipy, pymetis, click, rtoml and threadpoolctl only.  Pictures,
 imports of meshes and drawings, and batches on Dask need more; those libraries
 come with the package's extras (``pyproject.toml``)::
 

@@ -133,6 +133,9 @@ class AuditResult:
         frame's typical stiffness, ascending: local patterns below 0.1 %.
     soft_displacements : (q, joints, dimension) float
     soft_info : tuple of ModeInfo
+    soft_skipped : str or None
+        Why soft modes were not looked for ("not asked for", or the frame's
+        size above ``Limits.soft_auto`` in a default audit); None when they were.
     one_way : OneWayResult or None
         For a frame with one-way members (member tag ``carries``): whether it
         is held with them acting one way only, the members that go slack and
@@ -170,6 +173,7 @@ class AuditResult:
     soft_ratios: np.ndarray | None = None
     soft_displacements: np.ndarray | None = None
     soft_info: tuple = ()
+    soft_skipped: str | None = None
     one_way: object = None
     declared_prestress: object = None
     warnings: tuple[str, ...] = field(default_factory=tuple)
@@ -291,6 +295,7 @@ class AuditResult:
                     self.soft_ratios if self.soft_ratios is not None else (),
                     self.soft_info,
                     self.soft_displacements if self.soft_displacements is not None else ())],
+            "soft_modes_skipped": self.soft_skipped,
             "one_way": self._one_way_dict(),
             "declared_prestress": None if self.declared_prestress is None else {
                 "forces": {f.member_ids[k]: float(v) for k, v in

@@ -47,6 +47,13 @@ class Limits:
         Soft modes come from a dense symmetric eigensolver when
         ``free_coordinates <= dense_soft``, from block inverse iteration
         above.  Default ``1_500``.
+    soft_auto : int
+        With ``soft=None`` (the default) the audit looks for soft modes when
+        ``free_coordinates <= soft_auto``: their search factorises a second
+        matrix, ``C.T diag(EA / L) C``, which above this size costs a third of
+        the audit and more.  Larger frames get them on request
+        (``audit(soft=True)``, ``spaceframe audit --soft``) and their account
+        says they were not looked for.  Default ``20_000``.
     common_prestress : int
         The search for one state of self-stress that stiffens every internal
         mechanism at once runs when ``internal_mechanisms <= common_prestress``
@@ -67,7 +74,8 @@ class Limits:
         The audit holds its mechanisms and their stiffening states dense
         (``(k, n, d)`` and ``(k, m)`` arrays) when ``mechanisms * joints *
         dimension <= dense_modes``, and as sparse rows otherwise
-        (:class:`spaceframe.modeset.ModeSet`).  The two
+        (:class:`spaceframe.modeset.ModeSet`), as also whenever the basis was
+        made block by block (``split_basis``).  The two
         give the same modes, orders and states to rounding.  Default
         ``20_000_000`` (160 MB of modes).
     block_prestress : int
@@ -90,6 +98,7 @@ class Limits:
     redundancy_auto: int = 3_000
     redundancy_max: int = 20_000
     dense_soft: int = 1_500
+    soft_auto: int = 20_000
     common_prestress: int = 12
     pardiso_engine: int = 2_000
     split_basis: int = 1_000_000

@@ -64,7 +64,7 @@ SOURCES = sorted((ROOT / "spaceframe").rglob("*.py"))
 
 def test_core_dependencies_are_the_audit_s():
     assert {_name(r) for r in PROJECT["dependencies"]} == {"numpy", "scipy", "pymetis", "click",
-                                                          "rtoml"}
+                                                          "rtoml", "threadpoolctl"}
 
 
 def test_every_module_imported_is_the_standard_library_core_or_an_extra():

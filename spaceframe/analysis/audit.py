@@ -21,12 +21,14 @@ from .prestress import (declared_prestress_test, prestress_test, prestress_test_
                         product_forces, product_forces_sparse)
 from .redundancy import key_members, probes, redundancy_shares
 from .soft import soft_modes, typical_stiffness
+from .threads import dense_steps_single_threaded
 
 __all__ = ["audit"]
 
 
+@dense_steps_single_threaded
 def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
-          redundancy: bool | None = None, soft: bool = True,
+          redundancy: bool | None = None, soft: bool | None = None,
           tol: Tolerances = DEFAULT) -> AuditResult:
     """Audit the stability of a pin-jointed frame.
 
@@ -64,8 +66,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         cheap (the dense engine, or at most ``tol.limits.redundancy_auto``
         free coordinates, one solve each); True: always up to
         ``tol.limits.redundancy_max`` free coordinates; False: never.
-    soft : bool, keyword-only
-        Look for soft modes (:mod:`spaceframe.analysis.soft`; default True).
+    soft : bool or None, keyword-only
+        Look for soft modes (:mod:`spaceframe.analysis.soft`).  None
+        (default): for frames of at most ``tol.limits.soft_auto`` free
+        coordinates (the search is a second factorisation); True: always;
+        False: never.  Where they were not looked for,
+        ``AuditResult.soft_skipped`` says why.
     tol : Tolerances, keyword-only
         ``tol.rank`` is the relative singular value threshold of a compact
         frame; a slender one is judged with ``tol.rank_threshold(scale)`` and
@@ -130,17 +136,16 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     known.update(rank=decision.rank, mechanisms=k,
                  self_stress_states=decision.self_stress_count, engine=decision.method)
     rigid = rigid_body_motions(frame, dofs, tol=tol)
-    # many modes: held as sparse rows, never as a dense (k, n, d) array (Limits.dense_modes)
-    held_sparse = k * frame.n_joints * d > tol.limits.dense_modes
     # many local mechanisms: their canonical basis block by block, never dense N x k
     split = decision.local and C.shape[1] * k > tol.limits.split_basis
+    # many modes, or a basis made block by block: held as sparse rows, never as a dense
+    # (k, n, d) array (Limits.dense_modes)
+    held_sparse = split or k * frame.n_joints * d > tol.limits.dense_modes
     if split:
         E, piv = canonical_split(decision.local_modes, decision.mechanisms, dofs.joint_of(),
                                  tol=tol)
         _check_rigid_inside(decision.mechanisms, rigid, tol, known, local=decision.local_modes)
         internal, rigid = local_basis(E, rigid, dofs.joint_of(), piv=piv, tol=tol)
-        if not held_sparse:
-            internal = internal.toarray()
     else:
         whole = decision.all_mechanisms()
         _check_rigid_inside(whole, rigid, tol, known)
@@ -184,6 +189,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
     q = stress.shape[0]
     ea = frame.member_properties.get("EA")
+    if soft is None:  # a second factorisation: by default for frames up to a size
+        soft = C.shape[1] <= tol.limits.soft_auto
+        soft_skipped = None if soft else (f"{C.shape[1]:,} free coordinates, more than the "
+                                          f"{tol.limits.soft_auto:,} a default audit looks at")
+    else:
+        soft_skipped = None if soft else "not asked for"
     if not soft:
         sm = None
     elif split:
@@ -238,8 +249,8 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         self_stress_forces=stress, self_stress_complete=(q == s), gap=gap,
         key_members=tuple(frame.member_ids[i] for i in key), redundancy=shares,
         soft_ratios=soft_ratio, soft_displacements=soft_u,
-        soft_info=soft_info, one_way=one_way, declared_prestress=declared,
-        warnings=tuple(warnings))
+        soft_info=soft_info, soft_skipped=soft_skipped, one_way=one_way,
+        declared_prestress=declared, warnings=tuple(warnings))
 
 
 def _dense_modes(internal: np.ndarray, rigid: np.ndarray, dofs, frame: Frame) -> ModeSet:

@@ -118,7 +118,7 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
     col_pos, n_cols = _positions(coordinate, nb)
     small = (block >= 0) & (n_rows[np.maximum(block, 0)] * n_cols[np.maximum(block, 0)]
                             <= tol.limits.dense_engine)
-    out_rows, out_cols, out_vals = [], [], []
+    pieces = []                     # (columns, their CSC block): each column's entries in row order
     # small blocks: a dense SVD each, batched over blocks of one shape, once per distinct block
     reached = np.unique(block[small])
     Cc = C.tocoo()
@@ -156,24 +156,38 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
             Yb = np.zeros((mb, len(cols)))
             Yb[row_pos[y_row[lo:hi]], np.ravel(local)] = y_val[lo:hi]
             Pb = Q @ (Q.T @ Yb) if Q.shape[1] else np.zeros_like(Yb)
-            r, c = np.nonzero(Pb)
-            out_rows.append(members_of[b][r])
-            out_cols.append(cols[c])
-            out_vals.append(Pb[r, c])
+            pieces.append((cols, _columns(Pb, Pb != 0, rows=members_of[b], m=m)))
     # the rest: the whole frame's projector, a batch of columns at a time
     rest = np.flatnonzero(~small)
     for start in range(0, len(rest), _BATCH):
         cols = rest[start:start + _BATCH]
         P = project(Y[:, cols].toarray())
         top = np.abs(P).max(axis=0) if P.size else np.zeros(len(cols))
-        keep = np.abs(P) > tol.sparse_drop * top[None, :]
-        r, c = np.nonzero(keep)
-        out_rows.append(r)
-        out_cols.append(cols[c])
-        out_vals.append(P[r, c])
-    cat = (lambda parts, dt: np.concatenate(parts).astype(dt) if parts else np.zeros(0, dt))
-    return sp.csc_matrix((cat(out_vals, float), (cat(out_rows, int), cat(out_cols, int))),
-                         shape=(m, k))
+        pieces.append((cols, _columns(P, np.abs(P) > tol.sparse_drop * top[None, :], m=m)))
+    return _gather(pieces, m, k)
+
+
+def _columns(P: np.ndarray, keep: np.ndarray, *, m: int, rows=None) -> sp.csc_matrix:
+    """The entries of the dense ``P`` where ``keep``, as CSC columns (``rows``: its rows' indices)."""
+    r, c = np.nonzero(keep.T)[::-1]          # column by column, rows ascending in each
+    r = r if rows is None else rows[r]
+    indptr = np.zeros(P.shape[1] + 1, dtype=np.int64)
+    np.cumsum(np.bincount(c, minlength=P.shape[1]), out=indptr[1:])
+    return sp.csc_matrix((P.T[keep.T], r, indptr), shape=(m, P.shape[1]))
+
+
+def _gather(pieces, m: int, k: int) -> sp.csc_matrix:
+    """The ``(m, k)`` CSC matrix whose columns ``cols`` are each piece's: one copy, no sort."""
+    if not pieces:
+        return sp.csc_matrix((m, k))
+    cols = np.concatenate([c for c, _ in pieces])
+    whole = pieces[0][1] if len(pieces) == 1 else sp.hstack([b for _, b in pieces], format="csc")
+    if len(cols) == k and np.array_equal(cols, np.arange(k)):
+        return whole
+    place = np.full(k, len(cols))                 # a column no piece has: the empty one added
+    place[cols] = np.arange(len(cols))
+    whole = sp.hstack([whole, sp.csc_matrix((m, 1))], format="csc")
+    return whole[:, place]
 
 
 def _positions(label: np.ndarray, nb: int) -> tuple[np.ndarray, np.ndarray]:

@@ -69,6 +69,17 @@ _SEED = 20261201
 _BLOCK = 16  # right-hand sides per solve: SuperLU's multi-vector solve grows faster past this
 
 
+def rows_of_symmetric(A) -> sp.csr_matrix:
+    """The symmetric sparse ``A`` as CSR without a conversion: a CSC matrix's arrays read as rows.
+
+    For products with dense blocks held row-major, which SciPy's CSR kernel
+    takes a row at a time.
+    """
+    if A.format == "csc":
+        return sp.csr_matrix((A.data, A.indices, A.indptr), shape=A.shape)
+    return sp.csr_matrix(A)
+
+
 @dataclass(frozen=True)
 class RankDecision:
     """What the engine found.
@@ -672,10 +683,11 @@ def _subspace(Kp, lu, k, n, iterations: int = 3):
         return np.zeros((n, 0)), np.zeros(0)
     X = np.random.default_rng(_SEED).standard_normal((n, width))
     theta = np.zeros(width)
+    Kr = rows_of_symmetric(Kp)
     for _ in range(iterations):
         X = lu.solve(X)
-        X, _ = np.linalg.qr(X)
-        H = X.T @ (Kp @ X)
+        X = np.ascontiguousarray(np.linalg.qr(X)[0])
+        H = X.T @ (Kr @ X)
         theta, V = np.linalg.eigh((H + H.T) / 2)
         X = X @ V
     return X, theta
@@ -726,19 +738,23 @@ class _Projector:
         self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
         self.inv = np.empty_like(perm)
         self.inv[perm] = np.arange(len(perm))
+        # row-major copies for the products with blocks held row-major (C order): SciPy's
+        # sparse-times-dense runs several times faster so than with a column-major block
+        self._CT = sp.csr_matrix(C.T)
+        self._K = rows_of_symmetric(Kp)
 
     def __call__(self, Y):
         Y = np.asarray(Y, dtype=float)
         flat = Y.ndim == 1
         Y = Y[:, None] if flat else Y
-        C, Kp, lu, mech = self.C, self.Kp, self.lu, self.mech
+        C, lu, mech = self.C, self.lu, self.mech
         T = np.empty_like(Y)
         block = getattr(lu, "block", _BLOCK)
         for lo in range(0, Y.shape[1], block):
-            y = Y[:, lo:lo + block]
-            rhs = (C.T @ y)[self.perm]
-            x = lu.solve(rhs)
-            r = rhs - Kp @ x
+            y = np.ascontiguousarray(Y[:, lo:lo + block])
+            rhs = (self._CT @ y)[self.perm]
+            x = np.ascontiguousarray(lu.solve(rhs))
+            r = rhs - self._K @ x
             if np.linalg.norm(r) > self.refine * np.linalg.norm(rhs):
                 x += lu.solve(r)
             x = x[self.inv]

@@ -123,7 +123,7 @@ def typical_stiffness(C, lengths, ea=None) -> float:
 
 
 def _iterate(K, delta, mech, joint_of, width, perm, tol, iterations: int = 4):
-    from .nullspace import _ordering, factorise_definite
+    from .nullspace import _ordering, factorise_definite, rows_of_symmetric
 
     N = K.shape[0]
     if perm is None:
@@ -133,6 +133,7 @@ def _iterate(K, delta, mech, joint_of, width, perm, tol, iterations: int = 4):
     Kp = K[perm][:, perm].tocsc()
     lu = factorise_definite(Kp + delta * sp.identity(N, format="csc"), tol=tol)
     M = mech[perm]
+    Kr = rows_of_symmetric(Kp)
     block = width + 4
     X = np.random.default_rng(_SEED).standard_normal((N, min(block, N - M.shape[1])))
     for _ in range(iterations):
@@ -141,8 +142,8 @@ def _iterate(K, delta, mech, joint_of, width, perm, tol, iterations: int = 4):
         X = lu.solve(X)
         if M.shape[1]:
             X -= M @ (M.T @ X)
-        X, _ = np.linalg.qr(X)
-        H = X.T @ (Kp @ X)
+        X = np.ascontiguousarray(np.linalg.qr(X)[0])
+        H = X.T @ (Kr @ X)
         vals, V = np.linalg.eigh((H + H.T) / 2)
         X = X @ V
     return vals[:width], X[:, :width][inv]

@@ -6,6 +6,7 @@ import sys
 
 import click
 
+from ..tolerances import DEFAULT
 from .common import (chords_option, debug_option, json_option, model_argument,
                      reading_options, run_guarded, supports_option)
 
@@ -26,7 +27,10 @@ EXIT_MECHANISM = 1
 @click.option("--all", "show_all", is_flag=True, help="List every mode and state in the text.")
 @click.option("--redundancy/--no-redundancy", default=None,
               help="Compute every member's redundancy share (default: where it is cheap, up "
-                   "to 3,000 free coordinates).")
+                   f"to {DEFAULT.limits.redundancy_auto:,} free coordinates).")
+@click.option("--soft/--no-soft", default=None,
+              help="Look for soft modes (held, but only just: a second factorisation; "
+                   f"default: up to {DEFAULT.limits.soft_auto:,} free coordinates).")
 @click.option("--continuous-chords", "continuous", is_flag=True,
               help="Also say whether the frame is held once its chords (straight chains of "
                    "members) are read as continuous through their joints, with the longest "
@@ -35,8 +39,8 @@ EXIT_MECHANISM = 1
 @supports_option
 @reading_options
 @debug_option
-def audit_command(model, as_json, self_stress, method, show_all, redundancy, continuous, chords,
-                  supports, reading, debug):
+def audit_command(model, as_json, self_stress, method, show_all, redundancy, soft, continuous,
+                  chords, supports, reading, debug):
     """Audit the stability of the frame in MODEL (.toml or .json; or imported geometry:
     .stl, .obj, .ply, .off, .glb, .gltf, .dxf, .svg, .ifc, a ...joints.csv/...members.csv
     pair).
@@ -64,7 +68,8 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, con
         if chords is not None and not continuous:
             raise SpaceframeError("--chords chooses the chords of --continuous-chords; give "
                                   "both, or leave --chords out")
-        result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy)
+        result = audit(frame, self_stress_cap=cap, method=method, redundancy=redundancy,
+                       soft=soft)
         held = None
         if continuous:
             from ..analysis.restraints import restraints

@@ -156,6 +156,10 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: "
                          f"{info.description}")
+    if r.soft_skipped is not None and r.soft_skipped != "not asked for":
+        lines.append("")
+        lines.append(f"Soft modes: not looked for ({r.soft_skipped}); --soft looks for them, "
+                     f"at the cost of a second factorisation.")
     lines.extend(_one_way_lines(r))
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
@@ -238,7 +242,9 @@ def _order_note(r: AuditResult, i: int, *, plural: bool = False) -> str:
 def _stiffening_state(r: AuditResult, i: int) -> str:
     """``"state 2 (tension in R1, R2)"``: the state that stiffens mode ``i``, in words."""
     index, t = r.stiffening.support(i)
-    pull = [k for k in np.argsort(-t, kind="stable") if t[k] > 0.05]
+    # largest tension first; forces equal to the printed digits in the model's member order,
+    # so that rounding in the last bits does not reorder the words
+    pull = sorted(np.flatnonzero(t > 0.05).tolist(), key=lambda k: (-round(float(t[k]), 6), k))
     ids = [r.frame.member_ids[index[k]] for k in pull]
     words = ", ".join(ids[:4]) + (f" and {len(ids) - 4} more" if len(ids) > 4 else "")
     for j, s in enumerate(r.self_stress_forces):
