@@ -78,7 +78,9 @@ def _child(path: str, soft: bool) -> None:
     out = {"load_s": t1 - t0, "audit_s": t2 - t1, "cpu_s": c2 - c1, "peak": _peak_rss_bytes(),
            **{k: int(getattr(result, k)) for k in COUNTS}, "method": result.gap.method,
            # engines before the choice of factorisation had SuperLU only
-           "factorisation": getattr(result.gap, "factorisation", "SuperLU")}
+           "factorisation": getattr(result.gap, "factorisation", "SuperLU"),
+           # engines before soft modes on request looked for them whenever soft=True
+           "soft": soft and getattr(result, "soft_skipped", None) is None}
     try:
         from spaceframe.analysis.equilibrium import compatibility_matrix, free_dofs
         from spaceframe.analysis.nullspace import local_mechanisms
@@ -220,6 +222,7 @@ def main(argv=None) -> int:
             else new["method"]
         if new.get("local") is not None:
             path += f"; {new['local']:,} local"
+        path += "; soft modes " + ("looked for" if new.get("soft") else "not looked for")
         prev_s, prev_c, prev_m, ratio = _fmt(old), "", "", ""
         if old and "error" not in old:
             prev_m = f"{old['peak'] / 2 ** 20:,.0f}"

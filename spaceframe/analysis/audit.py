@@ -15,7 +15,8 @@ from .blocks import project_sparse
 from .equilibrium import (compatibility_matrix, free_dofs, joint_displacement_map,
                           rigid_body_motions, to_joint_displacements)
 from .modes import KINDS, describe_modes, local_basis, mode_context, order_rigid
-from .nullspace import canonical_basis, canonical_split, decide_rank
+from .nullspace import (canonical_basis, canonical_split, decide_rank, stress_basis,
+                        stress_seeds)
 from .oneway import one_way_test
 from .prestress import (declared_prestress_test, prestress_test, prestress_test_sparse,
                         product_forces, product_forces_sparse)
@@ -128,7 +129,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     scale = frame.bending_scale()  # a slender frame is judged with lower thresholds
     try:
         decision = decide_rank(C, joint_of=dofs.joint_of(), self_stress_cap=self_stress_cap,
-                               method=method, scale=scale, tol=tol)
+                               method=method, scale=scale, stress_later=True, tol=tol)
     except InternalError as exc:
         exc.partial = {**known, **exc.partial}
         raise
@@ -163,30 +164,36 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     order += list(range(ni, k))
     modes, info = modes.take(order), tuple(info[i] for i in order)
     inner = modes.take(np.arange(ni))
+    # the states of self-stress, the key-member probes and the product forces projected in
+    # the same solves: the probes, then the seeds of the states (sparse engine), then the rest
+    q = 0 if decision.self_stress is not None else \
+        min(self_stress_cap, decision.self_stress_count)
+    extra = np.hstack([probes(frame.n_members), stress_seeds(frame.n_members, q)])
     if ni > tol.limits.block_prestress:
         # product forces sparse, projected block by block (a one-joint mode's reach only
         # its joint's members, and the block they lie in), not one solve each
         force = product_forces_sparse(frame, inner if inner.sparse else
                                       ModeSet(inner.matrix(), inner.item))
-        pre = prestress_test_sparse(force, project_sparse(C, force, decision.project,
-                                                          decision.threshold, tol=tol), tol=tol)
-        both = decision.project(probes(frame.n_members))
+        projected, both = project_sparse(C, force, decision.project, decision.threshold,
+                                         dense=extra, tol=tol)
+        pre = prestress_test_sparse(force, projected, tol=tol)
     else:
-        # one projection serves the key-member probes and the product-force test
         dense_inner = inner.dense()
         force = product_forces(frame, dense_inner)
-        both = decision.project(np.hstack([probes(frame.n_members), force]))
-        pre = prestress_test(frame, dense_inner, decision.project, projected=both[:, 2:],
+        both = decision.project(np.hstack([extra, force]))
+        pre = prestress_test(frame, dense_inner, decision.project, projected=both[:, 2 + q:],
                              tol=tol, forces=force)
         pre = type(pre)(pre.orders, ModeSet(pre.prestress, (frame.n_members,)), pre.stable,
                         pre.certificate)
+    states = decision.self_stress if decision.self_stress is not None else \
+        stress_basis(both[:, 2:2 + q])
     declared = declared_prestress_test(frame, C, dofs, inner,
                                        rigid_body_modes=rigid.shape[1], tol=tol)
     one_way = one_way_test(frame, C, dofs, mechanisms=k, scale=scale, tol=tol,
                            prestress=declared.forces if declared and declared.holds else None)
     key = key_members(frame.n_members, decision.self_stress_count, decision.project,
                       projected=both[:, :2], tol=tol)
-    stress = canonical_basis(decision.self_stress, tol=tol)[:, :self_stress_cap].T
+    stress = canonical_basis(states, tol=tol)[:, :self_stress_cap].T
     q = stress.shape[0]
     ea = frame.member_properties.get("EA")
     if soft is None:  # a second factorisation: by default for frames up to a size

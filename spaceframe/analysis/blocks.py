@@ -31,7 +31,7 @@ from ..tolerances import DEFAULT, Tolerances
 
 __all__ = ["member_blocks", "project_sparse"]
 
-_BATCH = 256   # columns per call of the whole frame's projector: bounds the dense (m, batch)
+_BATCH = 256   # columns per call of a projector that names no block of its own
 
 
 def member_blocks(C: sp.spmatrix) -> tuple[np.ndarray, np.ndarray]:
@@ -63,7 +63,7 @@ def member_blocks(C: sp.spmatrix) -> tuple[np.ndarray, np.ndarray]:
 
 
 def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
-                   tol: Tolerances = DEFAULT) -> sp.csc_matrix:
+                   dense: np.ndarray | None = None, tol: Tolerances = DEFAULT):
     """Orthogonal projection of sparse member force vectors onto the states of self-stress.
 
     Parameters
@@ -79,24 +79,29 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
     threshold : float
         Singular values of ``C`` at or below it are zero (the engine's
         decision, ``tol.rank * s_max``).
+    dense : (m, e) float, optional, keyword-only
+        Further member force vectors, projected by ``project`` in the same
+        calls as the columns that need it (the solves gain from more columns).
     tol : Tolerances, keyword-only
         A column whose members lie in one block with ``members x coordinates
         <= tol.limits.dense_engine`` is projected by that block's SVD (blocks of
-        one shape in one batched call); the others by ``project``, ``_BATCH``
-        columns at a time, keeping entries ``|t_e| > tol.sparse_drop *
+        one shape in one batched call); the others by ``project``, its ``block``
+        (else ``_BATCH``) columns at a time, keeping entries ``|t_e| > tol.sparse_drop *
         max |t|``.
 
     Returns
     -------
     (m, k) scipy.sparse.csc_matrix
         ``P y`` for each column, ``P`` the projector onto ``null(C.T)``.
+    (m, e) float
+        ``P`` of ``dense``, only when it was given (then a pair is returned).
 
     Notes
     -----
     Exact: ``P`` is block diagonal over :func:`member_blocks`, so the part of
     ``y`` in one block projects within it.  Cost: one SVD per block reached
     (O(b^3) for a block of ``b`` members; identical blocks, as the repeated
-    frames of a roof give, share one) and ``ceil(k_large / _BATCH)`` calls
+    frames of a roof give, share one) and ``ceil(k_large / block)`` calls
     of ``project`` for the ``k_large`` columns that reach a large block.
     """
     C = sp.csr_matrix(C, copy=True)
@@ -158,13 +163,25 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
             Pb = Q @ (Q.T @ Yb) if Q.shape[1] else np.zeros_like(Yb)
             pieces.append((cols, _columns(Pb, Pb != 0, rows=members_of[b], m=m)))
     # the rest: the whole frame's projector, a batch of columns at a time
+    # the rest: the whole frame's projector, a batch of columns at a time, the dense ones first
     rest = np.flatnonzero(~small)
-    for start in range(0, len(rest), _BATCH):
-        cols = rest[start:start + _BATCH]
-        P = project(Y[:, cols].toarray())
-        top = np.abs(P).max(axis=0) if P.size else np.zeros(len(cols))
-        pieces.append((cols, _columns(P, np.abs(P) > tol.sparse_drop * top[None, :], m=m)))
-    return _gather(pieces, m, k)
+    extra = np.zeros((m, 0)) if dense is None else np.asarray(dense, dtype=float)
+    e = extra.shape[1]
+    done = np.empty_like(extra)
+    batch = getattr(project, "block", _BATCH)   # the projector's own block: no larger arrays
+    for start in range(0, e + len(rest), batch):
+        stop = min(start + batch, e + len(rest))
+        ex = np.arange(start, min(stop, e))
+        cols = rest[max(start - e, 0):max(stop - e, 0)]
+        block = Y[:, cols].toarray()
+        P = project(np.hstack([extra[:, ex], block]) if len(ex) else block)
+        done[:, ex] = P[:, :len(ex)]
+        P = P[:, len(ex):]
+        if len(cols):
+            top = np.abs(P).max(axis=0)
+            pieces.append((cols, _columns(P, np.abs(P) > tol.sparse_drop * top[None, :], m=m)))
+    out = _gather(pieces, m, k)
+    return out if dense is None else (out, done)
 
 
 def _columns(P: np.ndarray, keep: np.ndarray, *, m: int, rows=None) -> sp.csc_matrix:

@@ -63,6 +63,7 @@ from ..tolerances import DEFAULT, Tolerances
 from . import pardiso
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
+           "stress_seeds", "stress_basis",
            "canonical_pivots", "canonical_split", "factorise_definite"]
 
 _SEED = 20261201
@@ -94,10 +95,11 @@ class RankDecision:
         orthogonal to ``local_modes``, and with them spans the null space of
         ``C`` (:meth:`all_mechanisms`).  Without local mechanisms, the whole
         null space.
-    self_stress : (m, q) float
+    self_stress : (m, q) float or None
         Orthonormal, independent states of self-stress (in the null space of
         ``C.T``).  The dense engine gives them all; the sparse one at most the
-        cap asked for.
+        cap asked for, or None where the caller asked to project them itself
+        (``decide_rank(stress_later=True)``).
     self_stress_count : int
         ``m - rank``, always exact.
     s_max : float
@@ -206,7 +208,7 @@ class LocalSplit:
 
 def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
                 self_stress_cap: int = 16, method: str = "auto", scale: float | None = None,
-                tol: Tolerances = DEFAULT) -> RankDecision:
+                stress_later: bool = False, tol: Tolerances = DEFAULT) -> RankDecision:
     """Rank of the compatibility matrix and bases of its null spaces.
 
     Parameters
@@ -258,7 +260,7 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
     if split.count == 0:
         if method == "dense":
             return _dense(C, self_stress_cap, tol, rel)
-        return _sparse(C, joint_of, self_stress_cap, tol, rel)
+        return _sparse(C, joint_of, self_stress_cap, tol, rel, later=stress_later)
     # The engine sees C restricted to the complement of the local mechanisms: same rank,
     # same non-zero singular values, same null space of C.T (see local_mechanisms).
     Cr = (C @ split.rest).tocsr()
@@ -267,7 +269,8 @@ def decide_rank(C: sp.spmatrix, *, joint_of: np.ndarray | None = None,
         if method == "dense":
             reduced = _dense(Cr, self_stress_cap, tol, rel)
         else:
-            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, rel, full=(C, joint_of))
+            reduced = _sparse(Cr, split.joint_of, self_stress_cap, tol, rel, full=(C, joint_of),
+                              later=stress_later)
     except InternalError as exc:  # what was known is the whole frame's, not the reduced one's
         if "free_coordinates" in exc.partial:
             exc.partial["free_coordinates"] = n
@@ -470,7 +473,7 @@ def _dense(C, cap, tol, rel) -> RankDecision:
                         project=_DenseProjector(null_t), tolerance=rel)
 
 
-def _sparse(C, joint_of, cap, tol, rel, full=None) -> RankDecision:
+def _sparse(C, joint_of, cap, tol, rel, full=None, later=False) -> RankDecision:
     """The sparse engine on ``C``.
 
     ``full = (C0, joint_of0)``, when given, is the whole frame's matrix of
@@ -512,7 +515,7 @@ def _sparse(C, joint_of, cap, tol, rel, full=None) -> RankDecision:
     project = _Projector(C, Kp, lu, perm, mech, tol)
     q = min(cap, m - rank)
     if q > 0:
-        stress, _ = np.linalg.qr(project(np.random.default_rng(_SEED + 1).standard_normal((m, q))))
+        stress = None if later else stress_basis(project(stress_seeds(m, q)))
     else:
         stress = np.zeros((m, 0))
     return RankDecision(rank=rank, mechanisms=mech, self_stress=stress,
@@ -521,6 +524,16 @@ def _sparse(C, joint_of, cap, tol, rel, full=None) -> RankDecision:
                         smallest_nonzero=smallest, method="sparse", project=project,
                         ordering=ordering, shift=tau / lam_max, tolerance=rel,
                         factorisation=lu.path)
+
+
+def stress_seeds(m: int, q: int) -> np.ndarray:
+    """The sparse engine's ``(m, q)`` seeded random member forces whose projections span states."""
+    return np.random.default_rng(_SEED + 1).standard_normal((m, q))
+
+
+def stress_basis(projected: np.ndarray) -> np.ndarray:
+    """Orthonormal states of self-stress from the projections of :func:`stress_seeds`."""
+    return np.linalg.qr(projected)[0]
 
 
 def _largest_eigenvalue(K, tol: Tolerances = DEFAULT) -> float:
@@ -730,7 +743,8 @@ class _Projector:
     residual exceeds ``tol.refine`` of the right-hand side, and by the removal of any
     mechanism component (``C`` maps it to zero anyway).  Columns are taken
     ``_BLOCK`` at a time with SuperLU, and ``PardisoFactor.block`` at a time
-    (a few hundred for 10^5 coordinates) with PARDISO, whose solve gains from more.
+    (a few dozen for 10^5 coordinates) with PARDISO, whose solve gains from more
+    (:attr:`block`).
     """
 
     def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
@@ -749,7 +763,7 @@ class _Projector:
         Y = Y[:, None] if flat else Y
         C, lu, mech = self.C, self.lu, self.mech
         T = np.empty_like(Y)
-        block = getattr(lu, "block", _BLOCK)
+        block = self.block
         for lo in range(0, Y.shape[1], block):
             y = np.ascontiguousarray(Y[:, lo:lo + block])
             rhs = (self._CT @ y)[self.perm]
@@ -760,8 +774,16 @@ class _Projector:
             x = x[self.inv]
             if mech.shape[1]:
                 x -= mech @ (mech.T @ x)
-            T[:, lo:lo + block] = y - C @ x
+            np.subtract(y, C @ x, out=T[:, lo:lo + block])
         return T[:, 0] if flat else T
+
+    @property
+    def block(self) -> int:
+        """Columns per solve: ``_BLOCK`` with SuperLU; with PARDISO its preference
+        (``PardisoFactor.block``), kept to 32 MiB of member forces per block but at
+        least 32 columns (see there)."""
+        fast = getattr(self.lu, "block", None)
+        return _BLOCK if fast is None else int(min(fast, max(32, 2 ** 22 // self.C.shape[0])))
 
     def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.
@@ -839,13 +861,69 @@ def canonical_pivots(B: np.ndarray, *, tol: Tolerances = DEFAULT):
     N, k = B.shape
     if k == 0:
         return B.copy(), np.zeros(0, dtype=np.int64), np.zeros(0)
-    Q, _ = np.linalg.qr(B)
-    _, R, piv = sla.qr(Q.T, mode="economic", pivoting=True)
-    piv = piv[:k]
+    Q = _orthonormal(B)
+    R, piv = _pivoted_rows(Q)
     E = np.linalg.solve(Q[piv, :].T, Q.T).T  # E[piv] = I
     E /= np.max(np.abs(E), axis=0)[None, :]
     E[np.abs(E) < tol.echelon_zero] = 0.0
     return E, piv, np.abs(np.diag(R))[:k]
+
+
+def _orthonormal(B: np.ndarray) -> np.ndarray:
+    """An orthonormal basis of the columns of the full-rank ``B`` (``N x k``).
+
+    A tall, thin, well-conditioned ``B`` (the engine's bases are orthonormal
+    already) by Cholesky QR twice (Fukaya et al. [4]_: orthogonal to rounding
+    when ``cond(B) < 1e8``; here at most ``1e6`` is let through): two passes
+    of BLAS-3 over ``B`` where Householder QR makes ``2 k`` passes.
+    Householder QR otherwise.
+
+    .. [4] T. Fukaya, Y. Nakatsukasa, Y. Yanagisawa and Y. Yamamoto,
+       "CholeskyQR2: a simple and communication-avoiding algorithm for
+       computing a tall-skinny QR factorization on a large-scale parallel
+       system", ScalA 2014, 31-38.
+    """
+    N, k = B.shape
+    if N >= 64 * k:
+        G = B.T @ B
+        w = np.linalg.eigvalsh(G)
+        if w[0] > 1e-12 * w[-1]:
+            Q = B
+            for _ in range(2):
+                L = np.linalg.cholesky(Q.T @ Q)
+                Q = sla.solve_triangular(L, Q.T, lower=True).T
+            return np.ascontiguousarray(Q)
+    return np.linalg.qr(B)[0]
+
+
+def _pivoted_rows(Q: np.ndarray):
+    """The column-pivoted QR of ``Q.T`` (LAPACK's ``geqp3``): its ``R`` and ``k`` pivots.
+
+    The pivot of each step is the row of ``Q`` whose part orthogonal to the
+    rows already taken is longest, and that length is ``|R_ii|``, which does
+    not increase from step to step.  A row of norm ``t`` can never beat a
+    length above ``t``, so the decomposition is run on the longest rows only
+    (in their order in ``Q``, so that ties go to the same row): when ``|R_kk|``
+    exceeds every norm left out, each step's choice among all rows was
+    among them, and the pivots and ``R`` are those of the whole; otherwise
+    more rows are taken.  Each column's arithmetic in ``geqp3`` is its own, so
+    the result is that of the whole decomposition (to the BLAS's rounding).
+    """
+    N, k = Q.shape
+    norms = np.einsum("ij,ij->i", Q, Q)
+    take = 64 * k
+    while True:
+        if take >= N:
+            rows = np.arange(N)
+            cut = -np.inf
+        else:
+            part = np.argpartition(-norms, take)
+            rows = np.sort(part[:take])
+            cut = float(np.sqrt(norms[part[take:]].max()))
+        _, R, piv = sla.qr(Q[rows].T, mode="economic", pivoting=True)
+        if len(rows) == N or abs(R[k - 1, k - 1]) > cut:
+            return R, rows[piv[:k]]
+        take *= 4
 
 
 def canonical_split(local: sp.csc_matrix, rest: np.ndarray, joint_of: np.ndarray, *,

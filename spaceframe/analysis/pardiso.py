@@ -113,8 +113,12 @@ class PardisoFactor:
         ``"PARDISO"``.
     block : int
         Right-hand sides worth giving one solve: its cost per column falls
-        with more (the factor is read once per call) until the block's own
-        memory, ``8 n block`` bytes, reaches 128 MiB; between 16 and 256.
+        with more (the factor is read once per call), little past a few dozen
+        columns, while a block of more than about 32 MiB costs fresh pages of
+        memory at every step (the C library returns such arrays to the system
+        when freed, and touching new pages is slow on a virtual machine): so
+        ``8 n block`` bytes up to 32 MiB, between 32 and 256 columns (a
+        block of 32 holds an audit's states and probes, 18 columns, at once).
 
     Raises
     ------
@@ -157,7 +161,7 @@ class PardisoFactor:
         self._call(11)
         self._alive = True
         self._call(22)
-        self.block = int(max(16, min(256, 2 ** 24 // max(n, 1))))
+        self.block = int(max(32, min(256, 2 ** 22 // max(n, 1))))
         self.negative = int(iparm[22])
         self.positive = int(iparm[21])
         self.perturbed = int(iparm[13])
@@ -165,7 +169,7 @@ class PardisoFactor:
     def _call(self, phase: int, b: np.ndarray | None = None) -> np.ndarray | None:
         nrhs = 1 if b is None else b.shape[1]
         b = np.zeros((self.n, 1)) if b is None else b
-        x = np.zeros_like(b, order="F")
+        x = np.empty_like(b, order="F")    # written by the solve (phase 33), unread otherwise
         err = ctypes.c_int32(0)
         i32 = (lambda v: ctypes.byref(ctypes.c_int32(v)))
         self._fn(_ptr(self._pt), i32(1), i32(1), i32(self._mtype), i32(phase), i32(self.n),

@@ -261,16 +261,28 @@ def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
     """
     p, P = sp.csc_matrix(p), sp.csc_matrix(P)
     m, k = P.shape
-    norm_p = np.sqrt(np.asarray(p.multiply(p).sum(axis=0)).ravel())
-    norm_P = np.sqrt(np.asarray(P.multiply(P).sum(axis=0)).ravel())
-    top = np.asarray(abs(P).max(axis=0).toarray()).ravel() if k else np.zeros(0)
+    norm_p = np.sqrt(_column_reduce(np.add, p.data ** 2, p.indptr))
+    norm_P = np.sqrt(_column_reduce(np.add, P.data ** 2, P.indptr))
+    top = _column_reduce(np.maximum, np.abs(P.data), P.indptr)
     stiff = norm_P > tol.stiffening * np.maximum(norm_p, 1e-300)
     orders = tuple(STIFFENED if s else NOT_STIFFENED for s in stiff)
     scale = np.where(stiff & (top > 0), 1.0 / np.where(top > 0, top, 1.0), 0.0)
-    rows = sp.csr_matrix(P.T).multiply(scale[:, None]).tocsr()
-    rows.eliminate_zeros()
+    # P's columns read as the rows of P.T (CSC as CSR, no conversion), each scaled
+    rows = sp.csr_matrix((P.data * np.repeat(scale, np.diff(P.indptr)), P.indices, P.indptr),
+                         shape=(k, m))
+    if not stiff.all():
+        rows.eliminate_zeros()
     stable = False if not stiff.all() else None
     return PrestressResult(orders, ModeSet(rows, (m,)), stable if k else None, None)
+
+
+def _column_reduce(ufunc, values: np.ndarray, indptr: np.ndarray) -> np.ndarray:
+    """``ufunc`` over each CSC column's stored values, 0 for an empty column: O(nnz)."""
+    out = np.zeros(len(indptr) - 1)
+    full = np.flatnonzero(np.diff(indptr) > 0)
+    if len(full):
+        out[full] = ufunc.reduceat(values[:indptr[-1]], indptr[full])
+    return out
 
 
 def prestress_test(frame: Frame, modes: np.ndarray, project, *,

@@ -90,3 +90,38 @@ def test_soft_ratio_has_no_unit(write):
                                      supports={0: "pin", 1: "pin", 2: "pin"},
                                      member_properties={"EA": f.member_properties["EA"] * 7e3})
     assert audit(g).soft_ratios == pytest.approx(audit(f).soft_ratios, rel=1e-9)
+
+
+def test_soft_modes_on_request_above_the_default_size(write):
+    """A default audit looks for soft modes up to ``Limits.soft_auto`` free coordinates;
+    above, it says it did not and why, and ``soft=True`` finds the same mode as a default
+    audit of a small frame (the weak leg above)."""
+    from dataclasses import replace
+
+    from spaceframe.tolerances import DEFAULT
+    from spaceframe.views.text import render_audit
+
+    frame = tripod(write, '[properties.members.EA]\ndefault = 1.0\nCD = 1e-6\n')
+    small = replace(DEFAULT, limits=replace(DEFAULT.limits, soft_auto=2))
+    looked = audit(frame)
+    skipped = audit(frame, tol=small)
+    assert looked.soft_skipped is None and len(looked.soft_info) == 1
+    assert skipped.soft_info == () and "free coordinates, more than the 2 a default audit" \
+        in skipped.soft_skipped
+    assert "Soft modes: not looked for (3 free coordinates" in render_audit(skipped)
+    assert "--soft looks for them" in render_audit(skipped)
+    assert skipped.to_dict()["soft_modes_skipped"] == skipped.soft_skipped
+    assert looked.to_dict()["soft_modes_skipped"] is None
+    asked = audit(frame, soft=True, tol=small)
+    assert asked.soft_skipped is None
+    assert asked.soft_ratios == pytest.approx(looked.soft_ratios, rel=1e-12)
+    off = audit(frame, soft=False)
+    assert off.soft_skipped == "not asked for" and "Soft modes" not in render_audit(off)
+
+
+def test_soft_options_of_the_audit_command(write):
+    path = write("tripod.toml", TRIPOD + '[properties.members.EA]\ndefault = 1.0\nCD = 1e-6\n')
+    on = CliRunner().invoke(main, ["audit", str(path), "--soft"])
+    off = CliRunner().invoke(main, ["audit", str(path), "--no-soft"])
+    assert on.exit_code == off.exit_code == 0
+    assert "Soft modes (held" in on.output and "Soft modes" not in off.output

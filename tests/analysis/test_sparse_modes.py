@@ -144,6 +144,11 @@ def test_blocks_of_a_roof_and_projection_against_null_space():
     P = project_sparse(C, sp.csc_matrix(Y), decision.project, decision.threshold).toarray()
     assert np.max(np.abs(P - Q @ (Q.T @ Y))) < 1e-8
     assert np.all(P[member != member[0], 0] == 0)          # stays inside its block
+    # the columns in another order (global first, an empty one between): the same columns
+    order = [1, 2, 0]
+    P2 = project_sparse(C, sp.csc_matrix(Y[:, order]), decision.project,
+                        decision.threshold).toarray()
+    assert np.array_equal(P2, P[:, order])
 
 
 def test_product_forces_sparse_equal_dense():
