@@ -254,8 +254,9 @@ class Tolerances:
         ``1e-2``: the threshold ``rank * s_max`` moves by half a percent at most.
     refine : float
         The sparse engine's projection onto the states of self-stress takes
-        one step of iterative refinement when the solve of ``K x = C.T y``
-        leaves ``||C.T y - K x|| > refine * ||C.T y||``.  Default ``1e-10``.
+        one step of iterative refinement for each column ``y`` whose solve of
+        ``K x = C.T y`` leaves ``||C.T y - K x|| > refine * ||C.T y||``.
+        Default ``1e-10``.
     echelon_zero : float
         In a canonical basis (each vector's largest entry 1), an entry with
         ``|e| < echelon_zero`` is set to exactly 0, so that rounding noise

@@ -61,6 +61,7 @@ import scipy.sparse.linalg as spla
 from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 from . import pardiso
+from .pardiso import _UNDER_32_MIB
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
            "stress_seeds", "stress_basis",
@@ -739,8 +740,8 @@ class _Projector:
     ``t = y - C x`` with ``K x = C.T y``: the residual of the least-squares fit
     of ``y`` by member elongations is orthogonal to every column of ``C``.
     ``C.T y`` lies in the range of ``K``; the solve with the factorisation of
-    ``K - tau I`` is followed by a step of iterative refinement where the
-    residual exceeds ``tol.refine`` of the right-hand side, and by the removal of any
+    ``K - tau I`` is followed by a step of iterative refinement for each column
+    whose residual exceeds ``tol.refine`` of its right-hand side, and by the removal of any
     mechanism component (``C`` maps it to zero anyway).  Columns are taken
     ``_BLOCK`` at a time with SuperLU, and ``PardisoFactor.block`` at a time
     (a few dozen for 10^5 coordinates) with PARDISO, whose solve gains from more
@@ -769,8 +770,12 @@ class _Projector:
             rhs = (self._CT @ y)[self.perm]
             x = np.ascontiguousarray(lu.solve(rhs))
             r = rhs - self._K @ x
-            if np.linalg.norm(r) > self.refine * np.linalg.norm(rhs):
+            # a step of refinement for each column whose residual asks for one
+            bad = np.linalg.norm(r, axis=0) > self.refine * np.linalg.norm(rhs, axis=0)
+            if bad.all():
                 x += lu.solve(r)
+            elif bad.any():
+                x[:, bad] += lu.solve(r[:, bad])
             x = x[self.inv]
             if mech.shape[1]:
                 x -= mech @ (mech.T @ x)
@@ -783,7 +788,7 @@ class _Projector:
         (``PardisoFactor.block``), kept to 32 MiB of member forces per block but at
         least 32 columns (see there)."""
         fast = getattr(self.lu, "block", None)
-        return _BLOCK if fast is None else int(min(fast, max(32, 2 ** 22 // self.C.shape[0])))
+        return _BLOCK if fast is None else int(min(fast, max(32, _UNDER_32_MIB // self.C.shape[0])))
 
     def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.
