@@ -176,7 +176,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
                                       ModeSet(inner.matrix(), inner.item))
         projected, both = project_sparse(C, force, decision.project, decision.threshold,
                                          dense=extra, tol=tol)
-        pre = prestress_test_sparse(force, projected, tol=tol)
+        pre = prestress_test_sparse(force, projected, overwrite_P=True, tol=tol)
     else:
         dense_inner = inner.dense()
         force = product_forces(frame, dense_inner)

@@ -32,6 +32,7 @@ from ..tolerances import DEFAULT, Tolerances
 __all__ = ["member_blocks", "project_sparse"]
 
 _BATCH = 256   # columns per call of a projector that names no block of its own
+_ROOM = 2 ** 24  # entries first set aside for the projections of the whole frame's columns
 
 
 def member_blocks(C: sp.spmatrix) -> tuple[np.ndarray, np.ndarray]:
@@ -169,19 +170,46 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
     e = extra.shape[1]
     done = np.empty_like(extra)
     batch = getattr(project, "block", _BATCH)   # the projector's own block: no larger arrays
+    # the kept entries written straight into arrays for all of them, grown by doubling
+    # (at most m per column), so that they are not copied again when the batches are joined
+    room = min(m * len(rest), _ROOM)
+    data = np.empty(room)
+    index = np.empty(room, dtype=np.int32 if m < 2 ** 31 else np.int64)
+    counts = np.zeros(len(rest), dtype=np.int64)
+    filled = 0
     for start in range(0, e + len(rest), batch):
         stop = min(start + batch, e + len(rest))
         ex = np.arange(start, min(stop, e))
-        cols = rest[max(start - e, 0):max(stop - e, 0)]
-        block = Y[:, cols].toarray()
+        at = slice(max(start - e, 0), max(stop - e, 0))
+        block = Y[:, rest[at]].toarray()
         P = project(np.hstack([extra[:, ex], block]) if len(ex) else block)
         done[:, ex] = P[:, :len(ex)]
         P = P[:, len(ex):]
-        if len(cols):
-            top = np.abs(P).max(axis=0)
-            pieces.append((cols, _columns(P, np.abs(P) > tol.sparse_drop * top[None, :], m=m)))
+        if P.shape[1]:
+            keep = (np.abs(P) > tol.sparse_drop * np.abs(P).max(axis=0)[None, :]).T
+            c, r = np.nonzero(keep)                  # column by column, rows ascending
+            n = len(r)
+            if filled + n > len(data):
+                room = max(2 * len(data), filled + n)
+                data, index = _grown(data, room), _grown(index, room)
+            data[filled:filled + n] = P.T[keep]
+            index[filled:filled + n] = r
+            counts[at] = np.bincount(c, minlength=P.shape[1])
+            filled += n
+    if len(rest):
+        indptr = np.zeros(len(rest) + 1, dtype=np.int64)
+        np.cumsum(counts, out=indptr[1:])
+        pieces.append((rest, sp.csc_matrix((data[:filled], index[:filled], indptr),
+                                           shape=(m, len(rest)))))
     out = _gather(pieces, m, k)
     return out if dense is None else (out, done)
+
+
+def _grown(a: np.ndarray, size: int) -> np.ndarray:
+    """``a`` in a larger array of ``size`` entries (the rest unset)."""
+    out = np.empty(size, dtype=a.dtype)
+    out[:len(a)] = a
+    return out
 
 
 def _columns(P: np.ndarray, keep: np.ndarray, *, m: int, rows=None) -> sp.csc_matrix:

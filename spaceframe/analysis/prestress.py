@@ -232,7 +232,7 @@ def product_forces_sparse(frame: Frame, modes: ModeSet) -> sp.csc_matrix:
     return sp.csc_matrix(sp.csr_matrix(p).multiply(1.0 / frame.lengths()[None, :]).T)
 
 
-def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
+def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *, overwrite_P: bool = False,
                           tol: Tolerances = DEFAULT) -> PrestressResult:
     """:func:`prestress_test` on product forces and their projections held sparse.
 
@@ -243,6 +243,9 @@ def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
     P : (m, k) sparse
         Their projections onto the states of self-stress
         (:func:`spaceframe.analysis.blocks.project_sparse`).
+    overwrite_P : bool, keyword-only
+        ``P`` (CSC) may be scaled in place and its arrays become those of the
+        states returned: no second copy of millions of entries.  Default False.
     tol : Tolerances, keyword-only
         ``tol.stiffening`` as in :func:`prestress_test`.  The search for one
         state for all modes is not made here (``prestress_stable`` is False
@@ -259,29 +262,47 @@ def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *,
     -----
     Cost O(nnz(p) + nnz(P)); no dense ``(m, k)`` array.
     """
-    p, P = sp.csc_matrix(p), sp.csc_matrix(P)
+    p = sp.csc_matrix(p)
+    P = P if overwrite_P and sp.issparse(P) and P.format == "csc" else sp.csc_matrix(P, copy=True)
     m, k = P.shape
-    norm_p = np.sqrt(_column_reduce(np.add, p.data ** 2, p.indptr))
-    norm_P = np.sqrt(_column_reduce(np.add, P.data ** 2, P.indptr))
-    top = _column_reduce(np.maximum, np.abs(P.data), P.indptr)
+    norm_p = np.sqrt(_column_reduce(np.add, p.data, p.indptr, square=True))
+    norm_P = np.sqrt(_column_reduce(np.add, P.data, P.indptr, square=True))
+    top = _column_reduce(np.maximum, P.data, P.indptr, absolute=True)
     stiff = norm_P > tol.stiffening * np.maximum(norm_p, 1e-300)
     orders = tuple(STIFFENED if s else NOT_STIFFENED for s in stiff)
     scale = np.where(stiff & (top > 0), 1.0 / np.where(top > 0, top, 1.0), 0.0)
-    # P's columns read as the rows of P.T (CSC as CSR, no conversion), each scaled
-    rows = sp.csr_matrix((P.data * np.repeat(scale, np.diff(P.indptr)), P.indices, P.indptr),
-                         shape=(k, m))
+    for lo, hi in _column_chunks(P.indptr):       # each column scaled, a chunk at a time
+        P.data[P.indptr[lo]:P.indptr[hi]] *= np.repeat(scale[lo:hi], np.diff(P.indptr[lo:hi + 1]))
+    # P's columns read as the rows of P.T (CSC as CSR, no conversion)
+    rows = sp.csr_matrix((P.data, P.indices, P.indptr), shape=(k, m))
     if not stiff.all():
         rows.eliminate_zeros()
     stable = False if not stiff.all() else None
     return PrestressResult(orders, ModeSet(rows, (m,)), stable if k else None, None)
 
+def _column_chunks(indptr: np.ndarray, entries: int = 2 ** 20):
+    """Ranges ``(lo, hi)`` of CSC columns holding about ``entries`` stored values each."""
+    k = len(indptr) - 1
+    lo = 0
+    while lo < k:
+        hi = int(np.searchsorted(indptr, indptr[lo] + entries, side="right")) - 1
+        hi = min(max(hi, lo + 1), k)
+        yield lo, hi
+        lo = hi
 
-def _column_reduce(ufunc, values: np.ndarray, indptr: np.ndarray) -> np.ndarray:
-    """``ufunc`` over each CSC column's stored values, 0 for an empty column: O(nnz)."""
+
+def _column_reduce(ufunc, values: np.ndarray, indptr: np.ndarray, *, square: bool = False,
+                   absolute: bool = False) -> np.ndarray:
+    """``ufunc`` over each CSC column's stored values (squared, or their sizes), 0 for an
+    empty column: O(nnz), a chunk of columns at a time (no temporary the size of ``values``)."""
     out = np.zeros(len(indptr) - 1)
-    full = np.flatnonzero(np.diff(indptr) > 0)
-    if len(full):
-        out[full] = ufunc.reduceat(values[:indptr[-1]], indptr[full])
+    for lo, hi in _column_chunks(indptr):
+        seg = values[indptr[lo]:indptr[hi]]
+        seg = seg * seg if square else np.abs(seg) if absolute else seg
+        start = indptr[lo:hi] - indptr[lo]
+        full = np.flatnonzero(np.diff(indptr[lo:hi + 1]) > 0)
+        if len(full):
+            out[lo + full] = ufunc.reduceat(seg, start[full])
     return out
 
 

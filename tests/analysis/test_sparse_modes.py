@@ -151,6 +151,24 @@ def test_blocks_of_a_roof_and_projection_against_null_space():
     assert np.array_equal(P2, P[:, order])
 
 
+def test_projections_the_same_when_their_arrays_grow(monkeypatch):
+    """The whole frame's projections are written into arrays grown by doubling: with room
+    for ten entries at first, the same matrix as with room for all."""
+    import spaceframe.analysis.blocks as blocks
+
+    f = plane_truss_roof(4, 3)
+    dofs = free_dofs(f)
+    C = compatibility_matrix(f, dofs)
+    Y = np.random.default_rng(11).standard_normal((f.n_members, 5))
+    decision = spaceframe.analysis.nullspace.decide_rank(C, joint_of=dofs.joint_of())
+    whole = project_sparse(C, sp.csc_matrix(Y), decision.project, decision.threshold)
+    monkeypatch.setattr(blocks, "_ROOM", 10)
+    grown = project_sparse(C, sp.csc_matrix(Y), decision.project, decision.threshold)
+    assert (whole != grown).nnz == 0 and whole.nnz > 10
+    Q = sla.null_space(C.toarray().T)                      # scipy's null space as reference
+    assert np.max(np.abs(grown.toarray() - Q @ (Q.T @ Y))) < 1e-8
+
+
 def test_product_forces_sparse_equal_dense():
     f, a, b = _roof_pair(4, 4)
     inner = b.modes.take(np.arange(b.internal_mechanisms))
