@@ -166,9 +166,9 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     inner = modes.take(np.arange(ni))
     # the states of self-stress, the key-member probes and the product forces projected in
     # the same solves: the probes, then the seeds of the states (sparse engine), then the rest
-    q = 0 if decision.self_stress is not None else \
+    seeds = 0 if decision.self_stress is not None else \
         min(self_stress_cap, decision.self_stress_count)
-    extra = np.hstack([probes(frame.n_members), stress_seeds(frame.n_members, q)])
+    extra = np.hstack([probes(frame.n_members), stress_seeds(frame.n_members, seeds)])
     if ni > tol.limits.block_prestress:
         # product forces sparse, projected block by block (a one-joint mode's reach only
         # its joint's members, and the block they lie in), not one solve each
@@ -181,12 +181,12 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         dense_inner = inner.dense()
         force = product_forces(frame, dense_inner)
         both = decision.project(np.hstack([extra, force]))
-        pre = prestress_test(frame, dense_inner, decision.project, projected=both[:, 2 + q:],
+        pre = prestress_test(frame, dense_inner, decision.project, projected=both[:, 2 + seeds:],
                              tol=tol, forces=force)
         pre = type(pre)(pre.orders, ModeSet(pre.prestress, (frame.n_members,)), pre.stable,
                         pre.certificate)
     states = decision.self_stress if decision.self_stress is not None else \
-        stress_basis(both[:, 2:2 + q])
+        stress_basis(both[:, 2:2 + seeds])
     declared = declared_prestress_test(frame, C, dofs, inner,
                                        rigid_body_modes=rigid.shape[1], tol=tol)
     one_way = one_way_test(frame, C, dofs, mechanisms=k, scale=scale, tol=tol,

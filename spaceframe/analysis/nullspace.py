@@ -61,7 +61,7 @@ import scipy.sparse.linalg as spla
 from ..errors import InternalError, SpaceframeError
 from ..tolerances import DEFAULT, Tolerances
 from . import pardiso
-from .pardiso import _UNDER_32_MIB
+from .pardiso import BLOCK_ENTRIES
 
 __all__ = ["RankDecision", "LocalSplit", "decide_rank", "local_mechanisms", "canonical_basis",
            "stress_seeds", "stress_basis",
@@ -788,7 +788,7 @@ class _Projector:
         (``PardisoFactor.block``), kept to 32 MiB of member forces per block but at
         least 32 columns (see there)."""
         fast = getattr(self.lu, "block", None)
-        return _BLOCK if fast is None else int(min(fast, max(32, _UNDER_32_MIB // self.C.shape[0])))
+        return _BLOCK if fast is None else int(min(fast, max(32, BLOCK_ENTRIES // self.C.shape[0])))
 
     def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.

@@ -43,13 +43,13 @@ import scipy.sparse as sp
 from .._optional import require
 from ..errors import MissingExtraError
 
-__all__ = ["PardisoFactor", "load"]
+__all__ = ["BLOCK_ENTRIES", "PardisoFactor", "load"]
 
 _LIB = []  # the loaded pardiso function, once (an empty list: not tried yet)
 _INDEFINITE, _DEFINITE = -2, 2
 # float64 entries of a block just under 32 MiB: larger arrays are mapped afresh at every
 # allocation by the C library (its largest reuse threshold), their new pages slow to touch
-_UNDER_32_MIB = 31 * 2 ** 17
+BLOCK_ENTRIES = 31 * 2 ** 17
 
 
 def load():
@@ -164,7 +164,7 @@ class PardisoFactor:
         self._call(11)
         self._alive = True
         self._call(22)
-        self.block = int(max(32, min(256, _UNDER_32_MIB // max(n, 1))))
+        self.block = int(max(32, min(256, BLOCK_ENTRIES // max(n, 1))))
         self.negative = int(iparm[22])
         self.positive = int(iparm[21])
         self.perturbed = int(iparm[13])
