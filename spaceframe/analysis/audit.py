@@ -26,6 +26,9 @@ from .threads import dense_steps_single_threaded
 
 __all__ = ["audit"]
 
+# how the library says more states can be had; the command line names its option instead
+MORE_STATES = "a larger self_stress_cap computes more"
+
 
 @dense_steps_single_threaded
 def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
@@ -244,7 +247,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
     gap, warnings = _gap(decision, scale, tol)
     if q < s and self_stress_cap:
         warnings.append(f"{s} states of self-stress: the first {q} are listed "
-                        f"(raise the cap to see more)")
+                        f"({MORE_STATES})")
     return AuditResult(
         frame=frame, dimension=d, joints=joints, members=members, restraints=restraints,
         maxwell=members + restraints - d * joints, rank=decision.rank, mechanisms=mechanisms,

@@ -98,6 +98,9 @@ e = "y"
     doc = json.loads(run("audit", str(path), "--json", "--self-stress", "1").stdout)
     assert doc["self_stress_states"] == 2
     assert len(doc["self_stress_modes"]) == 1
+    text = run("audit", str(path), "--self-stress", "1").stdout
+    assert "2 states of self-stress: the first 1 are listed (--self-stress N or all computes " \
+           "more)" in text
     assert doc["self_stress_modes_complete"] is False
     full = json.loads(run("audit", str(path), "--json", "--self-stress", "all").stdout)
     assert len(full["self_stress_modes"]) == 2 and full["self_stress_modes_complete"]
