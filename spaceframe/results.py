@@ -14,7 +14,12 @@ from .model import Frame
 from .modeset import ModeSet
 from .tolerances import DISPLAY
 
-__all__ = ["AuditResult", "RankGap", "CAUTION"]
+__all__ = ["AuditResult", "RankGap", "CAUTION", "MORE_STATES", "SOFT_NOT_ASKED"]
+
+#: ``AuditResult.soft_skipped`` when the caller switched the soft-mode search off
+SOFT_NOT_ASKED = "not asked for"
+#: how a warning says more states of self-stress can be had (a view may name its option)
+MORE_STATES = "a larger self_stress_cap computes more"
 
 #: The caution every verdict carries.
 CAUTION = ("This is a check of an idealised pin-jointed model only: it does not size members or "

@@ -9,7 +9,7 @@ from ..errors import InternalError
 from ..model import Frame
 from ..modeset import ModeSet
 from ..naming import natural_key
-from ..results import AuditResult, RankGap
+from ..results import MORE_STATES, SOFT_NOT_ASKED, AuditResult, RankGap
 from ..tolerances import DEFAULT, DISPLAY, Tolerances
 from .blocks import project_sparse
 from .equilibrium import (compatibility_matrix, free_dofs, joint_displacement_map,
@@ -25,9 +25,6 @@ from .soft import soft_modes, typical_stiffness
 from .threads import dense_steps_single_threaded
 
 __all__ = ["audit"]
-
-# how the library says more states can be had; the command line names its option instead
-MORE_STATES = "a larger self_stress_cap computes more"
 
 
 @dense_steps_single_threaded
@@ -204,7 +201,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
         soft_skipped = None if soft else (f"{C.shape[1]:,} free coordinates, more than the "
                                           f"{tol.limits.soft_auto:,} a default audit looks at")
     else:
-        soft_skipped = None if soft else "not asked for"
+        soft_skipped = None if soft else SOFT_NOT_ASKED
     if not soft:
         sm = None
     elif split:

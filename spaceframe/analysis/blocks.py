@@ -163,7 +163,6 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
             Yb[row_pos[y_row[lo:hi]], np.ravel(local)] = y_val[lo:hi]
             Pb = Q @ (Q.T @ Yb) if Q.shape[1] else np.zeros_like(Yb)
             pieces.append((cols, _columns(Pb, Pb != 0, rows=members_of[b], m=m)))
-    # the rest: the whole frame's projector, a batch of columns at a time
     # the rest: the whole frame's projector, a batch of columns at a time, the dense ones first
     rest = np.flatnonzero(~small)
     extra = np.zeros((m, 0)) if dense is None else np.asarray(dense, dtype=float)
@@ -186,15 +185,14 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
         done[:, ex] = P[:, :len(ex)]
         P = P[:, len(ex):]
         if P.shape[1]:
-            keep = (np.abs(P) > tol.sparse_drop * np.abs(P).max(axis=0)[None, :]).T
-            c, r = np.nonzero(keep)                  # column by column, rows ascending
-            n = len(r)
+            part = _columns(P, np.abs(P) > tol.sparse_drop * np.abs(P).max(axis=0)[None, :], m=m)
+            n = part.nnz
             if filled + n > len(data):
                 room = max(2 * len(data), filled + n)
                 data, index = _grown(data, room), _grown(index, room)
-            data[filled:filled + n] = P.T[keep]
-            index[filled:filled + n] = r
-            counts[at] = np.bincount(c, minlength=P.shape[1])
+            data[filled:filled + n] = part.data
+            index[filled:filled + n] = part.indices
+            counts[at] = np.diff(part.indptr)
             filled += n
     if len(rest):
         indptr = np.zeros(len(rest) + 1, dtype=np.int64)

@@ -749,7 +749,7 @@ class _Projector:
     """
 
     def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
-        self.C, self.Kp, self.lu, self.perm, self.mech = C, Kp, lu, perm, mech
+        self.C, self.lu, self.perm, self.mech = C, lu, perm, mech
         self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
         self.inv = np.empty_like(perm)
         self.inv[perm] = np.arange(len(perm))
@@ -893,10 +893,8 @@ def _orthonormal(B: np.ndarray) -> np.ndarray:
         G = B.T @ B
         w = np.linalg.eigvalsh(G)
         if w[0] > 1e-12 * w[-1]:
-            Q = B
-            for _ in range(2):
-                L = np.linalg.cholesky(Q.T @ Q)
-                Q = sla.solve_triangular(L, Q.T, lower=True).T
+            Q = sla.solve_triangular(np.linalg.cholesky(G), B.T, lower=True).T
+            Q = sla.solve_triangular(np.linalg.cholesky(Q.T @ Q), Q.T, lower=True).T
             return np.ascontiguousarray(Q)
     return np.linalg.qr(B)[0]
 

@@ -280,6 +280,7 @@ def prestress_test_sparse(p: sp.spmatrix, P: sp.spmatrix, *, overwrite_P: bool =
     stable = False if not stiff.all() else None
     return PrestressResult(orders, ModeSet(rows, (m,)), stable if k else None, None)
 
+
 def _column_chunks(indptr: np.ndarray, entries: int = 2 ** 20):
     """Ranges ``(lo, hi)`` of CSC columns holding about ``entries`` stored values each."""
     k = len(indptr) - 1

@@ -51,7 +51,6 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sof
     def job():
         from .. import audit, load
         from ..errors import SpaceframeError
-        from ..analysis.audit import MORE_STATES
         from ..views.text import render_audit
 
         if self_stress == "all":
@@ -92,7 +91,6 @@ def audit_command(model, as_json, self_stress, method, show_all, redundancy, sof
             many = sys.maxsize if show_all else 8
             text = render_audit(result, max_modes=many,
                                 max_entries=sys.maxsize if show_all else 6)
-            text = text.replace(MORE_STATES, "--self-stress N or all computes more")
             if held is not None:
                 from ..views.restraints_text import render_continuous
                 text += render_continuous(held, most=sys.maxsize if show_all else 6)

@@ -8,7 +8,7 @@ import numpy as np
 from ..analysis.prestress import NOT_STIFFENED, STIFFENED
 from ..naming import count as counted
 from ..naming import direction_words, join_words, joint_label, natural_sorted, placed_joints
-from ..results import CAUTION, AuditResult
+from ..results import CAUTION, MORE_STATES, SOFT_NOT_ASKED, AuditResult
 from ..tolerances import DISPLAY
 
 __all__ = ["render_audit", "verdict"]
@@ -156,7 +156,7 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
         for ratio, info in zip(r.soft_ratios, r.soft_info):
             lines.append(f"  - {_pct(ratio)} of the typical stiffness: "
                          f"{info.description}")
-    if r.soft_skipped is not None and r.soft_skipped != "not asked for":
+    if r.soft_skipped not in (None, SOFT_NOT_ASKED):
         lines.append("")
         lines.append(f"Soft modes: not looked for ({r.soft_skipped}); --soft looks for them, "
                      f"at the cost of a second factorisation.")
@@ -164,7 +164,9 @@ def render_audit(r: AuditResult, *, max_modes: int = 8, max_entries: int = 6) ->
     lines.extend(_robustness(r, max_entries))
     if r.warnings:
         lines.append("")
-        lines.extend(f"Note: {w}" for w in r.warnings)
+        # the library's words for more states, in this view's (its options') terms
+        lines.extend(f"Note: {w}".replace(MORE_STATES, "--self-stress N or all computes more")
+                     for w in r.warnings)
     lines.append("")
     lines.append("Verdict: " + verdict(r))
     lines.append("Caution: " + CAUTION)
