@@ -169,8 +169,10 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
     e = extra.shape[1]
     done = np.empty_like(extra)
     batch = getattr(project, "block", _BATCH)   # the projector's own block: no larger arrays
-    # the kept entries written straight into arrays for all of them, grown by doubling
-    # (at most m per column), so that they are not copied again when the batches are joined
+    # one array for every batch's projections (fresh memory is slow to touch), and the kept
+    # entries written straight into arrays for all of them, grown by doubling (at most m
+    # per column), so that they are not copied again when the batches are joined
+    work = np.empty((m, min(batch, e + len(rest))), order="F")
     room = min(m * len(rest), _ROOM)
     data = np.empty(room)
     index = np.empty(room, dtype=np.int32 if m < 2 ** 31 else np.int64)
@@ -179,20 +181,21 @@ def project_sparse(C: sp.spmatrix, Y: sp.spmatrix, project, threshold: float, *,
     for start in range(0, e + len(rest), batch):
         stop = min(start + batch, e + len(rest))
         ex = np.arange(start, min(stop, e))
-        at = slice(max(start - e, 0), max(stop - e, 0))
-        block = Y[:, rest[at]].toarray()
-        P = project(np.hstack([extra[:, ex], block]) if len(ex) else block)
+        at = np.arange(max(start - e, 0), max(stop - e, 0))
+        block = Y[:, rest[at]]          # sparse: the projector takes it so (C.T y sparse too)
+        P = project(np.hstack([extra[:, ex], block.toarray()]) if len(ex) else block,
+                    out=work[:, :stop - start])
         done[:, ex] = P[:, :len(ex)]
-        P = P[:, len(ex):]
-        if P.shape[1]:
-            part = _columns(P, np.abs(P) > tol.sparse_drop * np.abs(P).max(axis=0)[None, :], m=m)
-            n = part.nnz
+        for j, c in zip(range(len(ex), P.shape[1]), at):
+            size = np.abs(P[:, j])
+            kept = np.flatnonzero(size > tol.sparse_drop * size.max(initial=0.0))
+            n = len(kept)
             if filled + n > len(data):
                 room = max(2 * len(data), filled + n)
                 data, index = _grown(data, room), _grown(index, room)
-            data[filled:filled + n] = part.data
-            index[filled:filled + n] = part.indices
-            counts[at] = np.diff(part.indptr)
+            data[filled:filled + n] = P[kept, j]
+            index[filled:filled + n] = kept
+            counts[c] = n
             filled += n
     if len(rest):
         indptr = np.zeros(len(rest) + 1, dtype=np.int64)

@@ -608,8 +608,12 @@ class _SuperLU:
     def negative(self) -> int:
         return int(np.count_nonzero(self.lu.U.diagonal() < 0))
 
-    def solve(self, B):
-        return self.lu.solve(np.asfortranarray(B))
+    def solve(self, B, out=None):
+        X = self.lu.solve(np.asfortranarray(B))
+        if out is None:
+            return X
+        out[...] = X
+        return out
 
 
 def _superlu(A):
@@ -713,8 +717,12 @@ class _EveryMember:
     def __init__(self, m):
         self.m = m
 
-    def __call__(self, Y):
-        return np.array(Y, dtype=float)
+    def __call__(self, Y, out=None):
+        Y = Y.toarray() if sp.issparse(Y) else np.array(Y, dtype=float)
+        if out is None:
+            return Y
+        out[...] = Y
+        return out
 
     def redundancy(self, **_):
         return np.ones(self.m)
@@ -726,12 +734,40 @@ class _DenseProjector:
     def __init__(self, basis):
         self.basis = basis
 
-    def __call__(self, Y):
-        return self.basis @ (self.basis.T @ Y)
+    def __call__(self, Y, out=None):
+        return np.matmul(self.basis, np.asarray(self.basis.T @ Y), out=out)
 
     def redundancy(self, **_):
         """Diagonal of the projector, ``(m,) float``: row norms of the basis, squared."""
         return np.sum(self.basis ** 2, axis=1)
+
+
+class _RowBlocks:
+    """A CSR matrix in blocks of rows, multiplied block by block into an array given.
+
+    SciPy's sparse-times-dense returns a new array, zeroed by ``calloc``; one
+    of tens of MiB is fresh pages of memory each time, slow to touch on a
+    virtual machine.  The result of a block of ``rows`` rows is small enough
+    for the C library to reuse memory it already has.
+    """
+
+    def __init__(self, A, rows: int = 4096):
+        A = sp.csr_matrix(A)
+        self.shape = A.shape
+        self.parts = [(lo, min(lo + rows, A.shape[0]), A[lo:lo + rows])
+                      for lo in range(0, A.shape[0], rows)]
+
+    def into(self, X: np.ndarray, out: np.ndarray, *, minus: np.ndarray | None = None,
+             negate: bool = False) -> np.ndarray:
+        """``out = A @ X``, ``minus - A @ X`` or (``negate``) ``-A @ X``; ``X`` row-major."""
+        for lo, hi, A in self.parts:
+            if minus is not None:
+                np.subtract(minus[lo:hi], A @ X, out=out[lo:hi])
+            elif negate:
+                np.negative(A @ X, out=out[lo:hi])
+            else:
+                out[lo:hi] = A @ X
+        return out
 
 
 class _Projector:
@@ -742,45 +778,84 @@ class _Projector:
     ``C.T y`` lies in the range of ``K``; the solve with the factorisation of
     ``K - tau I`` is followed by a step of iterative refinement for each column
     whose residual exceeds ``tol.refine`` of its right-hand side, and by the removal of any
-    mechanism component (``C`` maps it to zero anyway).  Columns are taken
+    mechanism component (``C`` maps it to zero anyway).
+
+    Everything is held in the factorisation's order of coordinates (``C``'s
+    columns and the mechanisms' rows permuted once), and a block of columns
+    is worked in three arrays of ``n x block`` kept from block to block, the
+    sparse products written into them a block of rows at a time
+    (:class:`_RowBlocks`): a new array of tens of MiB at every step costs
+    fresh pages of memory.  ``Y`` may be sparse (a product force reaches a
+    few members): ``C.T y`` is then a sparse product.  Columns are taken
     ``_BLOCK`` at a time with SuperLU, and ``PardisoFactor.block`` at a time
-    (a few dozen for 10^5 coordinates) with PARDISO, whose solve gains from more
-    (:attr:`block`).
+    (a few dozen for 10^5 coordinates) with PARDISO, whose solve gains from
+    more (:attr:`block`).
     """
 
     def __init__(self, C, Kp, lu, perm, mech, tol: Tolerances = DEFAULT):
-        self.C, self.lu, self.perm, self.mech = C, lu, perm, mech
+        self.lu, self.perm = lu, perm
+        self.m = C.shape[0]
         self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
-        self.inv = np.empty_like(perm)
-        self.inv[perm] = np.arange(len(perm))
-        # row-major copies for the products with blocks held row-major (C order): SciPy's
-        # sparse-times-dense runs several times faster so than with a column-major block
-        self._CT = sp.csr_matrix(C.T)
-        self._K = rows_of_symmetric(Kp)
+        Cp = sp.csr_matrix(C)[:, perm].tocsr()       # C with its columns in the factor's order
+        self._CT = sp.csr_matrix(Cp.T)
+        self._C, self._Cb = Cp, _RowBlocks(Cp)
+        self._CTb, self._Kb = _RowBlocks(self._CT), _RowBlocks(rows_of_symmetric(Kp))
+        self._mech = np.ascontiguousarray(mech[perm])
+        self._work = np.zeros((3, 0))
 
-    def __call__(self, Y):
-        Y = np.asarray(Y, dtype=float)
+    def __call__(self, Y, out: np.ndarray | None = None):
+        """``P Y`` for ``Y`` of shape ``(m,)`` or ``(m, q)``, dense or sparse; ``out``, an
+        ``(m, q)`` float array, receives it where given."""
+        sparse = sp.issparse(Y)
+        Y = sp.csc_matrix(Y, dtype=float, copy=True) if sparse else np.asarray(Y, dtype=float)
         flat = Y.ndim == 1
         Y = Y[:, None] if flat else Y
-        C, lu, mech = self.C, self.lu, self.mech
-        T = np.empty_like(Y)
+        T = np.empty(Y.shape) if out is None else out
+        if T.shape != Y.shape:
+            raise ValueError(f"out has shape {T.shape}, not {Y.shape}")
         block = self.block
         for lo in range(0, Y.shape[1], block):
-            y = np.ascontiguousarray(Y[:, lo:lo + block])
-            rhs = (self._CT @ y)[self.perm]
-            x = np.ascontiguousarray(lu.solve(rhs))
-            r = rhs - self._K @ x
-            # a step of refinement for each column whose residual asks for one
-            bad = np.linalg.norm(r, axis=0) > self.refine * np.linalg.norm(rhs, axis=0)
-            if bad.all():
-                x += lu.solve(r)
-            elif bad.any():
-                x[:, bad] += lu.solve(r[:, bad])
-            x = x[self.inv]
-            if mech.shape[1]:
-                x -= mech @ (mech.T @ x)
-            np.subtract(y, C @ x, out=T[:, lo:lo + block])
+            hi = min(lo + block, Y.shape[1])
+            self._block(Y[:, lo:hi], T[:, lo:hi], sparse)
         return T[:, 0] if flat else T
+
+    def _views(self, b: int):
+        """Three ``(n, b)`` arrays of the kept work space: the right-hand sides and the
+        solve's output column-major, the solution row-major (for the sparse products)."""
+        n = self._CT.shape[0]
+        if self._work.shape[1] < n * b:
+            self._work = np.empty((3, n * b))
+        rhs, x, xc = (self._work[i, :n * b] for i in range(3))
+        return rhs.reshape((n, b), order="F"), x.reshape((n, b), order="F"), xc.reshape(n, b)
+
+    def _block(self, y, t: np.ndarray, sparse: bool) -> None:
+        lu, mech = self.lu, self._mech
+        rhs, x, xc = self._views(y.shape[1])
+        if sparse:
+            rhs[...] = 0.0
+            part = (self._CT @ y).tocoo()
+            rhs[part.row, part.col] = part.data
+        else:
+            y = np.ascontiguousarray(y)
+            self._CTb.into(y, rhs)
+        lu.solve(rhs, out=x)
+        xc[...] = x
+        r = self._Kb.into(xc, x, minus=rhs)           # the residual, in the solve's array
+        # a step of refinement for each column whose residual asks for one
+        size = (lambda a: np.sqrt(np.einsum("ij,ij->j", a, a)))
+        bad = size(r) > self.refine * size(rhs)
+        if bad.all():
+            xc += lu.solve(r, out=rhs)
+        elif bad.any():
+            xc[:, bad] += lu.solve(np.asfortranarray(r[:, bad]))
+        if mech.shape[1]:
+            xc -= np.matmul(mech, mech.T @ xc, out=rhs.reshape(xc.shape))
+        if sparse:                                    # a CSC block: no repeated entries
+            self._Cb.into(xc, t, negate=True)
+            y = y.tocoo()
+            t[y.row, y.col] += y.data
+        else:
+            self._Cb.into(xc, t, minus=y)
 
     @property
     def block(self) -> int:
@@ -788,7 +863,7 @@ class _Projector:
         (``PardisoFactor.block``), kept to 32 MiB of member forces per block but at
         least 32 columns (see there)."""
         fast = getattr(self.lu, "block", None)
-        return _BLOCK if fast is None else int(min(fast, max(32, BLOCK_ENTRIES // self.C.shape[0])))
+        return _BLOCK if fast is None else int(min(fast, max(32, BLOCK_ENTRIES // self.m)))
 
     def redundancy(self, *, max_solves: int | None = None):
         """Diagonal of the projector onto the self-stress space, ``(m,) float``.
@@ -801,7 +876,7 @@ class _Projector:
         right-hand sides (default ``tol.limits.redundancy_max``).  Cost: ``n``
         solves and O(nnz(C) n).
         """
-        C, lu, mech = self.C, self.lu, self.mech
+        C, lu, mech = self._C, self.lu, self._mech
         m, n = C.shape
         max_solves = self.max_solves if max_solves is None else max_solves
         if n > max_solves:
@@ -815,7 +890,7 @@ class _Projector:
             E[idx, np.arange(len(idx))] = 1.0
             if mech.shape[1]:
                 E -= mech @ mech[idx].T
-            Z = lu.solve(np.asfortranarray(E[self.perm]))[self.inv]
+            Z = lu.solve(np.asfortranarray(E))
             if mech.shape[1]:
                 Z -= mech @ (mech.T @ Z)
             W = C @ Z                                   # (m, batch)

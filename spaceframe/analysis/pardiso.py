@@ -169,10 +169,12 @@ class PardisoFactor:
         self.positive = int(iparm[21])
         self.perturbed = int(iparm[13])
 
-    def _call(self, phase: int, b: np.ndarray | None = None) -> np.ndarray | None:
+    def _call(self, phase: int, b: np.ndarray | None = None,
+              x: np.ndarray | None = None) -> np.ndarray | None:
         nrhs = 1 if b is None else b.shape[1]
         b = np.zeros((self.n, 1)) if b is None else b
-        x = np.empty_like(b, order="F")    # written by the solve (phase 33), unread otherwise
+        if x is None:                      # written by the solve (phase 33), unread otherwise
+            x = np.empty_like(b, order="F")
         err = ctypes.c_int32(0)
         i32 = (lambda v: ctypes.byref(ctypes.c_int32(v)))
         self._fn(_ptr(self._pt), i32(1), i32(1), i32(self._mtype), i32(phase), i32(self.n),
@@ -184,14 +186,21 @@ class PardisoFactor:
             raise PardisoError(err.value, phase)
         return x
 
-    def solve(self, B: np.ndarray) -> np.ndarray:
-        """``A^{-1} B`` for ``B`` of shape ``(n,)`` or ``(n, r)``: one call for every column."""
+    def solve(self, B: np.ndarray, out: np.ndarray | None = None) -> np.ndarray:
+        """``A^{-1} B`` for ``B`` of shape ``(n,)`` or ``(n, r)``: one call for every column.
+
+        ``out``, a column-major ``(n, r)`` float array other than ``B``, receives the
+        solution (no new array: fresh memory is slow to touch on a virtual machine).
+        """
         B = np.asarray(B, dtype=np.float64)
         flat = B.ndim == 1
         B = np.asfortranarray(B[:, None] if flat else B)
         if B.shape[1] == 0:
             return np.zeros(B.shape)[:, 0] if flat else np.zeros(B.shape)
-        X = self._call(33, B)
+        if out is not None and (out.shape != B.shape or out.dtype != np.float64
+                                or not out.flags.f_contiguous or np.shares_memory(out, B)):
+            raise ValueError("out must be a column-major float array of B's shape, apart from B")
+        X = self._call(33, B, out)
         return X[:, 0] if flat else X
 
     def free(self) -> None:

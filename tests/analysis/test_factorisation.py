@@ -21,6 +21,7 @@ import scipy.sparse as sp
 
 import spaceframe
 from spaceframe.analysis import nullspace, pardiso
+from spaceframe.analysis.equilibrium import compatibility_matrix, free_dofs
 from spaceframe.families import double_layer_grid, plane_truss_roof
 from spaceframe.model import Frame
 from spaceframe.tolerances import Limits, Tolerances
@@ -132,3 +133,60 @@ def test_small_frames_keep_superlu_and_the_dense_engine_none():
     assert spaceframe.audit(frame, method="dense", soft=False).gap.factorisation is None
     assert "factorisation" not in sparse.to_dict()["rank_decision"]   # how, not what
 
+
+
+@needs_pardiso
+def test_pardiso_solve_into_a_given_array():
+    rng = np.random.default_rng(3)
+    Q, _ = np.linalg.qr(rng.standard_normal((20, 20)))
+    A = sp.csr_matrix(Q @ np.diag(np.geomspace(0.1, 10, 20)) @ Q.T)
+    f = pardiso.PardisoFactor(A, definite=True, fn=pardiso.load())
+    B = np.asfortranarray(rng.standard_normal((20, 4)))
+    out = np.empty((20, 4), order="F")
+    assert f.solve(B, out=out) is out
+    assert np.allclose(out, np.linalg.solve(A.toarray(), B), atol=1e-10)   # numpy's solve
+    for wrong in (np.empty((20, 4)), np.empty((20, 3), order="F"), B):
+        with pytest.raises(ValueError, match="column-major"):
+            f.solve(B, out=wrong)
+
+
+def test_row_blocks_are_the_whole_product():
+    rng = np.random.default_rng(5)
+    A = sp.random(1000, 300, density=0.02, format="csr", random_state=5)
+    X = rng.standard_normal((300, 7))
+    want = A @ X
+    rows = nullspace._RowBlocks(A, rows=64)
+    assert len(rows.parts) == 16
+    out = np.empty((1000, 7), order="F")
+    assert np.array_equal(rows.into(X, out), want)
+    M = rng.standard_normal((1000, 7))
+    assert np.array_equal(rows.into(X, out, minus=M), M - want)
+    assert np.array_equal(rows.into(X, out, negate=True), -want)
+
+
+@pytest.mark.parametrize("tol", [FAST, SLOW], ids=["PARDISO", "SuperLU"])
+def test_projector_sparse_and_dense_input_against_null_space(tol):
+    """The projector onto the states of self-stress, of a holed grid (a mechanism of the
+    whole frame and several of single joints): dense or sparse member forces, into a given
+    array or not, more columns than a block; reference ``Q Q.T`` with ``Q`` scipy's null
+    space of ``C.T`` (Pellegrino & Calladine 1986)."""
+    if tol is FAST and not HAVE:
+        pytest.skip("the extra 'pardiso' is not installed")
+    frame, _ = _holed_grid(8, 3)
+    dofs = free_dofs(frame)
+    C = compatibility_matrix(frame, dofs)
+    decision = nullspace.decide_rank(C, joint_of=dofs.joint_of(), method="sparse", tol=tol)
+    project = decision.project
+    m = frame.n_members
+    Q = sla.null_space(C.toarray().T)
+    rng = np.random.default_rng(2)
+    Y = rng.standard_normal((m, project.block + 5))
+    want = Q @ (Q.T @ Y)
+    assert np.max(np.abs(project(Y) - want)) < 1e-8
+    out = np.empty(Y.shape, order="F")
+    assert project(Y, out=out) is out and np.max(np.abs(out - want)) < 1e-8
+    S = sp.random(m, 9, density=0.01, format="csc", random_state=4)
+    assert np.max(np.abs(project(S) - Q @ (Q.T @ S.toarray()))) < 1e-8
+    assert np.allclose(project(Y[:, 0]), want[:, 0], atol=1e-8)
+    with pytest.raises(ValueError, match="shape"):
+        project(Y, out=np.empty((m, 2)))
