@@ -185,6 +185,7 @@ def audit(frame: Frame, *, self_stress_cap: int = 16, method: str = "auto",
                              tol=tol, forces=force)
         pre = type(pre)(pre.orders, ModeSet(pre.prestress, (frame.n_members,)), pre.stable,
                         pre.certificate)
+    decision.project.release()          # its work arrays: the projections are made
     states = decision.self_stress if decision.self_stress is not None else \
         stress_basis(both[:, 2:2 + seeds])
     declared = declared_prestress_test(frame, C, dofs, inner,

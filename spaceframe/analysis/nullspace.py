@@ -118,11 +118,13 @@ class RankDecision:
     method : str
         ``"dense"`` or ``"sparse"``.
     project : callable
-        ``project(Y)`` for ``Y`` of shape ``(m, q)`` returns the orthogonal
-        projection of each column onto the space of states of self-stress,
-        ``Y - C K^+ C.T Y``: the part of a member force vector that needs no
-        load.  ``project.redundancy()`` gives the diagonal of that projector
-        (or None where it would cost too much).
+        ``project(Y, out=None)`` for ``Y`` of shape ``(m, q)`` (dense or
+        sparse) returns the orthogonal projection of each column onto the
+        space of states of self-stress, ``Y - C K^+ C.T Y``: the part of a
+        member force vector that needs no load (written into ``out`` where
+        given).  ``project.redundancy()`` gives the diagonal of that projector
+        (or None where it would cost too much); ``project.release()`` gives
+        back the work arrays it keeps between calls.
     shift : float or None
         The sparse engine's final shift ``tau`` of the inertia count, divided
         by ``s_max**2``: ``tolerance**2`` unless the factorisation had to move
@@ -724,6 +726,9 @@ class _EveryMember:
         out[...] = Y
         return out
 
+    def release(self) -> None:
+        """Nothing kept between calls."""
+
     def redundancy(self, **_):
         return np.ones(self.m)
 
@@ -736,6 +741,9 @@ class _DenseProjector:
 
     def __call__(self, Y, out=None):
         return np.matmul(self.basis, np.asarray(self.basis.T @ Y), out=out)
+
+    def release(self) -> None:
+        """Nothing kept between calls."""
 
     def redundancy(self, **_):
         """Diagonal of the projector, ``(m,) float``: row norms of the basis, squared."""
@@ -818,6 +826,10 @@ class _Projector:
             hi = min(lo + block, Y.shape[1])
             self._block(Y[:, lo:hi], T[:, lo:hi], sparse)
         return T[:, 0] if flat else T
+
+    def release(self) -> None:
+        """Give back the work arrays kept between calls (taken again on the next)."""
+        self._work = np.zeros((3, 0))
 
     def _views(self, b: int):
         """Three ``(n, b)`` arrays of the kept work space: the right-hand sides and the
