@@ -756,14 +756,18 @@ class _RowBlocks:
     SciPy's sparse-times-dense returns a new array, zeroed by ``calloc``; one
     of tens of MiB is fresh pages of memory each time, slow to touch on a
     virtual machine.  The result of a block of ``rows`` rows is small enough
-    for the C library to reuse memory it already has.
+    for the C library to reuse memory it already has.  The blocks are views
+    of the whole matrix's arrays (``A``), not copies.
     """
 
     def __init__(self, A, rows: int = 4096):
-        A = sp.csr_matrix(A)
+        A = self.A = sp.csr_matrix(A)
         self.shape = A.shape
-        self.parts = [(lo, min(lo + rows, A.shape[0]), A[lo:lo + rows])
-                      for lo in range(0, A.shape[0], rows)]
+        ptr = A.indptr
+        self.parts = [(lo, hi, sp.csr_matrix((A.data[ptr[lo]:ptr[hi]], A.indices[ptr[lo]:ptr[hi]],
+                                              ptr[lo:hi + 1] - ptr[lo]), shape=(hi - lo, A.shape[1])))
+                      for lo, hi in ((lo, min(lo + rows, A.shape[0]))
+                                     for lo in range(0, A.shape[0], rows))]
 
     def into(self, X: np.ndarray, out: np.ndarray, *, minus: np.ndarray | None = None,
              negate: bool = False) -> np.ndarray:
@@ -804,10 +808,9 @@ class _Projector:
         self.lu, self.perm = lu, perm
         self.m = C.shape[0]
         self.refine, self.max_solves = tol.refine, tol.limits.redundancy_max
-        Cp = sp.csr_matrix(C)[:, perm].tocsr()       # C with its columns in the factor's order
-        self._CT = sp.csr_matrix(Cp.T)
-        self._C, self._Cb = Cp, _RowBlocks(Cp)
-        self._CTb, self._Kb = _RowBlocks(self._CT), _RowBlocks(rows_of_symmetric(Kp))
+        Cp = sp.csr_matrix(C)[:, perm]               # C with its columns in the factor's order
+        self._C, self._CT = _RowBlocks(Cp), _RowBlocks(Cp.T)
+        self._K = _RowBlocks(rows_of_symmetric(Kp))
         self._mech = np.ascontiguousarray(mech[perm])
         self._work = np.zeros((3, 0))
 
@@ -815,7 +818,7 @@ class _Projector:
         """``P Y`` for ``Y`` of shape ``(m,)`` or ``(m, q)``, dense or sparse; ``out``, an
         ``(m, q)`` float array, receives it where given."""
         sparse = sp.issparse(Y)
-        Y = sp.csc_matrix(Y, dtype=float, copy=True) if sparse else np.asarray(Y, dtype=float)
+        Y = sp.csc_matrix(Y, dtype=float) if sparse else np.asarray(Y, dtype=float)
         flat = Y.ndim == 1
         Y = Y[:, None] if flat else Y
         T = np.empty(Y.shape) if out is None else out
@@ -845,14 +848,14 @@ class _Projector:
         rhs, x, xc = self._views(y.shape[1])
         if sparse:
             rhs[...] = 0.0
-            part = (self._CT @ y).tocoo()
+            part = (self._CT.A @ y).tocoo()
             rhs[part.row, part.col] = part.data
         else:
             y = np.ascontiguousarray(y)
-            self._CTb.into(y, rhs)
+            self._CT.into(y, rhs)
         lu.solve(rhs, out=x)
         xc[...] = x
-        r = self._Kb.into(xc, x, minus=rhs)           # the residual, in the solve's array
+        r = self._K.into(xc, x, minus=rhs)           # the residual, in the solve's array
         # a step of refinement for each column whose residual asks for one
         size = (lambda a: np.sqrt(np.einsum("ij,ij->j", a, a)))
         bad = size(r) > self.refine * size(rhs)
@@ -861,13 +864,13 @@ class _Projector:
         elif bad.any():
             xc[:, bad] += lu.solve(np.asfortranarray(r[:, bad]))
         if mech.shape[1]:
-            xc -= np.matmul(mech, mech.T @ xc, out=rhs.reshape(xc.shape))
+            xc -= np.matmul(mech, mech.T @ xc, out=rhs)
         if sparse:                                    # a CSC block: no repeated entries
-            self._Cb.into(xc, t, negate=True)
+            self._C.into(xc, t, negate=True)
             y = y.tocoo()
             t[y.row, y.col] += y.data
         else:
-            self._Cb.into(xc, t, minus=y)
+            self._C.into(xc, t, minus=y)
 
     @property
     def block(self) -> int:
@@ -888,7 +891,7 @@ class _Projector:
         right-hand sides (default ``tol.limits.redundancy_max``).  Cost: ``n``
         solves and O(nnz(C) n).
         """
-        C, lu, mech = self._C, self.lu, self._mech
+        C, lu, mech = self._C.A, self.lu, self._mech
         m, n = C.shape
         max_solves = self.max_solves if max_solves is None else max_solves
         if n > max_solves:
